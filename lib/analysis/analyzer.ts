@@ -1,0 +1,397 @@
+import { LogFormatError } from "../errors";
+import { AXES, type Axis } from "../logs/columns";
+import type { Gap, LogInfo, LogSink, ReadSummary, SampleBlock } from "../logs/read-log";
+import { arrayToDb, bandBins, bandPower, noiseFloor, toDb, type FrequencyBand } from "../signal/bands";
+import { spectralPeaks } from "../signal/peaks";
+import { SegmentPeriodogram, defaultNperseg, medianAcross, medianBias, resolveWelchOptions } from "../signal/welch";
+import { classifyPeaks } from "./classify";
+import {
+  DEFAULT_ANALYSIS,
+  USABLE_NYQUIST_FRACTION,
+  bandsBelow,
+  floorCorner,
+  welchOptionsOf,
+  type AnalysisSettings,
+} from "./settings";
+import type {
+  AxisResult,
+  LogAnalysis,
+  MotorInBand,
+  MotorSummary,
+  MotorTrackPoint,
+  OrderLevel,
+  ThrottleBandAxis,
+  ThrottleBandResult,
+} from "./types";
+
+const MAX_TRACK_POINTS = 300;
+
+/** Accumulators of one throttle band. */
+interface BandAccumulator {
+  segments: number;
+  samples: number;
+  throttleSum: number;
+  psdSum: Float64Array[];
+  /** per axis, per analysis band: Σ dB and Σ dB² over segments */
+  dbSum: Float64Array[];
+  dbSqSum: Float64Array[];
+  rpmSum: Float64Array;
+  /** per motor, per order, per axis: Σ power (linear) */
+  orderPowerSum: Float64Array[][];
+}
+
+/**
+ * Turns a stream of sample blocks into a {@link LogAnalysis}. Welch segments are cut from a
+ * sliding buffer as samples arrive, so memory stays at a few segments plus the accumulators,
+ * whatever the log's length (median averaging, which needs every periodogram, is the exception).
+ */
+export class LogAnalyzer implements LogSink {
+  private readonly settings: AnalysisSettings;
+  private info: LogInfo | null = null;
+  private periodogram: SegmentPeriodogram | null = null;
+  private nperseg = 0;
+  private step = 0;
+  private bands: FrequencyBand[] = [];
+  private bandRanges: { first: number; end: number }[] = [];
+  private maxFreqHz = 0;
+
+  private buffers: Float64Array[] = [];
+  private fill = 0;
+  private bufferStartS = 0;
+  private timeS = 0;
+  private segmentPsd: Float64Array[] = [];
+  private overallSum: Float64Array[] = [];
+  private stored: Float32Array[][] = [];
+  private segments = 0;
+  private throttleBandCount = 1;
+  private accumulators: BandAccumulator[] = [];
+  private throttleSamples: Float64Array = new Float64Array(1);
+  private tracks: MotorTrackPoint[][] = [];
+  private orders: { order: number; label: OrderLevel["label"] }[] = [];
+
+  constructor(settings: Partial<AnalysisSettings> = {}) {
+    this.settings = { ...DEFAULT_ANALYSIS, ...settings };
+    if (!(this.settings.overlap >= 0 && this.settings.overlap < 1)) {
+      throw new RangeError(`overlap must be a fraction in [0, 1), got ${this.settings.overlap}`);
+    }
+  }
+
+  begin(info: LogInfo): void {
+    this.info = info;
+    const fs = info.sampleRateHz;
+    const nperseg = this.settings.nperseg ?? defaultNperseg(fs);
+    const resolved = resolveWelchOptions(fs, welchOptionsOf(this.settings, nperseg));
+    this.periodogram = new SegmentPeriodogram(fs, resolved);
+    this.nperseg = resolved.nperseg;
+    this.step = resolved.nperseg - resolved.noverlap;
+    this.maxFreqHz = USABLE_NYQUIST_FRACTION * (fs / 2);
+    this.bands = bandsBelow(this.settings.bandEdgesHz, this.maxFreqHz);
+    const bins = this.periodogram.bins;
+    this.bandRanges = this.bands.map((b) => bandBins(b, this.periodogram?.binHz ?? 1, bins));
+    const motors = info.motors.length;
+    // channels: 3 gyro, throttle, motors
+    this.buffers = Array.from({ length: 4 + motors }, () => new Float64Array(this.nperseg));
+    this.segmentPsd = AXES.map(() => new Float64Array(bins));
+    this.overallSum = AXES.map(() => new Float64Array(bins));
+    this.stored = AXES.map(() => []);
+    this.throttleBandCount = info.hasThrottle ? this.settings.throttleBands : 1;
+    this.throttleSamples = new Float64Array(this.throttleBandCount);
+    this.orders = [
+      { order: 1, label: "1x" },
+      { order: 2, label: "2x" },
+      { order: this.settings.bladeCount, label: "blade-pass" },
+    ];
+    this.accumulators = Array.from({ length: this.throttleBandCount }, () => ({
+      segments: 0,
+      samples: 0,
+      throttleSum: 0,
+      psdSum: AXES.map(() => new Float64Array(bins)),
+      dbSum: AXES.map(() => new Float64Array(this.bands.length)),
+      dbSqSum: AXES.map(() => new Float64Array(this.bands.length)),
+      rpmSum: new Float64Array(motors),
+      orderPowerSum: Array.from({ length: motors }, () => this.orders.map(() => new Float64Array(3))),
+    }));
+    this.tracks = Array.from({ length: motors }, () => []);
+  }
+
+  gap(_gap: Gap): void {
+    // No Welch segment may straddle a gap: start filling afresh.
+    this.fill = 0;
+  }
+
+  block(block: SampleBlock): void {
+    const n = block.length;
+    const buffers = this.buffers;
+    const throttle = block.throttle;
+    const bandCount = this.throttleBandCount;
+    for (let i = 0; i < n; i++) {
+      if (this.fill === 0) this.bufferStartS = block.timeS[i] ?? 0;
+      const f = this.fill;
+      (buffers[0] as Float64Array)[f] = block.gyro[0][i] ?? 0;
+      (buffers[1] as Float64Array)[f] = block.gyro[1][i] ?? 0;
+      (buffers[2] as Float64Array)[f] = block.gyro[2][i] ?? 0;
+      const thr = throttle ? (throttle[i] ?? 0) : 0;
+      (buffers[3] as Float64Array)[f] = thr;
+      for (let m = 0; m < block.rpm.length; m++) (buffers[4 + m] as Float64Array)[f] = block.rpm[m]?.[i] ?? 0;
+      const band = throttleBandOf(thr, bandCount);
+      this.throttleSamples[band] = (this.throttleSamples[band] ?? 0) + 1;
+      this.fill = f + 1;
+      if (this.fill === this.nperseg) {
+        this.timeS = block.timeS[i] ?? 0;
+        this.segment();
+        for (const b of buffers) b.copyWithin(0, this.step, this.nperseg);
+        this.fill = this.nperseg - this.step;
+        this.bufferStartS += this.step / (this.info?.sampleRateHz ?? 1);
+      }
+    }
+  }
+
+  private segment(): void {
+    const periodogram = this.periodogram as SegmentPeriodogram;
+    const bins = periodogram.bins;
+    const binHz = periodogram.binHz;
+    const n = this.nperseg;
+    for (let a = 0; a < 3; a++) {
+      periodogram.compute(this.buffers[a] as Float64Array, 0, this.segmentPsd[a] as Float64Array);
+    }
+    const thrBuf = this.buffers[3] as Float64Array;
+    let thrMean = 0;
+    for (let i = 0; i < n; i++) thrMean += thrBuf[i] ?? 0;
+    thrMean /= n;
+    const acc = this.accumulators[throttleBandOf(thrMean, this.throttleBandCount)] as BandAccumulator;
+    acc.segments++;
+    acc.throttleSum += thrMean;
+    for (let a = 0; a < 3; a++) {
+      const psd = this.segmentPsd[a] as Float64Array;
+      const overall = this.overallSum[a] as Float64Array;
+      const bandSum = acc.psdSum[a] as Float64Array;
+      for (let k = 0; k < bins; k++) {
+        const v = psd[k] ?? 0;
+        overall[k] = (overall[k] ?? 0) + v;
+        bandSum[k] = (bandSum[k] ?? 0) + v;
+      }
+      if (this.settings.average === "median") this.stored[a]?.push(Float32Array.from(psd));
+      const dbSum = acc.dbSum[a] as Float64Array;
+      const dbSq = acc.dbSqSum[a] as Float64Array;
+      this.bandRanges.forEach((r, b) => {
+        let p = 0;
+        for (let k = r.first; k < r.end; k++) p += psd[k] ?? 0;
+        const db = toDb(p * binHz);
+        dbSum[b] = (dbSum[b] ?? 0) + db;
+        dbSq[b] = (dbSq[b] ?? 0) + db * db;
+      });
+    }
+    const motors = this.buffers.length - 4;
+    for (let m = 0; m < motors; m++) {
+      const rpmBuf = this.buffers[4 + m] as Float64Array;
+      let rpm = 0;
+      for (let i = 0; i < n; i++) rpm += rpmBuf[i] ?? 0;
+      rpm /= n;
+      acc.rpmSum[m] = (acc.rpmSum[m] ?? 0) + rpm;
+      const rotationHz = rpm / 60;
+      const orderSums = acc.orderPowerSum[m] as Float64Array[];
+      let order1Max = 0;
+      this.orders.forEach((o, j) => {
+        const f = rotationHz * o.order;
+        const sums = orderSums[j] as Float64Array;
+        for (let a = 0; a < 3; a++) {
+          const p = orderPower(this.segmentPsd[a] as Float64Array, binHz, f, this.maxFreqHz);
+          sums[a] = (sums[a] ?? 0) + p;
+          if (j === 0) order1Max = Math.max(order1Max, p);
+        }
+      });
+      this.tracks[m]?.push({ tS: this.bufferStartS, rotationHz, order1Db: toDb(order1Max) });
+    }
+    this.segments++;
+  }
+
+  /** Completes the analysis. Throws LogFormatError when no segment could be formed. */
+  finish(summary: ReadSummary): LogAnalysis {
+    const info = this.info;
+    const periodogram = this.periodogram;
+    if (!info || !periodogram) throw new LogFormatError("no samples were read");
+    if (this.segments === 0) {
+      const fs = info.sampleRateHz;
+      const longestRun = summary.gaps.length > 0 ? " in one stretch without a gap" : "";
+      throw new LogFormatError(
+        `the log has ${summary.samples} samples at ${Math.round(fs)} Hz; one analysis segment needs ${this.nperseg} samples (${(this.nperseg / fs).toFixed(2)} s)${longestRun}`,
+      );
+    }
+    const binHz = periodogram.binHz;
+    const bins = periodogram.bins;
+    const fs = info.sampleRateHz;
+    const corner = floorCorner(this.settings, this.maxFreqHz);
+    const psdOverall = this.overallSum.map((sum, a) => {
+      const out = new Float64Array(bins);
+      if (this.settings.average === "median") {
+        const spectra = (this.stored[a] ?? []).map((s) => Float64Array.from(s));
+        medianAcross(spectra, out);
+        const bias = medianBias(spectra.length);
+        for (let k = 0; k < bins; k++) out[k] = (out[k] ?? 0) / bias;
+      } else {
+        for (let k = 0; k < bins; k++) out[k] = (sum[k] ?? 0) / this.segments;
+      }
+      return out;
+    });
+
+    const throttleBands: ThrottleBandResult[] = this.accumulators.map((acc, index) => {
+      const lo = this.throttleBandCount === 1 ? 0 : index / this.throttleBandCount;
+      const hi = this.throttleBandCount === 1 ? 1 : (index + 1) / this.throttleBandCount;
+      const count = Math.max(acc.segments, 1);
+      const axes = {} as Record<Axis, ThrottleBandAxis>;
+      AXES.forEach((axis, a) => {
+        const mean = new Float64Array(bins);
+        const sum = acc.psdSum[a] as Float64Array;
+        for (let k = 0; k < bins; k++) mean[k] = (sum[k] ?? 0) / count;
+        const db = arrayToDb(mean);
+        const dbSum = acc.dbSum[a] as Float64Array;
+        const dbSq = acc.dbSqSum[a] as Float64Array;
+        const bandDb = this.bands.map((_, b) => (dbSum[b] ?? 0) / count);
+        const bandSpreadDb = this.bands.map((_, b) => {
+          const m = (dbSum[b] ?? 0) / count;
+          return Math.sqrt(Math.max(0, (dbSq[b] ?? 0) / count - m * m));
+        });
+        axes[axis] = {
+          psdDb: Array.from(db, (v) => round(v, 2)),
+          bandDb: bandDb.map((v) => round(v, 3)),
+          bandSpreadDb: bandSpreadDb.map((v) => round(v, 3)),
+          floorDb: acc.segments > 0 ? round(toDb(noiseFloor(mean, binHz, corner, this.maxFreqHz)), 3) : Number.NaN,
+          peaks:
+            acc.segments >= this.settings.minBandSegments
+              ? spectralPeaks(db, binHz, {
+                  minFreqHz: this.settings.minFreqHz,
+                  maxFreqHz: this.maxFreqHz,
+                  minProminenceDb: this.settings.minProminenceDb,
+                })
+              : [],
+        };
+      });
+      const motors: MotorInBand[] = info.motors.map((motor, m) => {
+        const meanRpm = (acc.rpmSum[m] ?? 0) / count;
+        return {
+          motor,
+          meanRpm: round(meanRpm, 1),
+          orders: this.orders.map((o, j) => {
+            const sums = acc.orderPowerSum[m]?.[j] as Float64Array;
+            const powerDb = {} as Record<Axis, number>;
+            AXES.forEach((axis, a) => (powerDb[axis] = round(toDb((sums[a] ?? 0) / count), 3)));
+            return { order: o.order, label: o.label, freqHz: round((meanRpm / 60) * o.order, 2), powerDb };
+          }),
+        };
+      });
+      return {
+        index,
+        lo,
+        hi,
+        seconds: round((this.throttleSamples[index] ?? 0) / fs, 3),
+        segments: acc.segments,
+        meanThrottle: acc.segments > 0 ? round(acc.throttleSum / acc.segments, 4) : (lo + hi) / 2,
+        axes,
+        motors,
+      };
+    });
+
+    const axes = {} as Record<Axis, AxisResult>;
+    AXES.forEach((axis, a) => {
+      const psd = psdOverall[a] as Float64Array;
+      const db = arrayToDb(psd);
+      const peaks = spectralPeaks(db, binHz, {
+        minFreqHz: this.settings.minFreqHz,
+        maxFreqHz: this.maxFreqHz,
+        minProminenceDb: this.settings.minProminenceDb,
+      });
+      const usable = throttleBands.filter((b) => b.segments >= this.settings.minBandSegments);
+      axes[axis] = {
+        psd: Array.from(psd),
+        peaks: classifyPeaks(peaks, axis, usable, binHz),
+        bandPower: this.bands.map((b) => bandPower(psd, binHz, b)),
+        floorDb: round(toDb(noiseFloor(psd, binHz, corner, this.maxFreqHz)), 3),
+        rmsDegS: Math.sqrt(bandPower(psd, binHz, { loHz: this.settings.minFreqHz, hiHz: this.maxFreqHz })),
+      };
+    });
+
+    const motors: MotorSummary[] = info.motors.map((motor, m) => {
+      const track = this.tracks[m] ?? [];
+      const meanRpm = track.length > 0 ? (track.reduce((s, p) => s + p.rotationHz, 0) / track.length) * 60 : 0;
+      return { motor, meanRpm: round(meanRpm, 1), track: decimateTrack(track, MAX_TRACK_POINTS) };
+    });
+
+    return {
+      version: 1,
+      sampleRateHz: round(fs, 3),
+      durationS: round(summary.durationS, 3),
+      samples: summary.samples,
+      gaps: summary.gaps,
+      droppedRows: summary.droppedRows,
+      metadata: info.metadata,
+      guesses: info.guesses,
+      settings: {
+        nperseg: this.nperseg,
+        noverlap: this.nperseg - this.step,
+        window: this.settings.window,
+        average: this.settings.average,
+        binHz,
+        bladeCount: this.settings.bladeCount,
+        minFreqHz: this.settings.minFreqHz,
+        maxFreqHz: this.maxFreqHz,
+        floorCornerHz: corner,
+      },
+      segments: this.segments,
+      freqHz: Array.from(periodogram.freqHz),
+      bands: this.bands,
+      axes,
+      hasThrottle: info.hasThrottle,
+      throttleBands,
+      motors,
+    };
+  }
+}
+
+/** Index of the throttle band a value in 0..1 falls in; values outside are clamped. */
+export function throttleBandOf(throttle: number, bands: number): number {
+  if (bands <= 1) return 0;
+  const i = Math.floor(throttle * bands);
+  return i < 0 ? 0 : i >= bands ? bands - 1 : i;
+}
+
+/**
+ * Power of a motor order in one segment: Σ PSD·Δf over ±(2 bins + 1 % of f) around it, which holds
+ * a Hann-windowed tone's main lobe and the smear of a slowly changing rpm. 0 above the trusted range.
+ */
+export function orderPower(psd: Float64Array, binHz: number, freqHz: number, maxHz: number): number {
+  if (!(freqHz > 0) || freqHz > maxHz) return 0;
+  const half = 2 * binHz + 0.01 * freqHz;
+  const first = Math.max(1, Math.round((freqHz - half) / binHz));
+  const last = Math.min(psd.length - 1, Math.round((freqHz + half) / binHz));
+  let sum = 0;
+  for (let k = first; k <= last; k++) sum += psd[k] ?? 0;
+  return sum * binHz;
+}
+
+function decimateTrack(track: MotorTrackPoint[], maxPoints: number): MotorTrackPoint[] {
+  if (track.length <= maxPoints) return track.map(roundPoint);
+  const group = Math.ceil(track.length / maxPoints);
+  const out: MotorTrackPoint[] = [];
+  for (let i = 0; i < track.length; i += group) {
+    const part = track.slice(i, i + group);
+    const n = part.length;
+    out.push(
+      roundPoint({
+        tS: part.reduce((s, p) => s + p.tS, 0) / n,
+        rotationHz: part.reduce((s, p) => s + p.rotationHz, 0) / n,
+        order1Db: toDb(part.reduce((s, p) => s + 10 ** (p.order1Db / 10), 0) / n),
+      }),
+    );
+  }
+  return out;
+}
+
+function roundPoint(p: MotorTrackPoint): MotorTrackPoint {
+  return { tS: round(p.tS, 3), rotationHz: round(p.rotationHz, 2), order1Db: round(p.order1Db, 2) };
+}
+
+function round(v: number, digits: number): number {
+  if (!Number.isFinite(v)) return v;
+  const k = 10 ** digits;
+  return Math.round(v * k) / k;
+}

@@ -1,0 +1,71 @@
+import type { FrequencyBand } from "../signal/bands";
+import type { Averaging, WelchOptions } from "../signal/welch";
+import type { WindowName } from "../signal/windows";
+
+/** Everything that shapes an analysis. Defaults in {@link DEFAULT_ANALYSIS}. */
+export interface AnalysisSettings {
+  /** Samples per Welch segment (power of two); undefined: bins ≤ 2 Hz for the log's rate. */
+  nperseg?: number;
+  /** Overlap as a fraction of a segment, 0 ≤ overlap < 1. Default 0.5. */
+  overlap: number;
+  window: WindowName;
+  average: Averaging;
+  /** Number of equal throttle bands over 0..1. Default 8. */
+  throttleBands: number;
+  /**
+   * Edges of the analysis bands in Hz. Bands reaching above 90 % of Nyquist are dropped for a
+   * log (the flight controller's anti-alias filtering bends the top of the spectrum).
+   */
+  bandEdgesHz: number[];
+  /** Peaks and bands start here; below it the spectrum is the pilot's stick motion. */
+  minFreqHz: number;
+  /** Noise floor: median density above this corner (lowered for slow logs). */
+  floorCornerHz: number;
+  /** Prop blades, for the blade-pass order. Default 3. */
+  bladeCount: number;
+  /** Minimum prominence of a reported peak, dB. */
+  minProminenceDb: number;
+  /** A throttle band needs this many segments to be compared or searched for peaks. */
+  minBandSegments: number;
+}
+
+export const DEFAULT_ANALYSIS: AnalysisSettings = {
+  overlap: 0.5,
+  window: "hann",
+  average: "mean",
+  throttleBands: 8,
+  bandEdgesHz: [40, 80, 120, 170, 230, 300, 400, 550, 750, 1000, 1400, 2000, 2800, 4000],
+  minFreqHz: 40,
+  floorCornerHz: 600,
+  bladeCount: 3,
+  minProminenceDb: 6,
+  minBandSegments: 8,
+};
+
+/** The share of Nyquist up to which a log's spectrum is trusted. */
+export const USABLE_NYQUIST_FRACTION = 0.9;
+
+/** Bands of the settings that fit below `maxHz`. */
+export function bandsBelow(edges: readonly number[], maxHz: number): FrequencyBand[] {
+  const bands: FrequencyBand[] = [];
+  for (let i = 0; i + 1 < edges.length; i++) {
+    const loHz = edges[i] ?? 0;
+    const hiHz = edges[i + 1] ?? 0;
+    if (hiHz <= maxHz) bands.push({ loHz, hiHz });
+  }
+  return bands;
+}
+
+/** The corner above which the floor is measured for a log whose usable range ends at maxHz. */
+export function floorCorner(settings: AnalysisSettings, maxHz: number): number {
+  return Math.min(settings.floorCornerHz, 0.6 * maxHz);
+}
+
+export function welchOptionsOf(settings: AnalysisSettings, nperseg: number): WelchOptions {
+  return {
+    nperseg,
+    noverlap: Math.round(settings.overlap * nperseg),
+    window: settings.window,
+    average: settings.average,
+  };
+}

@@ -1,0 +1,109 @@
+import type { Axis } from "../logs/columns";
+import type { Gap } from "../logs/read-log";
+import type { FrequencyBand } from "../signal/bands";
+import type { SpectralPeak } from "../signal/peaks";
+import type { Averaging } from "../signal/welch";
+import type { WindowName } from "../signal/windows";
+
+/** structural: stays put across throttle · motor: moves with rpm/throttle · unclassified: cannot tell. */
+export type PeakKind = "structural" | "motor" | "unclassified";
+
+export interface LabelledPeak extends SpectralPeak {
+  kind: PeakKind;
+  /** Throttle bands (indices) in which the peak was seen. */
+  seenInBands: number[];
+}
+
+export interface AxisResult {
+  /** One-sided PSD, (deg/s)²/Hz, on the shared frequency grid. */
+  psd: number[];
+  peaks: LabelledPeak[];
+  /** Power in each analysis band, (deg/s)². */
+  bandPower: number[];
+  /** Median density above the floor corner, dB re 1 (deg/s)²/Hz. */
+  floorDb: number;
+  /** RMS over the analysed range (minFreqHz..maxHz), deg/s. */
+  rmsDegS: number;
+}
+
+/** The levels of one motor order in one throttle band: power in dB re 1 (deg/s)², per axis. */
+export interface OrderLevel {
+  /** 1, 2 or the blade count. */
+  order: number;
+  label: "1x" | "2x" | "blade-pass";
+  freqHz: number;
+  powerDb: Record<Axis, number>;
+}
+
+export interface MotorInBand {
+  motor: number;
+  meanRpm: number;
+  orders: OrderLevel[];
+}
+
+export interface ThrottleBandAxis {
+  /** Mean PSD of the band's segments, dB re 1 (deg/s)²/Hz, rounded to 0.01 dB. */
+  psdDb: number[];
+  /** Band power in dB, mean over segments, and its spread (standard deviation) over segments. */
+  bandDb: number[];
+  bandSpreadDb: number[];
+  floorDb: number;
+  peaks: SpectralPeak[];
+}
+
+export interface ThrottleBandResult {
+  index: number;
+  lo: number;
+  hi: number;
+  /** Time the throttle spent in this band, s. */
+  seconds: number;
+  /** Welch segments whose mean throttle fell in this band. */
+  segments: number;
+  meanThrottle: number;
+  axes: Record<Axis, ThrottleBandAxis>;
+  motors: MotorInBand[];
+}
+
+export interface MotorTrackPoint {
+  tS: number;
+  rotationHz: number;
+  /** 1× order power, dB, the largest over the three axes. */
+  order1Db: number;
+}
+
+export interface MotorSummary {
+  motor: number;
+  meanRpm: number;
+  /** The motor's 1× order through the log, at most a few hundred points. */
+  track: MotorTrackPoint[];
+}
+
+export interface LogAnalysis {
+  version: 1;
+  sampleRateHz: number;
+  durationS: number;
+  samples: number;
+  gaps: Gap[];
+  droppedRows: number;
+  metadata: Record<string, string>;
+  guesses: string[];
+  settings: {
+    nperseg: number;
+    noverlap: number;
+    window: WindowName;
+    average: Averaging;
+    binHz: number;
+    bladeCount: number;
+    minFreqHz: number;
+    /** Top of the trusted range: 90 % of Nyquist. */
+    maxFreqHz: number;
+    floorCornerHz: number;
+  };
+  segments: number;
+  freqHz: number[];
+  bands: FrequencyBand[];
+  axes: Record<Axis, AxisResult>;
+  hasThrottle: boolean;
+  throttleBands: ThrottleBandResult[];
+  motors: MotorSummary[];
+}

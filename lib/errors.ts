@@ -1,0 +1,121 @@
+/**
+ * Domain errors. Each class maps to one HTTP status and carries a sentence that is safe to show a
+ * user as it is: no stack traces, no internals. Anything that is not one of these is unexpected
+ * and is logged with context before a generic 500.
+ */
+
+export type ErrorCode =
+  | "bad-log"
+  | "bad-input"
+  | "bad-usage"
+  | "not-found"
+  | "unauthenticated"
+  | "forbidden"
+  | "limit-exceeded"
+  | "conflict";
+
+export abstract class DomainError extends Error {
+  abstract readonly code: ErrorCode;
+  abstract readonly httpStatus: number;
+}
+
+/** Where in a log file a problem was found. Lines and columns are 1-based, as an editor shows them. */
+export interface LogLocation {
+  line?: number;
+  column?: number;
+  columnName?: string;
+}
+
+/** A log file that cannot be read: the message names the line, column and what was expected. */
+export class LogFormatError extends DomainError {
+  readonly code = "bad-log" as const;
+  readonly httpStatus = 422;
+  readonly location: LogLocation;
+  constructor(message: string, location: LogLocation = {}) {
+    super(formatLocated(message, location));
+    this.name = "LogFormatError";
+    this.location = location;
+  }
+}
+
+function formatLocated(message: string, at: LogLocation): string {
+  const parts: string[] = [];
+  if (at.line !== undefined) parts.push(`line ${at.line}`);
+  if (at.column !== undefined) {
+    parts.push(at.columnName ? `column ${at.column} (${at.columnName})` : `column ${at.column}`);
+  } else if (at.columnName) {
+    parts.push(`column "${at.columnName}"`);
+  }
+  return parts.length > 0 ? `${parts.join(", ")}: ${message}` : message;
+}
+
+/** Input that fails validation (a form field, an option value, a column map). */
+export class InputError extends DomainError {
+  readonly code = "bad-input" as const;
+  readonly httpStatus = 400;
+  readonly field?: string;
+  constructor(message: string, field?: string) {
+    super(message);
+    this.name = "InputError";
+    this.field = field;
+  }
+}
+
+/** A command line that does not parse (CLI exit code 2). */
+export class UsageError extends DomainError {
+  readonly code = "bad-usage" as const;
+  readonly httpStatus = 400;
+  constructor(message: string) {
+    super(message);
+    this.name = "UsageError";
+  }
+}
+
+export class NotFoundError extends DomainError {
+  readonly code = "not-found" as const;
+  readonly httpStatus = 404;
+  constructor(what: string) {
+    super(`${what} was not found.`);
+    this.name = "NotFoundError";
+  }
+}
+
+export class UnauthenticatedError extends DomainError {
+  readonly code = "unauthenticated" as const;
+  readonly httpStatus = 401;
+  constructor(message = "Sign in first.") {
+    super(message);
+    this.name = "UnauthenticatedError";
+  }
+}
+
+export class ForbiddenError extends DomainError {
+  readonly code = "forbidden" as const;
+  readonly httpStatus = 403;
+  constructor(message = "Your role in this team does not allow that.") {
+    super(message);
+    this.name = "ForbiddenError";
+  }
+}
+
+export class LimitExceededError extends DomainError {
+  readonly code = "limit-exceeded" as const;
+  readonly httpStatus = 413;
+  constructor(message: string) {
+    super(message);
+    this.name = "LimitExceededError";
+  }
+}
+
+export class ConflictError extends DomainError {
+  readonly code = "conflict" as const;
+  readonly httpStatus = 409;
+  constructor(message: string) {
+    super(message);
+    this.name = "ConflictError";
+  }
+}
+
+export function isDomainError(e: unknown): e is DomainError {
+  return e instanceof DomainError;
+}

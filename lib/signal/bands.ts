@@ -1,0 +1,57 @@
+/** Integrals and summaries of a one-sided PSD on a uniform grid (bin k at k·binHz). */
+
+/** A frequency band [loHz, hiHz). */
+export interface FrequencyBand {
+  loHz: number;
+  hiHz: number;
+}
+
+/** Bin index range [first, end) of the bins whose centres fall inside the band. */
+export function bandBins(band: FrequencyBand, binHz: number, bins: number): { first: number; end: number } {
+  const first = Math.max(0, Math.ceil(band.loHz / binHz - 1e-9));
+  const end = Math.min(bins, Math.ceil(band.hiHz / binHz - 1e-9));
+  return { first, end: Math.max(first, end) };
+}
+
+/**
+ * Power in a band: Σ PSD·Δf over its bins, in (unit)² for a density in (unit)²/Hz.
+ * Rectangle rule, which is exact for Parseval's sum over the whole one-sided spectrum.
+ */
+export function bandPower(psd: Float64Array, binHz: number, band: FrequencyBand): number {
+  const { first, end } = bandBins(band, binHz, psd.length);
+  let sum = 0;
+  for (let k = first; k < end; k++) sum += psd[k] ?? 0;
+  return sum * binHz;
+}
+
+/** Median PSD over the bins at or above `cornerHz` (and below `maxHz`): a robust noise floor. */
+export function noiseFloor(psd: Float64Array, binHz: number, cornerHz: number, maxHz = Infinity): number {
+  const { first, end } = bandBins({ loHz: cornerHz, hiHz: maxHz }, binHz, psd.length);
+  if (end <= first) return Number.NaN;
+  const values = psd.slice(first, end).sort();
+  const mid = values.length >> 1;
+  return values.length % 2 === 1 ? (values[mid] ?? 0) : ((values[mid - 1] ?? 0) + (values[mid] ?? 0)) / 2;
+}
+
+/** 10·log10 of a power, floored so that zero power gives a finite, very low level. */
+export function toDb(power: number): number {
+  return 10 * Math.log10(Math.max(power, 1e-30));
+}
+
+/** dB of every value into a new array. */
+export function arrayToDb(values: Float64Array): Float64Array {
+  const out = new Float64Array(values.length);
+  for (let i = 0; i < values.length; i++) out[i] = toDb(values[i] ?? 0);
+  return out;
+}
+
+/** Linear interpolation of y(x) on a uniform grid x = k·step; clamps outside the grid. */
+export function interpolateUniform(y: ArrayLike<number>, step: number, x: number): number {
+  const pos = x / step;
+  if (pos <= 0) return y[0] ?? Number.NaN;
+  const last = y.length - 1;
+  if (pos >= last) return y[last] ?? Number.NaN;
+  const i = Math.floor(pos);
+  const t = pos - i;
+  return (y[i] ?? 0) * (1 - t) + (y[i + 1] ?? 0) * t;
+}
