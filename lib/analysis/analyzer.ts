@@ -3,8 +3,10 @@ import { AXES, type Axis } from "../logs/columns";
 import type { Gap, LogInfo, LogSink, ReadSummary, SampleBlock } from "../logs/read-log";
 import { arrayToDb, bandBins, bandPower, noiseFloor, toDb, type FrequencyBand } from "../signal/bands";
 import { spectralPeaks } from "../signal/peaks";
+import { round } from "../signal/stats";
 import { SegmentPeriodogram, defaultNperseg, medianAcross, medianBias, resolveWelchOptions } from "../signal/welch";
 import { classifyPeaks } from "./classify";
+import { OrderTracker, type OrderBlock } from "./order-tracker";
 import {
   DEFAULT_ANALYSIS,
   USABLE_NYQUIST_FRACTION,
@@ -36,8 +38,12 @@ interface BandAccumulator {
   dbSum: Float64Array[];
   dbSqSum: Float64Array[];
   rpmSum: Float64Array;
+  /** per motor: Σ mean rpm of the order blocks */
   /** per motor, per order, per axis: Σ power (linear) */
   orderPowerSum: Float64Array[][];
+  /** per motor, per order: order-tracking blocks that measured it (below the trusted top) */
+  orderCount: Float64Array[];
+  orderBlocks: number;
 }
 
 /**
@@ -68,6 +74,7 @@ export class LogAnalyzer implements LogSink {
   private throttleSamples: Float64Array = new Float64Array(1);
   private tracks: MotorTrackPoint[][] = [];
   private orders: { order: number; label: OrderLevel["label"] }[] = [];
+  private tracker: OrderTracker | null = null;
 
   constructor(settings: Partial<AnalysisSettings> = {}) {
     this.settings = { ...DEFAULT_ANALYSIS, ...settings };
@@ -89,8 +96,8 @@ export class LogAnalyzer implements LogSink {
     const bins = this.periodogram.bins;
     this.bandRanges = this.bands.map((b) => bandBins(b, this.periodogram?.binHz ?? 1, bins));
     const motors = info.motors.length;
-    // channels: 3 gyro, throttle, motors
-    this.buffers = Array.from({ length: 4 + motors }, () => new Float64Array(this.nperseg));
+    // channels: 3 gyro axes and throttle
+    this.buffers = Array.from({ length: 4 }, () => new Float64Array(this.nperseg));
     this.segmentPsd = AXES.map(() => new Float64Array(bins));
     this.overallSum = AXES.map(() => new Float64Array(bins));
     this.stored = AXES.map(() => []);
@@ -110,17 +117,44 @@ export class LogAnalyzer implements LogSink {
       dbSqSum: AXES.map(() => new Float64Array(this.bands.length)),
       rpmSum: new Float64Array(motors),
       orderPowerSum: Array.from({ length: motors }, () => this.orders.map(() => new Float64Array(3))),
+      orderCount: Array.from({ length: motors }, () => new Float64Array(this.orders.length)),
+      orderBlocks: 0,
     }));
+    this.tracker =
+      motors > 0
+        ? new OrderTracker(fs, motors, this.orders.map((o) => o.order), this.maxFreqHz, (b) => this.orderBlock(b))
+        : null;
     this.tracks = Array.from({ length: motors }, () => []);
   }
 
   gap(_gap: Gap): void {
-    // No Welch segment may straddle a gap: start filling afresh.
+    // No Welch segment (nor order block) may straddle a gap: start filling afresh.
     this.fill = 0;
+    this.tracker?.reset();
+  }
+
+  private orderBlock(b: OrderBlock): void {
+    const acc = this.accumulators[throttleBandOf(b.throttle, this.throttleBandCount)] as BandAccumulator;
+    acc.orderBlocks++;
+    let order1Max = Number.NaN;
+    for (let m = 0; m < b.rotationHz.length; m++) {
+      acc.rpmSum[m] = (acc.rpmSum[m] ?? 0) + (b.rotationHz[m] ?? 0) * 60;
+      const counts = acc.orderCount[m] as Float64Array;
+      this.orders.forEach((_, j) => {
+        const power = b.power[m]?.[j] as Float64Array;
+        if (!Number.isFinite(power[0])) return;
+        const sums = acc.orderPowerSum[m]?.[j] as Float64Array;
+        counts[j] = (counts[j] ?? 0) + 1;
+        for (let a = 0; a < 3; a++) sums[a] = (sums[a] ?? 0) + (power[a] ?? 0);
+        if (j === 0) order1Max = Math.max(power[0] ?? 0, power[1] ?? 0, power[2] ?? 0);
+      });
+      this.tracks[m]?.push({ tS: b.tS, rotationHz: b.rotationHz[m] ?? 0, order1Db: Number.isNaN(order1Max) ? Number.NaN : toDb(order1Max) });
+    }
   }
 
   block(block: SampleBlock): void {
     const n = block.length;
+    this.tracker?.push(n, block.timeS, block.gyro, block.throttle, block.rpm);
     const buffers = this.buffers;
     const throttle = block.throttle;
     const bandCount = this.throttleBandCount;
@@ -132,7 +166,6 @@ export class LogAnalyzer implements LogSink {
       (buffers[2] as Float64Array)[f] = block.gyro[2][i] ?? 0;
       const thr = throttle ? (throttle[i] ?? 0) : 0;
       (buffers[3] as Float64Array)[f] = thr;
-      for (let m = 0; m < block.rpm.length; m++) (buffers[4 + m] as Float64Array)[f] = block.rpm[m]?.[i] ?? 0;
       const band = throttleBandOf(thr, bandCount);
       this.throttleSamples[band] = (this.throttleSamples[band] ?? 0) + 1;
       this.fill = f + 1;
@@ -180,27 +213,6 @@ export class LogAnalyzer implements LogSink {
         dbSum[b] = (dbSum[b] ?? 0) + db;
         dbSq[b] = (dbSq[b] ?? 0) + db * db;
       });
-    }
-    const motors = this.buffers.length - 4;
-    for (let m = 0; m < motors; m++) {
-      const rpmBuf = this.buffers[4 + m] as Float64Array;
-      let rpm = 0;
-      for (let i = 0; i < n; i++) rpm += rpmBuf[i] ?? 0;
-      rpm /= n;
-      acc.rpmSum[m] = (acc.rpmSum[m] ?? 0) + rpm;
-      const rotationHz = rpm / 60;
-      const orderSums = acc.orderPowerSum[m] as Float64Array[];
-      let order1Max = 0;
-      this.orders.forEach((o, j) => {
-        const f = rotationHz * o.order;
-        const sums = orderSums[j] as Float64Array;
-        for (let a = 0; a < 3; a++) {
-          const p = orderPower(this.segmentPsd[a] as Float64Array, binHz, f, this.maxFreqHz);
-          sums[a] = (sums[a] ?? 0) + p;
-          if (j === 0) order1Max = Math.max(order1Max, p);
-        }
-      });
-      this.tracks[m]?.push({ tS: this.bufferStartS, rotationHz, order1Db: toDb(order1Max) });
     }
     this.segments++;
   }
@@ -267,14 +279,15 @@ export class LogAnalyzer implements LogSink {
         };
       });
       const motors: MotorInBand[] = info.motors.map((motor, m) => {
-        const meanRpm = (acc.rpmSum[m] ?? 0) / count;
+        const meanRpm = acc.orderBlocks > 0 ? (acc.rpmSum[m] ?? 0) / acc.orderBlocks : 0;
         return {
           motor,
           meanRpm: round(meanRpm, 1),
           orders: this.orders.map((o, j) => {
             const sums = acc.orderPowerSum[m]?.[j] as Float64Array;
+            const clear = acc.orderCount[m]?.[j] ?? 0;
             const powerDb = {} as Record<Axis, number>;
-            AXES.forEach((axis, a) => (powerDb[axis] = round(toDb((sums[a] ?? 0) / count), 3)));
+            AXES.forEach((axis, a) => (powerDb[axis] = clear > 0 ? round(toDb((sums[a] ?? 0) / clear), 3) : Number.NaN));
             return { order: o.order, label: o.label, freqHz: round((meanRpm / 60) * o.order, 2), powerDb };
           }),
         };
@@ -354,20 +367,6 @@ export function throttleBandOf(throttle: number, bands: number): number {
   return i < 0 ? 0 : i >= bands ? bands - 1 : i;
 }
 
-/**
- * Power of a motor order in one segment: Σ PSD·Δf over ±(2 bins + 1 % of f) around it, which holds
- * a Hann-windowed tone's main lobe and the smear of a slowly changing rpm. 0 above the trusted range.
- */
-export function orderPower(psd: Float64Array, binHz: number, freqHz: number, maxHz: number): number {
-  if (!(freqHz > 0) || freqHz > maxHz) return 0;
-  const half = 2 * binHz + 0.01 * freqHz;
-  const first = Math.max(1, Math.round((freqHz - half) / binHz));
-  const last = Math.min(psd.length - 1, Math.round((freqHz + half) / binHz));
-  let sum = 0;
-  for (let k = first; k <= last; k++) sum += psd[k] ?? 0;
-  return sum * binHz;
-}
-
 function decimateTrack(track: MotorTrackPoint[], maxPoints: number): MotorTrackPoint[] {
   if (track.length <= maxPoints) return track.map(roundPoint);
   const group = Math.ceil(track.length / maxPoints);
@@ -379,19 +378,19 @@ function decimateTrack(track: MotorTrackPoint[], maxPoints: number): MotorTrackP
       roundPoint({
         tS: part.reduce((s, p) => s + p.tS, 0) / n,
         rotationHz: part.reduce((s, p) => s + p.rotationHz, 0) / n,
-        order1Db: toDb(part.reduce((s, p) => s + 10 ** (p.order1Db / 10), 0) / n),
+        order1Db: meanDb(part.map((p) => p.order1Db)),
       }),
     );
   }
   return out;
 }
 
-function roundPoint(p: MotorTrackPoint): MotorTrackPoint {
-  return { tS: round(p.tS, 3), rotationHz: round(p.rotationHz, 2), order1Db: round(p.order1Db, 2) };
+/** Power mean of dB values, skipping NaN (segments where the order was not clear). */
+function meanDb(values: number[]): number {
+  const v = values.filter(Number.isFinite);
+  return v.length === 0 ? Number.NaN : toDb(v.reduce((s, x) => s + 10 ** (x / 10), 0) / v.length);
 }
 
-function round(v: number, digits: number): number {
-  if (!Number.isFinite(v)) return v;
-  const k = 10 ** digits;
-  return Math.round(v * k) / k;
+function roundPoint(p: MotorTrackPoint): MotorTrackPoint {
+  return { tS: round(p.tS, 3), rotationHz: round(p.rotationHz, 2), order1Db: round(p.order1Db, 2) };
 }

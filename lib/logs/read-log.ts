@@ -8,6 +8,7 @@ import {
   type ColumnMap,
   type ThrottleUnit,
 } from "./columns";
+import { round } from "../signal/stats";
 import { EMPTY_CELL, parseDecimal } from "./parse-number";
 
 /**
@@ -627,11 +628,6 @@ function concat(a: Uint8Array, b: Uint8Array): Uint8Array {
   out.set(a, 0);
   out.set(b, a.length);
   return out;
-}
-
-function round(v: number, digits: number): number {
-  const k = 10 ** digits;
-  return Math.round(v * k) / k;
 }
 
 function formatSeconds(s: number): string {

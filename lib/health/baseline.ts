@@ -1,0 +1,225 @@
+import type { LogAnalysis } from "../analysis/types";
+import { InputError } from "../errors";
+import { AXES, type Axis } from "../logs/columns";
+import type { FrequencyBand } from "../signal/bands";
+import { mean, median, round, stdDev } from "../signal/stats";
+
+/**
+ * An airframe's known-good reference, built from one or more logs flown when it was healthy.
+ * Everything is kept per axis and per throttle band, so a later log is compared like with like.
+ */
+
+export interface BaselineAxisBand {
+  /** Band power, dB re 1 (deg/s)², mean over logs. */
+  bandDb: number[];
+  /** Scatter of one segment's band level, dB (pooled over the logs). */
+  segmentSpreadDb: number[];
+  /** Scatter of the per-log mean band level across logs, dB (0 for a single log). */
+  logSpreadDb: number[];
+  floorDb: number;
+  floorLogSpreadDb: number;
+  /** Mean PSD in dB on a grid of binHz, for levels at any frequency. */
+  psdDb: number[];
+}
+
+export interface BaselineMotorBand {
+  motor: number;
+  meanRpm: number;
+  /** 1× order power per axis, dB. */
+  order1Db: Record<Axis, number>;
+  logSpreadDb: number;
+}
+
+export interface BaselineThrottleBand {
+  index: number;
+  lo: number;
+  hi: number;
+  seconds: number;
+  segments: number;
+  /** Segments of the log with the fewest in this band (what one log's scatter is judged by). */
+  segmentsPerLog: number;
+  meanThrottle: number;
+  axes: Record<Axis, BaselineAxisBand>;
+  motors: BaselineMotorBand[];
+}
+
+export interface BaselineMode {
+  axis: Axis;
+  freqHz: number;
+  levelDb: number;
+  /** Range of the mode's frequency over the logs, percent of freqHz. */
+  spreadPct: number;
+  /** Logs the mode was found in. */
+  seenIn: number;
+}
+
+export interface Baseline {
+  version: 1;
+  logs: number;
+  sampleRateHz: number;
+  binHz: number;
+  minFreqHz: number;
+  /** Top of the range every baseline log covers. */
+  maxFreqHz: number;
+  floorCornerHz: number;
+  bands: FrequencyBand[];
+  hasThrottle: boolean;
+  motors: number[];
+  throttleBands: BaselineThrottleBand[];
+  modes: BaselineMode[];
+  /** Every peak frequency seen in any baseline log, per axis (for telling new peaks). */
+  peaks: Record<Axis, number[]>;
+}
+
+const MIN_BAND_SEGMENTS = 8;
+/** Modes within this fraction of each other across logs are one mode. */
+const MODE_CLUSTER_FRACTION = 0.04;
+
+/**
+ * Builds a baseline from analyses of known-good logs of one airframe. Throws InputError when
+ * given none or when the logs were analysed with different band layouts.
+ */
+export function buildBaseline(analyses: readonly LogAnalysis[]): Baseline {
+  const first = analyses[0];
+  if (!first) throw new InputError("a baseline needs at least one known-good log");
+  const throttleCount = first.throttleBands.length;
+  for (const a of analyses) {
+    if (a.throttleBands.length !== throttleCount) {
+      throw new InputError("the baseline logs were analysed with different throttle bands; analyse them again with the same settings");
+    }
+  }
+  const maxFreqHz = Math.min(...analyses.map((a) => a.settings.maxFreqHz));
+  const sampleRateHz = Math.min(...analyses.map((a) => a.sampleRateHz));
+  const lowest = analyses.find((a) => a.sampleRateHz === sampleRateHz) ?? first;
+  const bands = lowest.bands.filter((b) => b.hiHz <= maxFreqHz);
+  const floorCornerHz = Math.max(...analyses.map((a) => a.settings.floorCornerHz));
+  const binHz = lowest.settings.binHz;
+  const gridBins = Math.floor(maxFreqHz / binHz) + 1;
+  const motors = first.motors.map((m) => m.motor).filter((m) => analyses.every((a) => a.motors.some((x) => x.motor === m)));
+
+  const throttleBands: BaselineThrottleBand[] = [];
+  for (let index = 0; index < throttleCount; index++) {
+    const parts = analyses
+      .map((a) => ({ a, band: a.throttleBands[index] }))
+      .filter((p): p is { a: LogAnalysis; band: NonNullable<typeof p.band> } => !!p.band && p.band.segments >= MIN_BAND_SEGMENTS);
+    if (parts.length === 0) continue;
+    const ref = parts[0]?.band;
+    if (!ref) continue;
+    const segments = parts.reduce((s, p) => s + p.band.segments, 0);
+    const axes = {} as Record<Axis, BaselineAxisBand>;
+    for (const axis of AXES) {
+      const perLog = parts.map((p) => bandLevelsOn(p.a, p.band.axes[axis].bandDb, bands));
+      const spreads = parts.map((p) => bandLevelsOn(p.a, p.band.axes[axis].bandSpreadDb, bands));
+      const floors = parts.map((p) => p.band.axes[axis].floorDb);
+      axes[axis] = {
+        bandDb: bands.map((_, b) => mean(perLog.map((l) => l[b] ?? Number.NaN))),
+        segmentSpreadDb: bands.map((_, b) => Math.sqrt(mean(spreads.map((s) => (s[b] ?? 0) ** 2)))),
+        logSpreadDb: bands.map((_, b) => stdDev(perLog.map((l) => l[b] ?? Number.NaN))),
+        floorDb: mean(floors),
+        floorLogSpreadDb: stdDev(floors),
+        psdDb: Array.from({ length: gridBins }, (_, k) =>
+          round(mean(parts.map((p) => dbAt(p.band.axes[axis].psdDb, p.a.settings.binHz, k * binHz))), 2),
+        ),
+      };
+    }
+    const motorBands: BaselineMotorBand[] = motors.map((motor) => {
+      const found = parts.map((p) => p.band.motors.find((m) => m.motor === motor));
+      const order1 = found.map((m) => m?.orders[0]?.powerDb);
+      const order1Db = {} as Record<Axis, number>;
+      for (const axis of AXES) order1Db[axis] = mean(order1.map((o) => o?.[axis] ?? Number.NaN));
+      const strongest = order1.map((o) => (o ? Math.max(o.roll, o.pitch, o.yaw) : Number.NaN));
+      return {
+        motor,
+        meanRpm: mean(found.map((m) => m?.meanRpm ?? Number.NaN)),
+        order1Db,
+        logSpreadDb: stdDev(strongest),
+      };
+    });
+    throttleBands.push({
+      index,
+      lo: ref.lo,
+      hi: ref.hi,
+      seconds: parts.reduce((s, p) => s + p.band.seconds, 0),
+      segments,
+      segmentsPerLog: Math.min(...parts.map((p) => p.band.segments)),
+      meanThrottle: parts.reduce((s, p) => s + p.band.meanThrottle * p.band.segments, 0) / segments,
+      axes,
+      motors: motorBands,
+    });
+  }
+  if (throttleBands.length === 0) {
+    throw new InputError(
+      `no throttle band has ${MIN_BAND_SEGMENTS} analysis segments in the baseline logs; fly longer baseline logs`,
+    );
+  }
+
+  const peaks = {} as Record<Axis, number[]>;
+  const modes: BaselineMode[] = [];
+  for (const axis of AXES) {
+    const all = analyses.flatMap((a) => [
+      ...a.axes[axis].peaks.map((p) => p.freqHz),
+      ...a.throttleBands.flatMap((b) => b.axes[axis].peaks.map((p) => p.freqHz)),
+    ]);
+    peaks[axis] = [...new Set(all.map((f) => round(f, 1)))].filter((f) => f <= maxFreqHz).sort((x, y) => x - y);
+    const structural = analyses.map((a) => a.axes[axis].peaks.filter((p) => p.kind === "structural" && p.freqHz <= maxFreqHz));
+    for (const cluster of clusterModes(structural)) {
+      // A mode must show in most baseline logs (all of two, two of three …) to be trusted.
+      if (cluster.length < Math.ceil((2 * analyses.length) / 3)) continue;
+      const freqs = cluster.map((p) => p.freqHz);
+      const f = median(freqs);
+      modes.push({
+        axis,
+        freqHz: round(f, 2),
+        levelDb: round(mean(cluster.map((p) => p.levelDb)), 2),
+        spreadPct: round(((Math.max(...freqs) - Math.min(...freqs)) / f) * 100, 2),
+        seenIn: cluster.length,
+      });
+    }
+  }
+
+  return {
+    version: 1,
+    logs: analyses.length,
+    sampleRateHz,
+    binHz,
+    minFreqHz: first.settings.minFreqHz,
+    maxFreqHz,
+    floorCornerHz,
+    bands,
+    hasThrottle: analyses.every((a) => a.hasThrottle),
+    motors,
+    throttleBands,
+    modes,
+    peaks,
+  };
+}
+
+/** A log's per-band values re-indexed onto the baseline's bands (logs may have more bands). */
+function bandLevelsOn(a: LogAnalysis, values: number[], bands: FrequencyBand[]): number[] {
+  return bands.map((b) => {
+    const i = a.bands.findIndex((x) => x.loHz === b.loHz && x.hiHz === b.hiHz);
+    return i >= 0 ? (values[i] ?? Number.NaN) : Number.NaN;
+  });
+}
+
+function clusterModes(perLog: { freqHz: number; levelDb: number }[][]): { freqHz: number; levelDb: number }[][] {
+  const clusters: { freqHz: number; levelDb: number }[][] = [];
+  for (const peaks of perLog) {
+    for (const p of peaks) {
+      const home = clusters.find((c) => Math.abs((c[0]?.freqHz ?? 0) - p.freqHz) <= MODE_CLUSTER_FRACTION * p.freqHz);
+      if (home) home.push(p);
+      else clusters.push([p]);
+    }
+  }
+  return clusters;
+}
+
+/** Level of a dB spectrum with spacing binHz at a frequency, linearly interpolated. */
+export function dbAt(psdDb: readonly number[], binHz: number, freqHz: number): number {
+  const pos = freqHz / binHz;
+  const i = Math.floor(pos);
+  if (i < 0) return psdDb[0] ?? Number.NaN;
+  if (i >= psdDb.length - 1) return psdDb[psdDb.length - 1] ?? Number.NaN;
+  const t = pos - i;
+  return (psdDb[i] ?? 0) * (1 - t) + (psdDb[i + 1] ?? 0) * t;
+}

@@ -1,0 +1,378 @@
+import type { LogAnalysis, ThrottleBandResult } from "../analysis/types";
+import { AXES, type Axis } from "../logs/columns";
+import { median, round, weightedMean } from "../signal/stats";
+import { dbAt, type Baseline, type BaselineThrottleBand } from "./baseline";
+import {
+  DEFAULT_THRESHOLDS,
+  penaltyFor,
+  statusForScore,
+  stepOf,
+  worstStatus,
+  type HealthThresholds,
+  type Status,
+  type StepThresholds,
+} from "./thresholds";
+
+/**
+ * Compares one log with an airframe's baseline, like with like: only throttle bands that both
+ * cover with enough data, only frequencies both logs can show, baseline levels interpolated to
+ * the log's own mean throttle in each band. Harder flying moves time between bands; it does not
+ * raise the level within a band, so it does not read as damage.
+ */
+
+export type FindingKind = "mode-shift" | "new-peak" | "band-rise" | "floor-rise" | "motor-order";
+
+export interface Finding {
+  axis: Axis;
+  kind: FindingKind;
+  freqHz: number;
+  baselineFreqHz?: number;
+  deltaDb?: number;
+  shiftPct?: number;
+  motor?: number;
+  severity: Exclude<Status, "ok">;
+  /** Points this finding took off the score. */
+  points: number;
+  text: string;
+}
+
+export interface NotCompared {
+  what: string;
+  reason: string;
+}
+
+export interface Assessment {
+  score: number;
+  status: Status;
+  findings: Finding[];
+  notCompared: NotCompared[];
+  /** Throttle bands compared, as "0.38–0.50". */
+  comparedBands: string[];
+}
+
+export interface CompareOptions {
+  thresholds?: HealthThresholds;
+  /** Names of motor positions for the sentences, e.g. { 3: "rear-right" }. */
+  motorPositions?: Record<number, string>;
+  /** Segments a throttle band of the log needs to be compared. Default 8. */
+  minBandSegments?: number;
+}
+
+interface MatchedBand {
+  log: ThrottleBandResult;
+  base: BaselineThrottleBand;
+  label: string;
+}
+
+const MODE_SEARCH = { below: 0.7, above: 1.15 };
+
+export function compareWithBaseline(log: LogAnalysis, baseline: Baseline, options: CompareOptions = {}): Assessment {
+  const h = options.thresholds ?? DEFAULT_THRESHOLDS;
+  const minSegments = options.minBandSegments ?? 8;
+  const notCompared: NotCompared[] = [];
+  const maxHz = Math.min(log.settings.maxFreqHz, baseline.maxFreqHz);
+  if (log.settings.maxFreqHz < baseline.maxFreqHz - 1) {
+    notCompared.push({ what: `above ${Math.round(maxHz)} Hz`, reason: `this log was recorded at ${Math.round(log.sampleRateHz)} Hz and cannot show higher frequencies` });
+  } else if (baseline.maxFreqHz < log.settings.maxFreqHz - 1) {
+    notCompared.push({ what: `above ${Math.round(maxHz)} Hz`, reason: `the baseline logs were recorded at ${Math.round(baseline.sampleRateHz)} Hz` });
+  }
+  if (log.hasThrottle !== baseline.hasThrottle) {
+    notCompared.push({ what: "throttle matching", reason: "only one of this log and the baseline has a throttle column; levels are compared over the whole log" });
+  }
+
+  const matched: MatchedBand[] = [];
+  for (const band of log.throttleBands) {
+    const label = bandLabel(band.lo, band.hi);
+    const base = baseline.throttleBands.find((b) => b.index === band.index);
+    if (band.segments < minSegments) {
+      if (band.segments > 0 && base) notCompared.push({ what: `throttle ${label}`, reason: `only ${band.seconds.toFixed(1)} s in this log` });
+      continue;
+    }
+    if (!base) {
+      notCompared.push({ what: `throttle ${label}`, reason: "the baseline has no flying in this band" });
+      continue;
+    }
+    matched.push({ log: band, base, label });
+  }
+  if (matched.length === 0) {
+    return {
+      score: Number.NaN,
+      status: "watch",
+      findings: [],
+      notCompared: [...notCompared, { what: "whole log", reason: "no throttle band has enough flying in both this log and the baseline" }],
+      comparedBands: [],
+    };
+  }
+
+  const orders = motorOrders(matched, baseline, options.motorPositions ?? {}, h);
+  const shifts = modeShifts(log, baseline, maxHz, orders, h);
+  const findings: Finding[] = [
+    ...shifts,
+    ...orders,
+    ...floorRises(log, baseline, matched, h, maxHz),
+  ];
+  const floorRise = findings.some((f) => f.kind === "floor-rise");
+  // Broadband noise above the corner lifts every peak and band up there: the floor rise says it once.
+  findings.push(
+    ...newPeaks(log, baseline, matched, shifts, maxHz, h).filter((f) => !(floorRise && f.freqHz >= baseline.floorCornerHz)),
+  );
+  findings.push(...bandRises(log, matched, baseline, findings, h));
+  findings.sort((a, b) => b.points - a.points);
+
+  const taken = findings.reduce((s, f) => s + f.points, 0);
+  const score = Math.max(0, Math.round(100 - taken));
+  let status = statusForScore(score, h);
+  for (const f of findings) status = worstStatus(status, f.severity);
+  return { score, status, findings, notCompared, comparedBands: matched.map((m) => m.label) };
+}
+
+export function bandLabel(lo: number, hi: number): string {
+  return `${lo.toFixed(2)}–${hi.toFixed(2)}`;
+}
+
+/**
+ * Baseline value at the log band's own mean throttle: linear in throttle between the baseline's
+ * neighbouring bands, so a band flown a little harder is held to a slightly higher level.
+ */
+function atThrottle(baseline: Baseline, throttle: number, value: (b: BaselineThrottleBand) => number): number {
+  const points = baseline.throttleBands
+    .map((b) => ({ x: b.meanThrottle, y: value(b) }))
+    .filter((p) => Number.isFinite(p.y))
+    .sort((a, b) => a.x - b.x);
+  const first = points[0];
+  const last = points[points.length - 1];
+  if (!first || !last) return Number.NaN;
+  if (throttle <= first.x) return first.y;
+  if (throttle >= last.x) return last.y;
+  for (let i = 1; i < points.length; i++) {
+    const p = points[i - 1];
+    const q = points[i];
+    if (p && q && throttle <= q.x) return p.y + ((q.y - p.y) * (throttle - p.x)) / (q.x - p.x);
+  }
+  return last.y;
+}
+
+function severityAndPoints(magnitude: number, t: StepThresholds, h: HealthThresholds) {
+  const severity = stepOf(magnitude, t);
+  return severity ? { severity, points: penaltyFor(magnitude, t, h) } : null;
+}
+
+function modeShifts(log: LogAnalysis, baseline: Baseline, maxHz: number, orders: Finding[], h: HealthThresholds): Finding[] {
+  const out: Finding[] = [];
+  for (const axis of AXES) {
+    const modes = baseline.modes.filter((m) => m.axis === axis && m.freqHz * MODE_SEARCH.above <= maxHz);
+    // A motor order that grew strong enough to be found is a peak of its own, not a moved mode.
+    const candidates = log.axes[axis].peaks.filter(
+      (p) => p.kind !== "motor" && !orders.some((o) => Math.abs(o.freqHz - p.freqHz) <= 0.05 * p.freqHz),
+    );
+    // Greedy assignment by cost: relative frequency distance, with a level mismatch as tie-breaker,
+    // so that a weak neighbouring mode cannot steal the peak of a strong one that moved.
+    const pairs = modes.flatMap((m) =>
+      candidates
+        .filter((p) => p.freqHz >= m.freqHz * MODE_SEARCH.below && p.freqHz <= m.freqHz * MODE_SEARCH.above)
+        .map((p) => ({ m, p, cost: Math.abs(Math.log(p.freqHz / m.freqHz)) / 0.05 + Math.abs(p.levelDb - m.levelDb) / 6 })),
+    );
+    pairs.sort((a, b) => a.cost - b.cost);
+    const usedModes = new Set<typeof modes[number]>();
+    const usedPeaks = new Set<typeof candidates[number]>();
+    for (const { m, p } of pairs) {
+      if (usedModes.has(m) || usedPeaks.has(p)) continue;
+      usedModes.add(m);
+      usedPeaks.add(p);
+      const shiftPct = ((p.freqHz - m.freqHz) / m.freqHz) * 100;
+      // The baseline's own scatter of this mode is not held against the log.
+      // A frame does not stiffen by itself: a rise is most often a peak estimate wobbling on a broad
+      // mode, so it counts half.
+      const magnitude = (shiftPct < 0 ? -shiftPct : shiftPct / 2) - m.spreadPct / 2;
+      const graded = severityAndPoints(magnitude, h.modeShiftPct, h);
+      if (!graded) continue;
+      const dropped = shiftPct < 0;
+      const drop = -shiftPct / 100;
+      const stiffnessLoss = (1 - (1 - drop) ** 2) * 100;
+      const text = dropped
+        ? `${axis} mode at ${Math.round(m.freqHz)} Hz dropped ${Math.abs(shiftPct).toFixed(0)} % since baseline (now ${Math.round(p.freqHz)} Hz): about ${stiffnessLoss.toFixed(0)} % less stiffness. Check the arms for cracks and the frame screws for tightness.`
+        : `${axis} mode at ${Math.round(m.freqHz)} Hz rose ${shiftPct.toFixed(0)} % since baseline (now ${Math.round(p.freqHz)} Hz): the frame is stiffer or lighter than it was. If arms or the stack were changed, set a new baseline.`;
+      // A stiffer frame is a change to note, not a danger.
+      const severity = dropped ? graded.severity : "watch";
+      const points = dropped ? graded.points : Math.min(graded.points, h.penalty.watch);
+      out.push({ axis, kind: "mode-shift", freqHz: round(p.freqHz, 1), baselineFreqHz: round(m.freqHz, 1), shiftPct: round(shiftPct, 1), severity, points, text });
+    }
+  }
+  return out;
+}
+
+function motorOrders(matched: MatchedBand[], baseline: Baseline, positions: Record<number, string>, h: HealthThresholds): Finding[] {
+  const rises = baseline.motors.map((motor) => {
+    let best: { axis: Axis; delta: number; freqHz: number } | null = null;
+    for (const axis of AXES) {
+      const deltas: number[] = [];
+      const weights: number[] = [];
+      const freqs: number[] = [];
+      for (const m of matched) {
+        const order = m.log.motors.find((x) => x.motor === motor)?.orders[0];
+        const level = order?.powerDb[axis];
+        if (!order || level === undefined || !Number.isFinite(level) || !(order.freqHz > 0)) continue;
+        const expected = atThrottle(baseline, m.log.meanThrottle, (b) => b.motors.find((x) => x.motor === motor)?.order1Db[axis] ?? Number.NaN);
+        if (!Number.isFinite(expected)) continue;
+        deltas.push(level - expected);
+        weights.push(m.log.segments);
+        freqs.push(order.freqHz);
+      }
+      const delta = weightedMean(deltas, weights);
+      if (Number.isFinite(delta) && (!best || delta > best.delta)) best = { axis, delta, freqHz: weightedMean(freqs, weights) };
+    }
+    return { motor, best };
+  });
+  const out: Finding[] = [];
+  for (const { motor, best } of rises) {
+    if (!best) continue;
+    // A bent prop shakes at its own motor's rotation rate. When every motor's order rose alike the
+    // cause is broadband (bearings, airflow) and other findings say so; what counts here is how far
+    // this motor stands out from the others.
+    const others = rises.filter((r) => r.motor !== motor && r.best).map((r) => r.best?.delta ?? 0);
+    const excess = best.delta - Math.max(0, median(others));
+    if (!(excess >= h.levelDb.watch)) continue;
+    const graded = severityAndPoints(best.delta, h.levelDb, h);
+    if (!graded) continue;
+    const where = positions[motor] ? ` (${positions[motor]})` : "";
+    out.push({
+      axis: best.axis,
+      kind: "motor-order",
+      freqHz: round(best.freqHz, 1),
+      motor,
+      deltaDb: round(best.delta, 1),
+      ...graded,
+      text: `motor ${motor}${where} vibrates ${best.delta.toFixed(0)} dB more at its rotation rate (about ${Math.round(best.freqHz)} Hz) than in the baseline: look for a bent or chipped prop on it, then a bent motor shaft.`,
+    });
+  }
+  return out;
+}
+
+function newPeaks(log: LogAnalysis, baseline: Baseline, matched: MatchedBand[], shifts: Finding[], maxHz: number, h: HealthThresholds): Finding[] {
+  const found: Finding[] = [];
+  for (const axis of AXES) {
+    for (const p of log.axes[axis].peaks) {
+      if (p.kind === "motor" || p.freqHz > maxHz || p.freqHz < baseline.minFreqHz) continue;
+      const known =
+        baseline.peaks[axis].some((f) => Math.abs(f - p.freqHz) <= h.samePeakFraction * p.freqHz) ||
+        shifts.some((s) => Math.abs(s.freqHz - p.freqHz) <= h.samePeakFraction * p.freqHz);
+      if (known) continue;
+      const deltas = matched.map((m) => dbAt(m.log.axes[axis].psdDb, log.settings.binHz, p.freqHz) - atThrottle(baseline, m.log.meanThrottle, (b) => dbAt(b.axes[axis].psdDb, baseline.binHz, p.freqHz)));
+      const delta = weightedMean(deltas, matched.map((m) => m.log.segments));
+      const graded = Number.isFinite(delta) ? severityAndPoints(delta, h.levelDb, h) : null;
+      if (!graded) continue;
+      found.push({
+        axis,
+        kind: "new-peak",
+        freqHz: round(p.freqHz, 1),
+        deltaDb: round(delta, 1),
+        ...graded,
+        text: `new ${axis} peak at ${Math.round(p.freqHz)} Hz, ${delta.toFixed(0)} dB above the baseline there: something has come loose or is touching. Check the flight-controller stack, camera mount, antenna and battery strap.`,
+      });
+    }
+  }
+  // One loose part shows on several axes: keep the strongest sighting of each frequency.
+  return keepStrongestPerFrequency(found, h.samePeakFraction);
+}
+
+function floorRises(log: LogAnalysis, baseline: Baseline, matched: MatchedBand[], h: HealthThresholds, maxHz: number): Finding[] {
+  // Both floors over the same range: the baseline's corner, lowered like the analysis does for a
+  // log that cannot reach it, up to the top both can show.
+  const cornerHz = Math.min(baseline.floorCornerHz, 0.6 * maxHz);
+  if (cornerHz >= maxHz) return [];
+  const perAxis = AXES.map((axis) => {
+    const deltas = matched.map(
+      (m) =>
+        floorOver(m.log.axes[axis].psdDb, log.settings.binHz, cornerHz, maxHz) -
+        floorOver(m.base.axes[axis].psdDb, baseline.binHz, cornerHz, maxHz),
+    );
+    return { axis, delta: weightedMean(deltas, matched.map((m) => m.log.segments)) };
+  }).filter((x) => Number.isFinite(x.delta));
+  perAxis.sort((a, b) => b.delta - a.delta);
+  const top = perAxis[0];
+  if (!top) return [];
+  const graded = severityAndPoints(top.delta, h.levelDb, h);
+  if (!graded) return [];
+  const others = perAxis.slice(1).filter((x) => x.delta >= h.levelDb.watch).map((x) => x.axis);
+  const also = others.length > 0 ? ` (also ${others.join(" and ")})` : "";
+  const centre = Math.sqrt(cornerHz * maxHz);
+  return [
+    {
+      axis: top.axis,
+      kind: "floor-rise",
+      freqHz: round(centre, 0),
+      deltaDb: round(top.delta, 1),
+      ...graded,
+      text: `broadband noise above ${Math.round(cornerHz)} Hz is up ${top.delta.toFixed(0)} dB on ${top.axis}${also}: typical of worn motor bearings or damaged props. With the battery disconnected, spin each motor by hand and feel for roughness.`,
+    },
+  ];
+}
+
+function bandRises(log: LogAnalysis, matched: MatchedBand[], baseline: Baseline, specific: Finding[], h: HealthThresholds): Finding[] {
+  const found: Finding[] = [];
+  const hasFloorRise = specific.some((f) => f.kind === "floor-rise");
+  baseline.bands.forEach((band, b) => {
+    // A more specific finding inside the band already explains its rise.
+    // A resonance that moved or appeared lifts its skirts too: it explains bands within ±40 % of it.
+    const explained = specific.some((f) => (f.kind === "mode-shift" || f.kind === "new-peak") && band.hiHz > 0.6 * f.freqHz && band.loHz < 1.4 * f.freqHz) ||
+      (hasFloorRise && band.loHz >= baseline.floorCornerHz * 0.9) ||
+      specific.some((f) => f.kind === "motor-order" && matched.some((m) => {
+        const order = m.log.motors.find((x) => x.motor === f.motor)?.orders[0]?.freqHz ?? 0;
+        return order >= band.loHz && order < band.hiHz;
+      }));
+    if (explained) return;
+    const i = log.bands.findIndex((x) => x.loHz === band.loHz && x.hiHz === band.hiHz);
+    if (i < 0) return;
+    let best: { axis: Axis; delta: number } | null = null;
+    for (const axis of AXES) {
+      const deltas: number[] = [];
+      const weights: number[] = [];
+      let variance = 0;
+      for (const m of matched) {
+        const level = m.log.axes[axis].bandDb[i] ?? Number.NaN;
+        const expected = atThrottle(baseline, m.log.meanThrottle, (x) => x.axes[axis].bandDb[b] ?? Number.NaN);
+        deltas.push(level - expected);
+        weights.push(m.log.segments);
+        const seg = m.base.axes[axis].segmentSpreadDb[b] ?? 1;
+        const logs = m.base.axes[axis].logSpreadDb[b] ?? 0;
+        variance += seg * seg / m.log.segments + seg * seg / Math.max(1, m.base.segmentsPerLog) + logs * logs;
+      }
+      const delta = weightedMean(deltas, weights);
+      const sigma = Math.sqrt(variance / Math.max(1, deltas.length));
+      if (!Number.isFinite(delta) || delta < h.minSigma * sigma) continue;
+      if (!best || delta > best.delta) best = { axis, delta };
+    }
+    if (!best) return;
+    const graded = severityAndPoints(best.delta, h.levelDb, h);
+    if (!graded) return;
+    const high = band.loHz >= baseline.floorCornerHz * 0.9;
+    const advice = high
+      ? "typical of a worn motor bearing or a damaged prop. With the battery disconnected, spin each motor by hand and feel for roughness."
+      : "look for loose screws, a cracked mount or a part rubbing.";
+    found.push({
+      axis: best.axis,
+      kind: "band-rise",
+      freqHz: round(Math.sqrt(band.loHz * band.hiHz), 0),
+      deltaDb: round(best.delta, 1),
+      ...graded,
+      text: `${best.axis} vibration between ${band.loHz} and ${band.hiHz} Hz is up ${best.delta.toFixed(0)} dB at matched throttle: ${advice}`,
+    });
+  });
+  return found;
+}
+
+/** Median of a dB spectrum over [loHz, hiHz]: the noise floor there. */
+function floorOver(psdDb: readonly number[], binHz: number, loHz: number, hiHz: number): number {
+  const first = Math.ceil(loHz / binHz);
+  const last = Math.min(psdDb.length - 1, Math.floor(hiHz / binHz));
+  return median(psdDb.slice(first, last + 1));
+}
+
+function keepStrongestPerFrequency(findings: Finding[], fraction: number): Finding[] {
+  const sorted = [...findings].sort((a, b) => b.points - a.points || (b.deltaDb ?? 0) - (a.deltaDb ?? 0));
+  const kept: Finding[] = [];
+  for (const f of sorted) {
+    if (!kept.some((k) => Math.abs(k.freqHz - f.freqHz) <= fraction * f.freqHz)) kept.push(f);
+  }
+  return kept;
+}

@@ -1,0 +1,85 @@
+/**
+ * Thresholds of the health score, in one place.
+ *
+ * They follow condition-monitoring practice: judge a machine by the change from its own baseline
+ * (ISO 20816-1 criterion II; ISO 17359 allows alarms from the machine's own baseline), with an alert
+ * around twice the baseline amplitude (+6 dB) and danger around four times (+12 dB) (common practice
+ * in machinery monitoring: alert 2–3×, alarm 4–6×, danger 8–10×). Our "watch" step at +3 dB
+ * (1.4× amplitude) sits above ISO's 25 %-of-boundary change (+1.9 dB), because flight logs scatter
+ * more than a machine measured in a fixed state. Mode shifts: a drop of 3 / 6 / 12 % means about
+ * 6 / 12 / 23 % less stiffness (f ∝ √(k/m)). These defaults were checked on the demo scenarios.
+ */
+
+export type Status = "ok" | "watch" | "inspect" | "ground";
+export const STATUS_ORDER: readonly Status[] = ["ok", "watch", "inspect", "ground"];
+
+export interface StepThresholds {
+  watch: number;
+  inspect: number;
+  ground: number;
+}
+
+export interface HealthThresholds {
+  /** Level rise above the matched baseline, dB: band-rise, new-peak, motor-order, floor-rise. */
+  levelDb: StepThresholds;
+  /** Mode frequency change, percent of the baseline frequency. */
+  modeShiftPct: StepThresholds;
+  /** A level change must also exceed this many standard deviations of the expected scatter. */
+  minSigma: number;
+  /** Points taken off for a finding just at watch, inspect and ground magnitude. */
+  penalty: StepThresholds;
+  /** The most points one finding can take. */
+  maxPenalty: number;
+  /** Score at or above which the status is ok / watch / inspect (below the last: ground). */
+  scoreOk: number;
+  scoreWatch: number;
+  scoreInspect: number;
+  /** Peaks this close (fraction of frequency) to a baseline peak are not new. */
+  samePeakFraction: number;
+}
+
+export const DEFAULT_THRESHOLDS: HealthThresholds = {
+  levelDb: { watch: 3, inspect: 6, ground: 12 },
+  modeShiftPct: { watch: 3, inspect: 6, ground: 12 },
+  minSigma: 3,
+  penalty: { watch: 10, inspect: 25, ground: 50 },
+  maxPenalty: 75,
+  scoreOk: 80,
+  scoreWatch: 60,
+  scoreInspect: 35,
+  samePeakFraction: 0.05,
+};
+
+/** The step a magnitude reaches, or null below watch. */
+export function stepOf(magnitude: number, t: StepThresholds): Exclude<Status, "ok"> | null {
+  if (magnitude >= t.ground) return "ground";
+  if (magnitude >= t.inspect) return "inspect";
+  if (magnitude >= t.watch) return "watch";
+  return null;
+}
+
+/**
+ * Points taken off for a magnitude: piecewise linear through (watch, 10), (inspect, 25),
+ * (ground, 50), then rising by 25 points per further ground-threshold's worth, capped. Strictly
+ * increasing above watch, so a worse finding always costs more.
+ */
+export function penaltyFor(magnitude: number, t: StepThresholds, h: HealthThresholds = DEFAULT_THRESHOLDS): number {
+  const p = h.penalty;
+  if (magnitude < t.watch) return 0;
+  let points: number;
+  if (magnitude < t.inspect) points = p.watch + ((magnitude - t.watch) / (t.inspect - t.watch)) * (p.inspect - p.watch);
+  else if (magnitude < t.ground) points = p.inspect + ((magnitude - t.inspect) / (t.ground - t.inspect)) * (p.ground - p.inspect);
+  else points = p.ground + ((magnitude - t.ground) / t.ground) * 25;
+  return Math.min(h.maxPenalty, Math.round(points * 10) / 10);
+}
+
+export function statusForScore(score: number, h: HealthThresholds = DEFAULT_THRESHOLDS): Status {
+  if (score >= h.scoreOk) return "ok";
+  if (score >= h.scoreWatch) return "watch";
+  if (score >= h.scoreInspect) return "inspect";
+  return "ground";
+}
+
+export function worstStatus(a: Status, b: Status): Status {
+  return STATUS_ORDER.indexOf(a) >= STATUS_ORDER.indexOf(b) ? a : b;
+}
