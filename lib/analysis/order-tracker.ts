@@ -56,6 +56,9 @@ export class OrderTracker {
     blockSeconds = 0.256,
   ) {
     this.motors = motors;
+    if (orders.length !== 3 || orders[0] !== 1 || orders[1] !== 2 || !Number.isInteger(orders[2]) || !((orders[2] ?? 0) >= 2)) {
+      throw new RangeError("the order tracker follows orders 1, 2 and a whole blade-pass order of 2 or more");
+    }
     this.orders = orders;
     this.dt = 1 / sampleRateHz;
     this.maxHz = maxHz;
@@ -86,57 +89,82 @@ export class OrderTracker {
     throttle: Float64Array | null,
     rpm: readonly Float64Array[],
   ): void {
-    const motors = this.motors;
-    const orders = this.orders;
+    let i = 0;
+    while (i < n) {
+      if (this.fill === 0) this.startS = timeS[i] ?? 0;
+      const run = Math.min(n - i, this.blockLength - this.fill);
+      if (throttle) for (let j = i; j < i + run; j++) this.throttleSum += throttle[j] ?? 0;
+      for (let m = 0; m < this.motors; m++) this.accumulate(m, i, run, gyro, rpm[m] as Float64Array);
+      this.fill += run;
+      i += run;
+      if (this.fill === this.blockLength) this.emit();
+    }
+  }
+
+  /**
+   * One motor over samples [from, from+run) of the current block. The sums live in local variables
+   * (the hot path: motors × orders × axes per sample) and are stored once per run.
+   */
+  private accumulate(m: number, from: number, run: number, gyro: readonly Float64Array[], rpm: Float64Array): void {
     const w = this.window;
     const g0 = gyro[0] as Float64Array;
     const g1 = gyro[1] as Float64Array;
     const g2 = gyro[2] as Float64Array;
-    for (let i = 0; i < n; i++) {
-      if (this.fill === 0) this.startS = timeS[i] ?? 0;
-      const wi = w[this.fill] ?? 0;
-      const x0 = (g0[i] ?? 0) * wi;
-      const x1 = (g1[i] ?? 0) * wi;
-      const x2 = (g2[i] ?? 0) * wi;
-      this.throttleSum += throttle ? (throttle[i] ?? 0) : 0;
-      for (let m = 0; m < motors; m++) {
-        const r = (rpm[m] as Float64Array)[i] ?? 0;
-        this.rpmSum[m] = (this.rpmSum[m] ?? 0) + r;
-        // e^{ikφ} for k = 1, 2, 3… by repeated complex multiplication of the rotor phasor.
-        const c1 = this.re[m] ?? 1;
-        const s1 = this.im[m] ?? 0;
-        let ck = 1;
-        let sk = 0;
-        let k = 0;
-        const reRow = this.sumRe[m] as Float64Array[];
-        const imRow = this.sumIm[m] as Float64Array[];
-        for (let o = 0; o < orders.length; o++) {
-          const target = orders[o] ?? 1;
-          while (k < target) {
-            const c = ck * c1 - sk * s1;
-            sk = sk * c1 + ck * s1;
-            ck = c;
-            k++;
-          }
-          const re = reRow[o] as Float64Array;
-          const im = imRow[o] as Float64Array;
-          re[0] = (re[0] ?? 0) + x0 * ck;
-          re[1] = (re[1] ?? 0) + x1 * ck;
-          re[2] = (re[2] ?? 0) + x2 * ck;
-          im[0] = (im[0] ?? 0) + x0 * sk;
-          im[1] = (im[1] ?? 0) + x1 * sk;
-          im[2] = (im[2] ?? 0) + x2 * sk;
-        }
-        // Advance the rotor angle by this sample's rotation.
-        const dphi = (2 * Math.PI * r * this.dt) / 60;
-        const cd = Math.cos(dphi);
-        const sd = Math.sin(dphi);
-        this.re[m] = c1 * cd - s1 * sd;
-        this.im[m] = s1 * cd + c1 * sd;
+    const orders = this.orders;
+    const k3 = orders[2] ?? 3;
+    const radPerRpmSample = (2 * Math.PI * this.dt) / 60;
+    let c1 = this.re[m] ?? 1;
+    let s1 = this.im[m] ?? 0;
+    let rpmSum = 0;
+    let r10 = 0, r11 = 0, r12 = 0, i10 = 0, i11 = 0, i12 = 0;
+    let r20 = 0, r21 = 0, r22 = 0, i20 = 0, i21 = 0, i22 = 0;
+    let r30 = 0, r31 = 0, r32 = 0, i30 = 0, i31 = 0, i32 = 0;
+    let f = this.fill;
+    for (let j = from; j < from + run; j++, f++) {
+      const wi = w[f] ?? 0;
+      const x0 = (g0[j] ?? 0) * wi;
+      const x1 = (g1[j] ?? 0) * wi;
+      const x2 = (g2[j] ?? 0) * wi;
+      // e^{i2φ} and e^{ikφ} by complex multiplication of the rotor phasor e^{iφ}.
+      const c2 = c1 * c1 - s1 * s1;
+      const s2 = 2 * c1 * s1;
+      let c3 = c2;
+      let s3 = s2;
+      for (let k = 2; k < k3; k++) {
+        const c = c3 * c1 - s3 * s1;
+        s3 = s3 * c1 + c3 * s1;
+        c3 = c;
       }
-      this.fill++;
-      if (this.fill === this.blockLength) this.emit();
+      r10 += x0 * c1; r11 += x1 * c1; r12 += x2 * c1;
+      i10 += x0 * s1; i11 += x1 * s1; i12 += x2 * s1;
+      r20 += x0 * c2; r21 += x1 * c2; r22 += x2 * c2;
+      i20 += x0 * s2; i21 += x1 * s2; i22 += x2 * s2;
+      r30 += x0 * c3; r31 += x1 * c3; r32 += x2 * c3;
+      i30 += x0 * s3; i31 += x1 * s3; i32 += x2 * s3;
+      const r = rpm[j] ?? 0;
+      rpmSum += r;
+      // Advance the rotor angle by this sample's rotation. Taylor series to x⁸/x⁹: below 1e-6
+      // error for steps up to 1 rad (≈ 640 Hz at 4 kHz), much cheaper than Math.cos/sin; the
+      // phasor is renormalised every block.
+      const dphi = r * radPerRpmSample;
+      const q = dphi * dphi;
+      const cd = 1 - (q / 2) * (1 - (q / 12) * (1 - (q / 30) * (1 - q / 56)));
+      const sd = dphi * (1 - (q / 6) * (1 - (q / 20) * (1 - (q / 42) * (1 - q / 72))));
+      const c = c1 * cd - s1 * sd;
+      s1 = s1 * cd + c1 * sd;
+      c1 = c;
     }
+    this.re[m] = c1;
+    this.im[m] = s1;
+    this.rpmSum[m] = (this.rpmSum[m] ?? 0) + rpmSum;
+    const re = this.sumRe[m] as Float64Array[];
+    const im = this.sumIm[m] as Float64Array[];
+    add3(re[0] as Float64Array, r10, r11, r12);
+    add3(im[0] as Float64Array, i10, i11, i12);
+    add3(re[1] as Float64Array, r20, r21, r22);
+    add3(im[1] as Float64Array, i20, i21, i22);
+    add3(re[2] as Float64Array, r30, r31, r32);
+    add3(im[2] as Float64Array, i30, i31, i32);
   }
 
   private emit(): void {
@@ -173,4 +201,10 @@ export class OrderTracker {
     for (const row of this.sumRe) for (const a of row) a.fill(0);
     for (const row of this.sumIm) for (const a of row) a.fill(0);
   }
+}
+
+function add3(target: Float64Array, a: number, b: number, c: number): void {
+  target[0] = (target[0] ?? 0) + a;
+  target[1] = (target[1] ?? 0) + b;
+  target[2] = (target[2] ?? 0) + c;
 }

@@ -5,7 +5,8 @@
  * path); anything else falls back to the engine's own parser.
  */
 
-const POW10 = Array.from({ length: 23 }, (_, i) => 10 ** i);
+/** Exact powers of ten, 10⁰ … 10²². */
+export const POW10: readonly number[] = Array.from({ length: 23 }, (_, i) => 10 ** i);
 const SPACE = 0x20;
 const TAB = 0x09;
 const QUOTE = 0x22;

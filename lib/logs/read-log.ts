@@ -9,7 +9,7 @@ import {
   type ThrottleUnit,
 } from "./columns";
 import { round } from "../signal/stats";
-import { EMPTY_CELL, parseDecimal } from "./parse-number";
+import { EMPTY_CELL, POW10, parseDecimal } from "./parse-number";
 
 /**
  * Streaming reader for heatcheck's CSV log format:
@@ -108,14 +108,20 @@ export async function readLog(
   options: ReadOptions = {},
 ): Promise<ReadSummary> {
   const parser = new LogParser(sink, options);
-  try {
-    for await (const chunk of source) parser.push(chunk);
-    return parser.finish();
-  } catch (e) {
-    if (isDomainError(e)) throw e;
-    // A decoding or stream failure deep inside is still a file we cannot read, not a crash.
-    throw new LogFormatError(`the file could not be read (${e instanceof Error ? e.message : String(e)})`);
+  const chunks = source[Symbol.asyncIterator]();
+  for (;;) {
+    let next: IteratorResult<Uint8Array>;
+    try {
+      next = await chunks.next();
+    } catch (e) {
+      // The stream itself failed (a file removed mid-read, a dropped upload): the file is unreadable.
+      if (isDomainError(e)) throw e;
+      throw new LogFormatError(`the file could not be read (${e instanceof Error ? e.message : String(e)})`);
+    }
+    if (next.done) break;
+    parser.push(next.value);
   }
+  return parser.finish();
 }
 
 /** Column slots in a raw row. */
@@ -176,8 +182,10 @@ class LogParser {
     this.blockRows = options.blockRows ?? DEFAULT_BLOCK_ROWS;
   }
 
-  push(chunk: Uint8Array): void {
-    if (chunk.length === 0) return;
+  push(input: Uint8Array): void {
+    if (input.length === 0) return;
+    // Node hands Buffers, tests hand Uint8Arrays: one element type keeps the hot loop monomorphic.
+    const chunk = input.constructor === Uint8Array ? input : new Uint8Array(input.buffer, input.byteOffset, input.length);
     this.bytes += chunk.length;
     if (this.bytes > this.maxBytes) {
       throw new LimitExceededError(
@@ -257,18 +265,23 @@ class LogParser {
   /** Complete lines in bytes[start, end); bytes[end-1] is a newline. */
   private lines(bytes: Uint8Array, start: number, end: number): void {
     let pos = start;
+    while (pos < end && this.layout) {
+      this.line++;
+      pos = this.row(bytes, pos, end);
+    }
     while (pos < end) {
       let eol = bytes.indexOf(10, pos);
       if (eol < 0 || eol >= end) eol = end;
       this.line++;
       let lineEnd = eol;
       if (lineEnd > pos && bytes[lineEnd - 1] === 13) lineEnd--;
-      if (this.layout) {
-        if (lineEnd > pos) this.row(bytes, pos, lineEnd);
-      } else {
-        this.preambleLine(bytes, pos, lineEnd);
-      }
+      this.preambleLine(bytes, pos, lineEnd);
       pos = eol + 1;
+      // The header was found: the rest are rows.
+      while (pos < end && this.layout) {
+        this.line++;
+        pos = this.row(bytes, pos, end);
+      }
     }
   }
 
@@ -331,36 +344,82 @@ class LogParser {
     if (this.droppedLines.length < 10) this.droppedLines.push(line);
   }
 
-  private row(bytes: Uint8Array, start: number, end: number): void {
+  /**
+   * Parses the row starting at `start` (the buffer holds whole lines up to `end`, which follows a
+   * newline) and returns the index after its newline.
+   */
+  private row(bytes: Uint8Array, start: number, end: number): number {
     const layout = this.layout as Layout;
-    this.dataRows++;
-    const r = this.rawCount;
     const raw = this.raw;
     const slotOf = layout.slotOfColumn;
-    let column = 0;
-    let cellStart = start;
+    const columns = slotOf.length;
+    const r = this.rawCount;
     let filled = 0;
     let empty = false;
-    for (let i = start; i <= end; i++) {
-      if (i < end && bytes[i] !== 0x2c /* , */) continue;
-      const slot = column < slotOf.length ? (slotOf[column] ?? -1) : -1;
-      if (slot >= 0) {
-        const v = parseDecimal(bytes, cellStart, i);
+    let column = 0;
+    let i = start;
+    // Hot loop: most cells are plain decimals ("-12.345"), parsed here in one pass over the bytes.
+    // Anything else (exponent, spaces, quotes, garbage, empty) takes parseDecimal's careful path.
+    // Reads stay below `end`, inside the buffer, so the `as number` casts cannot hide undefined.
+    let b = bytes[i] as number;
+    if (b === 0x0a || (b === 0x0d && bytes[i + 1] === 0x0a)) {
+      return b === 0x0a ? i + 1 : i + 2; // blank line
+    }
+    this.dataRows++;
+    for (;;) {
+      const cellStart = i;
+      const slot = column < columns ? (slotOf[column] as number) : -1;
+      if (slot < 0) {
+        while (b !== 0x2c && b !== 0x0a) b = bytes[++i] as number;
+      } else {
+        let negative = false;
+        if (b === 0x2d) {
+          negative = true;
+          b = bytes[++i] as number;
+        }
+        let mantissa = 0;
+        let digits = 0;
+        let scale = 0;
+        while (b >= 0x30 && b <= 0x39) {
+          mantissa = mantissa * 10 + (b - 0x30);
+          digits++;
+          b = bytes[++i] as number;
+        }
+        if (b === 0x2e) {
+          b = bytes[++i] as number;
+          while (b >= 0x30 && b <= 0x39) {
+            mantissa = mantissa * 10 + (b - 0x30);
+            digits++;
+            scale++;
+            b = bytes[++i] as number;
+          }
+        }
+        let v: number;
+        if (digits > 0 && digits <= 15 && (b === 0x2c || b === 0x0a || (b === 0x0d && bytes[i + 1] === 0x0a))) {
+          v = scale === 0 ? mantissa : mantissa / (POW10[scale] as number);
+          if (negative) v = -v;
+        } else {
+          while (b !== 0x2c && b !== 0x0a) b = bytes[++i] as number;
+          const cellEnd = b === 0x0a && bytes[i - 1] === 0x0d ? i - 1 : i;
+          v = parseDecimal(bytes, cellStart, cellEnd);
+          if (Number.isNaN(v)) throw this.badCell(bytes, cellStart, cellEnd, column, layout);
+        }
+        if (b === 0x0d) b = bytes[++i] as number;
         if (v === EMPTY_CELL) {
           empty = true;
-        } else if (Number.isNaN(v)) {
-          throw this.badCell(bytes, cellStart, i, column, layout);
         } else {
           (raw[slot] as Float64Array)[r] = v;
           filled++;
         }
       }
       column++;
-      cellStart = i + 1;
+      if (b === 0x0a) break;
+      b = bytes[++i] as number; // past the comma
     }
+    const next = i + 1;
     if (empty || filled < layout.slots) {
       this.drop(this.line);
-      return;
+      return next;
     }
     const t = (raw[layout.time] as Float64Array)[r] ?? 0;
     const time = t * layout.timeScale;
@@ -372,7 +431,7 @@ class LogParser {
     }
     if (time === this.lastTime) {
       this.drop(this.line);
-      return;
+      return next;
     }
     if (Number.isNaN(this.firstTime)) this.firstTime = time;
     this.lastTime = time;
@@ -387,6 +446,7 @@ class LogParser {
     } else if (this.rawCount >= this.blockRows) {
       this.flush();
     }
+    return next;
   }
 
   private badCell(bytes: Uint8Array, s: number, e: number, column: number, layout: Layout): LogFormatError {
