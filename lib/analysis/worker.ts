@@ -1,0 +1,60 @@
+// Worker-thread entry for log analysis (bundled to generated/worker/analysis-worker.mjs by
+// scripts/build-worker.ts). It reads the stored file itself and posts progress, so the server's
+// request threads never parse or transform a log.
+import { createReadStream, statSync } from "node:fs";
+import { parentPort } from "node:worker_threads";
+import { isDomainError } from "../errors";
+import { parseColumnMap } from "../logs/columns";
+import { analyzeLog } from "./analyze-log";
+
+export interface AnalysisJob {
+  jobId: string;
+  path: string;
+  mapText?: string | null;
+  maxBytes: number;
+}
+
+export type WorkerMessage =
+  | { type: "progress"; jobId: string; fraction: number }
+  | { type: "done"; jobId: string; analysisJson: string }
+  | { type: "failed"; jobId: string; message: string; badInput: boolean };
+
+async function* withProgress(path: string, onFraction: (f: number) => void): AsyncGenerator<Uint8Array> {
+  const total = statSync(path).size || 1;
+  let read = 0;
+  let reported = 0;
+  for await (const chunk of createReadStream(path, { highWaterMark: 1 << 20 })) {
+    read += (chunk as Uint8Array).length;
+    if (read / total - reported >= 0.02) {
+      reported = read / total;
+      onFraction(reported);
+    }
+    yield chunk as Uint8Array;
+  }
+}
+
+export async function runJob(job: AnalysisJob, post: (m: WorkerMessage) => void): Promise<void> {
+  try {
+    const map = job.mapText ? parseColumnMap(job.mapText) : undefined;
+    const { analysis } = await analyzeLog(
+      withProgress(job.path, (fraction) => post({ type: "progress", jobId: job.jobId, fraction })),
+      { map, maxBytes: job.maxBytes },
+    );
+    post({ type: "done", jobId: job.jobId, analysisJson: JSON.stringify(analysis, compactNumbers) });
+  } catch (e) {
+    post({
+      type: "failed",
+      jobId: job.jobId,
+      message: e instanceof Error ? e.message : String(e),
+      badInput: isDomainError(e),
+    });
+  }
+}
+
+/** Spectra are stored with 5 significant digits: far finer than any finding needs. */
+function compactNumbers(_key: string, value: unknown): unknown {
+  return typeof value === "number" && Number.isFinite(value) && !Number.isInteger(value) ? Number(value.toPrecision(5)) : value;
+}
+
+const port = parentPort;
+if (port) port.on("message", (job: AnalysisJob) => void runJob(job, (m) => port.postMessage(m)));

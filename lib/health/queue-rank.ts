@@ -1,0 +1,69 @@
+import type { Finding } from "./compare";
+import { STATUS_ORDER, worstStatus, type Status } from "./thresholds";
+
+/**
+ * Ranks airframes for the pits: which to pull and inspect before the next heat, with the reasons
+ * in words. Pure: the server gathers the facts, this decides the order.
+ */
+
+export interface AirframeFacts {
+  id: string;
+  name: string;
+  /** ready | grounded, as the crew set it */
+  state: string;
+  latest: { status: Status; score: number | null; findings: Finding[]; flownAt: Date } | null;
+  hasBaseline: boolean;
+  openCrashes: { at: Date; severity: string; positions: string[] }[];
+  partsPastLife: { position: string; what: string; fraction: number }[];
+  /** The last crash repair, inspection or swap, when no log has been flown since. */
+  noLogSince: { what: string; at: Date } | null;
+  inNextHeat: boolean;
+}
+
+export interface QueueEntry {
+  id: string;
+  name: string;
+  status: Status;
+  score: number | null;
+  reasons: string[];
+  /** Higher is more urgent. */
+  urgency: number;
+  inNextHeat: boolean;
+  state: string;
+}
+
+const DAY = new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "short", hour: "2-digit", minute: "2-digit", timeZone: "UTC" });
+
+export function rankQueue(fleet: readonly AirframeFacts[]): QueueEntry[] {
+  const entries = fleet.map((a) => {
+    const reasons: string[] = [];
+    let status: Status = a.latest?.status ?? "ok";
+    if (a.state === "grounded") {
+      reasons.push("grounded by the crew until an inspection returns it to service");
+      status = worstStatus(status, "ground");
+    }
+    for (const c of a.openCrashes) {
+      reasons.push(`${c.severity} crash on ${DAY.format(c.at)} UTC${c.positions.length ? ` (${c.positions.join(", ")})` : ""} with no inspection since`);
+      status = worstStatus(status, c.severity === "minor" ? "inspect" : "ground");
+    }
+    for (const f of a.latest?.findings.slice(0, 3) ?? []) reasons.push(f.text);
+    for (const p of a.partsPastLife) {
+      reasons.push(`${p.what} at ${p.position} has used ${Math.round(p.fraction * 100)} % of its life limit: replace it`);
+      status = worstStatus(status, "watch");
+    }
+    if (a.noLogSince) {
+      reasons.push(`no log flown since the ${a.noLogSince.what} on ${DAY.format(a.noLogSince.at)} UTC: fly a short check and upload it`);
+      status = worstStatus(status, "watch");
+    }
+    if (!a.hasBaseline) {
+      reasons.push("no baseline set, so vibration is not judged: choose known-good logs for one");
+    } else if (!a.latest) {
+      reasons.push("no log analysed since the baseline");
+    }
+    const score = a.latest?.score ?? null;
+    // Status first, then the lower score, then the longer list of reasons.
+    const urgency = STATUS_ORDER.indexOf(status) * 1000 + (100 - (score ?? 100)) + reasons.length;
+    return { id: a.id, name: a.name, status, score, reasons, urgency, inNextHeat: a.inNextHeat, state: a.state };
+  });
+  return entries.sort((x, y) => y.urgency - x.urgency || x.name.localeCompare(y.name));
+}

@@ -1,0 +1,77 @@
+import "server-only";
+import type { LogAnalysis } from "@/lib/analysis/types";
+import type { Baseline } from "@/lib/health/baseline";
+import { analysisPool } from "./analysis-pool";
+import { storeAssessment } from "./assessments";
+import { db } from "./db";
+import { maxUploadBytes } from "./limits";
+
+/**
+ * Runs the analysis of stored logs off the request thread and records the verdict: the Analysis
+ * row, the log's rate and length, and an Assessment against the airframe's active baseline, in one
+ * transaction. Progress is kept in memory for the upload screen.
+ */
+
+const progress = new Map<string, number>();
+const running = new Map<string, Promise<void>>();
+
+export function analysisProgress(logId: string): number | undefined {
+  return progress.get(logId);
+}
+
+/** Queues a log's analysis; the promise settles when its verdict is stored. */
+export function enqueueAnalysis(logId: string): Promise<void> {
+  const already = running.get(logId);
+  if (already) return already;
+  progress.set(logId, 0);
+  const job = run(logId)
+    .catch((e: unknown) => console.error(`storing the analysis of log ${logId} failed`, e))
+    .finally(() => {
+      running.delete(logId);
+      progress.delete(logId);
+    });
+  running.set(logId, job);
+  return job;
+}
+
+/** Settles when every queued analysis has finished (for the seed and the tests). */
+export async function analysesSettled(): Promise<void> {
+  while (running.size > 0) await Promise.all([...running.values()]);
+}
+
+async function run(logId: string): Promise<void> {
+  const log = await db.flightLog.findUnique({ where: { id: logId } });
+  if (!log) return;
+  const result = await analysisPool.run(
+    { jobId: logId, path: log.storedPath, mapText: log.mapText, maxBytes: maxUploadBytes() },
+    (f) => progress.set(logId, f),
+  );
+  if (!result.ok || !result.analysisJson) {
+    await db.flightLog.update({
+      where: { id: logId },
+      data: { status: "failed", error: result.badInput ? result.message : `analysis failed: ${result.message ?? "unknown error"}` },
+    });
+    if (!result.badInput) console.error(`analysis of log ${logId} failed`, result.message);
+    return;
+  }
+  const analysisJson = result.analysisJson;
+  const analysis = JSON.parse(analysisJson) as LogAnalysis;
+  await db.$transaction(async (tx) => {
+    await tx.analysis.upsert({ where: { logId }, create: { logId, json: analysisJson }, update: { json: analysisJson } });
+    await tx.flightLog.update({
+      where: { id: logId },
+      data: { status: "analysed", error: null, sampleRateHz: analysis.sampleRateHz, durationS: analysis.durationS },
+    });
+    if (log.airframeId) {
+      const baseline = await tx.baseline.findFirst({ where: { airframeId: log.airframeId, active: true }, orderBy: { createdAt: "desc" } });
+      if (baseline) await storeAssessment(tx, logId, analysis, baseline.id, JSON.parse(baseline.json) as Baseline);
+    }
+  });
+}
+
+/** Re-queues logs left pending by a stop (called once when the server starts). */
+export async function resumePendingAnalyses(): Promise<number> {
+  const pending = await db.flightLog.findMany({ where: { status: "pending" }, select: { id: true } });
+  for (const p of pending) void enqueueAnalysis(p.id);
+  return pending.length;
+}

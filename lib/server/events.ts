@@ -1,0 +1,48 @@
+import "server-only";
+import { InputError, NotFoundError } from "@/lib/errors";
+import type { Actor } from "@/lib/roles";
+import { audit } from "./audit";
+import { db } from "./db";
+import { assertRole } from "./authorize";
+
+export async function listEvents(actor: Actor) {
+  return db.event.findMany({
+    where: { teamId: actor.teamId },
+    orderBy: { startsAt: "desc" },
+    include: { heats: { orderBy: { startsAt: "asc" }, include: { entries: { include: { airframe: { select: { name: true } } } } } } },
+  });
+}
+
+export async function createEvent(actor: Actor, input: { name: string; venue: string; startsAt: Date }) {
+  assertRole(actor, "tech");
+  return db.$transaction(async (tx) => {
+    const e = await tx.event.create({ data: { ...input, teamId: actor.teamId } });
+    await audit(tx, actor, "create event", "event", e.id, e.name);
+    return e;
+  });
+}
+
+export async function createHeat(actor: Actor, input: { eventId: string; name: string; startsAt: Date }) {
+  assertRole(actor, "tech");
+  const event = await db.event.findFirst({ where: { id: input.eventId, teamId: actor.teamId } });
+  if (!event) throw new NotFoundError("That event");
+  return db.$transaction(async (tx) => {
+    const h = await tx.heat.create({ data: { ...input, teamId: actor.teamId } });
+    await audit(tx, actor, "create heat", "heat", h.id, `${event.name} ${h.name}`);
+    return h;
+  });
+}
+
+/** Sets which airframes fly in a heat (replacing the previous list). */
+export async function setHeatEntries(actor: Actor, heatId: string, airframeIds: string[]) {
+  assertRole(actor, "tech");
+  const heat = await db.heat.findFirst({ where: { id: heatId, teamId: actor.teamId } });
+  if (!heat) throw new NotFoundError("That heat");
+  const airframes = await db.airframe.findMany({ where: { id: { in: airframeIds }, teamId: actor.teamId } });
+  if (airframes.length !== new Set(airframeIds).size) throw new InputError("Every airframe must be one of this team's.", "airframeIds");
+  return db.$transaction(async (tx) => {
+    await tx.heatEntry.deleteMany({ where: { heatId } });
+    for (const a of airframes) await tx.heatEntry.create({ data: { heatId, airframeId: a.id } });
+    await audit(tx, actor, "assign heat", "heat", heatId, airframes.map((a) => a.name).join(", "));
+  });
+}

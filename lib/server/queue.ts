@@ -1,0 +1,79 @@
+import "server-only";
+import type { Finding } from "@/lib/health/compare";
+import { rankQueue, type AirframeFacts, type QueueEntry } from "@/lib/health/queue-rank";
+import type { Status } from "@/lib/health/thresholds";
+import type { Actor } from "@/lib/roles";
+import { db } from "./db";
+import { lifeFraction } from "./parts";
+
+/** The next heat of the team that has not started more than an hour ago, with its airframes. */
+export async function nextHeat(actor: Actor) {
+  return db.heat.findFirst({
+    where: { teamId: actor.teamId, startsAt: { gte: new Date(Date.now() - 3600_000) } },
+    orderBy: { startsAt: "asc" },
+    include: { entries: true, event: { select: { name: true } } },
+  });
+}
+
+/** Every active airframe of the team, ranked for inspection before the next heat. */
+export async function inspectionQueue(actor: Actor, options: { onlyNextHeat?: boolean } = {}): Promise<{ entries: QueueEntry[]; heat: Awaited<ReturnType<typeof nextHeat>> }> {
+  const heat = await nextHeat(actor);
+  const inHeat = new Set(heat?.entries.map((e) => e.airframeId) ?? []);
+  const airframes = await db.airframe.findMany({
+    where: { teamId: actor.teamId, retired: false },
+    include: {
+      crashes: { orderBy: { at: "desc" } },
+      inspections: { orderBy: { at: "desc" }, take: 1 },
+      installations: { where: { toAt: null }, include: { part: true } },
+      baselines: { where: { active: true }, take: 1, orderBy: { createdAt: "desc" } },
+      logs: { orderBy: { flownAt: "desc" }, take: 1, select: { flownAt: true } },
+    },
+  });
+  const facts: AirframeFacts[] = [];
+  for (const a of airframes) {
+    const lastInspection = a.inspections[0]?.at ?? new Date(0);
+    const baseline = a.baselines[0];
+    const latestAssessment = baseline
+      ? await db.assessment.findFirst({
+          where: { baselineId: baseline.id, log: { airframeId: a.id } },
+          orderBy: { log: { flownAt: "desc" } },
+          include: { log: { select: { flownAt: true } } },
+        })
+      : null;
+    const partsPastLife = [];
+    for (const i of a.installations) {
+      if (!i.part.lifeFlights && !i.part.lifeMinutes) continue;
+      const logs = await db.flightLog.findMany({ where: { airframeId: a.id, flownAt: { gte: i.fromAt } }, select: { durationS: true } });
+      const used = { flights: logs.length, minutes: logs.reduce((s, l) => s + (l.durationS ?? 0), 0) / 60 };
+      const fraction = lifeFraction(used, i.part) ?? 0;
+      if (fraction >= 1) partsPastLife.push({ position: i.position, what: `${i.part.kind} ${i.part.model}`, fraction });
+    }
+    const lastLog = a.logs[0]?.flownAt ?? new Date(0);
+    const lastWork = [
+      ...a.inspections.map((x) => ({ what: "inspection", at: x.at })),
+      ...a.installations.map((x) => ({ what: `${x.position} swap`, at: x.fromAt })),
+    ].sort((x, y) => y.at.getTime() - x.at.getTime())[0];
+    facts.push({
+      id: a.id,
+      name: a.name,
+      state: a.status,
+      latest: latestAssessment
+        ? {
+            status: latestAssessment.status as Status,
+            score: latestAssessment.score,
+            findings: JSON.parse(latestAssessment.findings) as Finding[],
+            flownAt: latestAssessment.log.flownAt,
+          }
+        : null,
+      hasBaseline: !!baseline,
+      openCrashes: a.crashes
+        .filter((c) => c.at > lastInspection)
+        .map((c) => ({ at: c.at, severity: c.severity, positions: JSON.parse(c.positions) as string[] })),
+      partsPastLife,
+      noLogSince: lastWork && lastWork.at > lastLog ? lastWork : null,
+      inNextHeat: inHeat.has(a.id),
+    });
+  }
+  const entries = rankQueue(facts);
+  return { entries: options.onlyNextHeat && heat ? entries.filter((e) => e.inNextHeat) : entries, heat };
+}

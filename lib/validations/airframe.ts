@@ -1,0 +1,38 @@
+import { z } from "zod";
+import { nameField, optionalText } from "./common";
+
+export const AIRFRAME_STATUSES = ["ready", "grounded"] as const;
+
+export const airframeSchema = z.object({
+  name: nameField("airframe name", 40),
+  frameDesign: nameField("frame design", 80),
+  serial: optionalText(80),
+  notes: optionalText(),
+});
+export type AirframeInput = z.infer<typeof airframeSchema>;
+
+export const airframeStatusSchema = z.object({
+  airframeId: z.string().min(1),
+  status: z.enum(AIRFRAME_STATUSES, { message: "Choose ready or grounded." }),
+  note: optionalText(500),
+});
+
+/** Positions on a quad, in the order the screens list them. Free text is allowed too. */
+export const STANDARD_POSITIONS = [
+  "frame",
+  "arm front-left",
+  "arm front-right",
+  "arm rear-right",
+  "arm rear-left",
+  "motor 1 (front-left)",
+  "motor 2 (front-right)",
+  "motor 3 (rear-right)",
+  "motor 4 (rear-left)",
+  "props",
+  "flight controller",
+  "ESC",
+  "camera",
+  "video transmitter",
+  "receiver",
+  "antenna",
+] as const;

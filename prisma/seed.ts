@@ -1,0 +1,167 @@
+// Seeds the invented demo team when the database is empty: `npm run seed` (also run by
+// `npm start` on first start). Everything here is made up: team, people, quads and parts.
+// It goes through the same services the app uses, so the model rules hold for the demo too.
+import { createReadStream } from "node:fs";
+import { mkdtemp, rm, writeFile } from "node:fs/promises";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
+import { demoCsv } from "@/lib/demo/demo-csv";
+import type { DemoLogOptions } from "@/lib/demo/generator";
+import type { Actor } from "@/lib/roles";
+import { createAirframe } from "@/lib/server/airframes";
+import { analysesSettled } from "@/lib/server/analysis-jobs";
+import { setBaseline } from "@/lib/server/baselines";
+import { logCrash, recordInspection } from "@/lib/server/crashes";
+import { db } from "@/lib/server/db";
+import { createEvent, createHeat, setHeatEntries } from "@/lib/server/events";
+import { ingestLog } from "@/lib/server/ingest";
+import { createParts, swapPart } from "@/lib/server/parts";
+import { hashPassword } from "@/lib/server/passwords";
+
+export const DEMO_ACCOUNTS = [
+  { email: "owner@heatcheck.test", name: "Mara Quill", role: "owner", password: "pitwall-owner-2026" },
+  { email: "tech@heatcheck.test", name: "Jonas Ferrow", role: "tech", password: "pitwall-tech-2026" },
+  { email: "pilot@heatcheck.test", name: "Edda Lorne", role: "pilot", password: "pitwall-pilot-2026" },
+  { email: "viewer@heatcheck.test", name: "Pit screen", role: "viewer", password: "pitwall-viewer-2026" },
+] as const;
+
+const FRAME = "Harrow Five (house design)";
+const HOUR = 3600_000;
+const DAY = 24 * HOUR;
+const LOG_SECONDS = 30;
+
+const POSITIONS: { position: string; kind: string; model: string; lifeFlights?: number }[] = [
+  { position: "frame", kind: "frame", model: "Harrow Five plate set" },
+  { position: "arm front-left", kind: "arm", model: "Harrow arm 6 mm" },
+  { position: "arm front-right", kind: "arm", model: "Harrow arm 6 mm" },
+  { position: "arm rear-right", kind: "arm", model: "Harrow arm 6 mm" },
+  { position: "arm rear-left", kind: "arm", model: "Harrow arm 6 mm" },
+  { position: "motor 1 (front-left)", kind: "motor", model: "Stator 2207 1850 kv", lifeFlights: 60 },
+  { position: "motor 2 (front-right)", kind: "motor", model: "Stator 2207 1850 kv", lifeFlights: 60 },
+  { position: "motor 3 (rear-right)", kind: "motor", model: "Stator 2207 1850 kv", lifeFlights: 60 },
+  { position: "motor 4 (rear-left)", kind: "motor", model: "Stator 2207 1850 kv", lifeFlights: 60 },
+  { position: "props", kind: "prop-set", model: "Tri-blade 5.1 in", lifeFlights: 8 },
+  { position: "flight controller", kind: "flight-controller", model: "FC 30x30 F7-class" },
+  { position: "ESC", kind: "esc", model: "4-in-1 45 A" },
+  { position: "camera", kind: "camera", model: "Micro camera 1.8 mm" },
+  { position: "video transmitter", kind: "video-transmitter", model: "VTX 25–400 mW" },
+  { position: "receiver", kind: "receiver", model: "2.4 GHz nano receiver" },
+  { position: "antenna", kind: "antenna", model: "Pagoda-style RHCP" },
+];
+
+async function main(): Promise<void> {
+  if ((await db.team.count()) > 0) {
+    console.log("seed: the database already has a team; nothing to do");
+    return;
+  }
+  process.env.HEATCHECK_WORKERS ??= "0";
+  const started = Date.now();
+  const team = await db.team.create({ data: { name: "Harrow Vale Quad Club" } });
+  const users: Record<string, Actor> = {};
+  for (const a of DEMO_ACCOUNTS) {
+    const user = await db.user.create({ data: { email: a.email, name: a.name, passwordHash: await hashPassword(a.password) } });
+    await db.membership.create({ data: { userId: user.id, teamId: team.id, role: a.role } });
+    users[a.role] = { teamId: team.id, role: a.role, userId: user.id, name: a.name, via: "session" };
+  }
+  const tech = users.tech as Actor;
+  const pilot = users.pilot as Actor;
+  const now = Date.now();
+  const autumn = now - 21 * DAY;
+
+  const tmp = await mkdtemp(join(tmpdir(), "heatcheck-seed-"));
+  let seed = 500;
+  async function upload(airframe: string, flownAt: number, options: Partial<DemoLogOptions>, note: string, airframeSeed: number) {
+    const file = join(tmp, `${airframe}-${seed}.csv`);
+    const csv = demoCsv(
+      { seed: seed++, durationS: LOG_SECONDS, airframeSeed, ...options },
+      { airframe, flownAt: new Date(flownAt).toISOString(), note },
+    );
+    await writeFile(file, csv);
+    const r = await ingestLog(pilot, { fileName: `${airframe.toLowerCase()}-${new Date(flownAt).toISOString().slice(0, 10)}-${seed}.csv`, body: createReadStream(file) });
+    return r.logId;
+  }
+
+  // Spares on the shelf
+  await createParts(tech, { kind: "arm", model: "Harrow arm 6 mm", label: "spare-arm", supplier: "Vale Carbon Works", cost: 9, acquiredAt: new Date(autumn), lifeFlights: null, lifeMinutes: null, quantity: 3, notes: "" });
+  await createParts(tech, { kind: "motor", model: "Stator 2207 1850 kv", label: "spare-motor", supplier: "Coilhouse", cost: 21, acquiredAt: new Date(autumn), lifeFlights: 60, lifeMinutes: null, quantity: 2, notes: "" });
+  await createParts(tech, { kind: "prop-set", model: "Tri-blade 5.1 in", label: "props", supplier: "Coilhouse", cost: 3, acquiredAt: new Date(autumn), lifeFlights: 8, lifeMinutes: null, quantity: 6, notes: "" });
+  await createParts(tech, { kind: "camera", model: "Micro camera 1.8 mm", label: "spare-cam", supplier: "Lenslane", cost: 28, acquiredAt: new Date(autumn), lifeFlights: null, lifeMinutes: null, quantity: 1, notes: "" });
+
+  const names = Array.from({ length: 8 }, (_, i) => `HV-0${i + 1}`);
+  const ids: Record<string, string> = {};
+  for (const [i, name] of names.entries()) {
+    const a = await createAirframe(tech, { name, frameDesign: FRAME, serial: `HVQ-2026-${String(101 + i)}`, notes: i === 7 ? "Practice quad; motors from last season." : "" });
+    ids[name] = a.id;
+    for (const p of POSITIONS) {
+      const [part] = await createParts(tech, { kind: p.kind as never, model: p.model, label: `${name}-${p.position.split(" ")[0]}`, supplier: "Vale Carbon Works", cost: null, acquiredAt: new Date(autumn - 10 * DAY), lifeFlights: p.lifeFlights ?? null, lifeMinutes: null, quantity: 1, notes: "" });
+      if (part) await swapPart(tech, { airframeId: a.id, position: p.position, newPartId: part.id, reason: "initial build", removedStatus: "stock", at: new Date(autumn - 7 * DAY) });
+    }
+  }
+
+  // Autumn event: every quad's known-good log, flown on the rebuilt frames.
+  const autumnEvent = await createEvent(tech, { name: "Vale Autumn Open", venue: "Harrow Vale sports field", startsAt: new Date(autumn) });
+  const goodLogs: Record<string, string> = {};
+  for (const [i, name] of names.entries()) {
+    goodLogs[name] = await upload(name, autumn + HOUR + i * 10 * 60_000, {}, "known-good after the autumn rebuild", i);
+  }
+  await createHeat(tech, { eventId: autumnEvent.id, name: "Final", startsAt: new Date(autumn + 5 * HOUR) });
+  await analysesSettled();
+  for (const name of names) await setBaseline(tech, ids[name] ?? "", [goodLogs[name] ?? ""], "known-good log after the autumn rebuild");
+
+  // HV-02: crashed in autumn, front-left arm replaced, inspected, new baseline.
+  const hv02 = ids["HV-02"] ?? "";
+  await logCrash(pilot, { airframeId: hv02, at: new Date(autumn + 6 * HOUR), heatId: null, severity: "hard", positions: ["arm front-left"], note: "clipped the gate post on lap 2", ground: true });
+  const spareArm = await db.part.findFirst({ where: { teamId: team.id, label: "spare-arm-1" } });
+  if (spareArm) await swapPart(tech, { airframeId: hv02, position: "arm front-left", newPartId: spareArm.id, reason: "arm cracked at the motor mount in the gate-post crash", removedStatus: "damaged", at: new Date(autumn + 7 * HOUR) });
+  await recordInspection(tech, { airframeId: hv02, at: new Date(autumn + 8 * HOUR), findings: "New front-left arm fitted; other arms flexed, no cracks; screws torqued; props replaced.", checklist: ["props off and battery disconnected before starting", "every arm checked by eye and gently flexed for cracks and delamination", "frame and arm screws checked for tightness"], returnToService: true });
+  const hv02check = await upload("HV-02", autumn + 2 * DAY, { airframeSeed: 1 }, "check hover after the arm swap", 1);
+  await analysesSettled();
+  await setBaseline(tech, hv02, [hv02check], "new front-left arm after the autumn crash");
+
+  // Today: Winter Series round 1. Earlier heats flown; the next heat starts soon.
+  const winter = await createEvent(tech, { name: "Winter Series round 1", venue: "Copse Lane indoor arena", startsAt: new Date(now - 4 * HOUR) });
+  const heats = [];
+  for (const [i, offset] of [-3, -1.5, 0.75, 2].entries()) {
+    heats.push(await createHeat(tech, { eventId: winter.id, name: `Heat ${i + 1}`, startsAt: new Date(now + offset * HOUR) }));
+  }
+  await setHeatEntries(tech, heats[0]?.id ?? "", [ids["HV-01"], ids["HV-02"], ids["HV-03"], ids["HV-04"]].map(String));
+  await setHeatEntries(tech, heats[1]?.id ?? "", [ids["HV-05"], ids["HV-06"], ids["HV-07"], ids["HV-08"]].map(String));
+  await setHeatEntries(tech, heats[2]?.id ?? "", [ids["HV-01"], ids["HV-03"], ids["HV-05"], ids["HV-07"]].map(String));
+  await setHeatEntries(tech, heats[3]?.id ?? "", [ids["HV-02"], ids["HV-04"], ids["HV-06"], ids["HV-08"]].map(String));
+
+  const today: { name: string; options: Partial<DemoLogOptions>; note: string; heat: number }[] = [
+    { name: "HV-01", options: {}, note: "heat 1", heat: 0 },
+    { name: "HV-02", options: { style: "hard" }, note: "heat 1, pushed hard all race", heat: 0 },
+    { name: "HV-03", options: { scenario: "cracked-arm", severity: 2, position: 2 }, note: "heat 1, felt soft on pitch", heat: 0 },
+    { name: "HV-04", options: {}, note: "heat 1", heat: 0 },
+    { name: "HV-05", options: { scenario: "bent-prop", severity: 2, position: 3 }, note: "heat 2, touched a flag", heat: 1 },
+    { name: "HV-06", options: { scenario: "worn-bearing", severity: 3, position: 1 }, note: "heat 2, grinding noise on landing", heat: 1 },
+    { name: "HV-07", options: {}, note: "heat 2, before the crash", heat: 1 },
+    { name: "HV-08", options: {}, note: "heat 2", heat: 1 },
+  ];
+  for (const [i, t] of today.entries()) {
+    const heatStart = now + (t.heat === 0 ? -3 : -1.5) * HOUR;
+    await upload(t.name, heatStart + 5 * 60_000 + i * 60_000, t.options, t.note, i);
+  }
+  await logCrash(pilot, { airframeId: ids["HV-07"] ?? "", at: new Date(now - 1.4 * HOUR), heatId: heats[1]?.id ?? null, severity: "hard", positions: ["arm rear-left", "props"], note: "cartwheeled off the dive gate", ground: true });
+
+  // HV-08 flies old motors: push motor 4 past its life with the practice flights it has done.
+  const hv08motor = await db.installation.findFirst({ where: { airframeId: ids["HV-08"], position: "motor 4 (rear-left)", toAt: null }, include: { part: true } });
+  if (hv08motor) await db.part.update({ where: { id: hv08motor.partId }, data: { lifeFlights: 2, notes: "last season's motor, kept for practice" } });
+
+  await analysesSettled();
+  await rm(tmp, { recursive: true, force: true });
+  const logs = await db.flightLog.groupBy({ by: ["status"], _count: true });
+  console.log(`seed: demo team created in ${((Date.now() - started) / 1000).toFixed(1)} s (${logs.map((l) => `${l._count} ${l.status}`).join(", ")} logs)`);
+}
+
+main()
+  .then(async () => {
+    await db.$disconnect();
+    process.exit(0);
+  })
+  .catch(async (e: unknown) => {
+    console.error("seed failed:", e instanceof Error ? e.message : e);
+    await db.$disconnect();
+    process.exit(1);
+  });
