@@ -118,6 +118,13 @@ async function main(): Promise<void> {
   await analysesSettled();
   await setBaseline(tech, hv02, [hv02check], "new front-left arm after the autumn crash");
 
+  // Practice between the events: short 2 kHz logs (the logger was set lower), all healthy.
+  for (const daysAgo of [12, 5]) {
+    for (const [i, name] of names.entries()) {
+      await upload(name, now - daysAgo * DAY + i * 5 * 60_000, { sampleRateHz: 2000, durationS: 20 }, "practice session", i);
+    }
+  }
+
   // Today: Winter Series round 1. Earlier heats flown; the next heat starts soon.
   const winter = await createEvent(tech, { name: "Winter Series round 1", venue: "Copse Lane indoor arena", startsAt: new Date(now - 4 * HOUR) });
   const heats = [];

@@ -3,7 +3,7 @@
 import { build } from "esbuild";
 
 await build({
-  entryPoints: ["lib/analysis/worker.ts"],
+  entryPoints: ["lib/analysis/worker-entry.ts"],
   bundle: true,
   platform: "node",
   format: "esm",

@@ -1,8 +1,6 @@
-// Worker-thread entry for log analysis (bundled to generated/worker/analysis-worker.mjs by
-// scripts/build-worker.ts). It reads the stored file itself and posts progress, so the server's
-// request threads never parse or transform a log.
+// One analysis job: read a stored log from disk with progress, analyse it, report the result as
+// messages. Runs inside a worker thread (worker-entry.ts) or, with HEATCHECK_WORKERS=0, inline.
 import { createReadStream, statSync } from "node:fs";
-import { parentPort } from "node:worker_threads";
 import { isDomainError } from "../errors";
 import { parseColumnMap } from "../logs/columns";
 import { analyzeLog } from "./analyze-log";
@@ -55,6 +53,3 @@ export async function runJob(job: AnalysisJob, post: (m: WorkerMessage) => void)
 function compactNumbers(_key: string, value: unknown): unknown {
   return typeof value === "number" && Number.isFinite(value) && !Number.isInteger(value) ? Number(value.toPrecision(5)) : value;
 }
-
-const port = parentPort;
-if (port) port.on("message", (job: AnalysisJob) => void runJob(job, (m) => port.postMessage(m)));

@@ -1,6 +1,7 @@
 import "server-only";
 import { ConflictError, InputError, NotFoundError } from "@/lib/errors";
 import type { Actor } from "@/lib/roles";
+import { STANDARD_POSITIONS } from "@/lib/validations/airframe";
 import type { PartInput, SwapInput } from "@/lib/validations/part";
 import { airframeOfTeam } from "./airframes";
 import { audit } from "./audit";
@@ -113,8 +114,12 @@ export async function installedParts(actor: Actor, airframeId: string) {
   const installs = await db.installation.findMany({
     where: { airframeId, teamId: actor.teamId, toAt: null },
     include: { part: true },
-    orderBy: { position: "asc" },
   });
+  const order = (p: string) => {
+    const i = (STANDARD_POSITIONS as readonly string[]).indexOf(p);
+    return i < 0 ? STANDARD_POSITIONS.length : i;
+  };
+  installs.sort((a, b) => order(a.position) - order(b.position) || a.position.localeCompare(b.position));
   return Promise.all(installs.map(async (i) => ({ ...i, life: await partLife(i.partId, i.part) })));
 }
 

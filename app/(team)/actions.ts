@@ -1,0 +1,177 @@
+"use server";
+
+import { revalidatePath } from "next/cache";
+import { z } from "zod";
+import { createAirframe, setAirframeRetired, setAirframeStatus } from "@/lib/server/airframes";
+import { runAction, type ActionState } from "@/lib/server/actions";
+import { setBaseline } from "@/lib/server/baselines";
+import { logCrash, recordInspection } from "@/lib/server/crashes";
+import { createEvent, createHeat, setHeatEntries } from "@/lib/server/events";
+import { reanalyseLog } from "@/lib/server/ingest";
+import { createParts, setPartStatus, swapPart } from "@/lib/server/parts";
+import { addMember, changeRole, createToken, revokeToken, saveProfile } from "@/lib/server/team";
+import { airframeSchema, airframeStatusSchema } from "@/lib/validations/airframe";
+import { baselineSchema } from "@/lib/validations/baseline";
+import { idField, optionalText } from "@/lib/validations/common";
+import { crashSchema } from "@/lib/validations/crash";
+import { eventSchema, heatEntriesSchema, heatSchema } from "@/lib/validations/event";
+import { inspectionSchema } from "@/lib/validations/inspection";
+import { partSchema, partStatusSchema, swapSchema } from "@/lib/validations/part";
+import { importProfileSchema, memberSchema, roleChangeSchema, tokenSchema } from "@/lib/validations/team";
+
+// Every action: guard (role) → zod → service, via runAction. The service checks role and team again.
+
+function refreshAirframe(id: string) {
+  revalidatePath("/");
+  revalidatePath("/fleet");
+  revalidatePath(`/airframes/${id}`);
+}
+
+export async function createAirframeAction(_: ActionState, form: FormData): Promise<ActionState> {
+  return runAction("createAirframe", "tech", airframeSchema, form, async (actor, input) => {
+    await createAirframe(actor, input);
+    revalidatePath("/fleet");
+    return `${input.name} added to the fleet.`;
+  });
+}
+
+export async function setAirframeStatusAction(_: ActionState, form: FormData): Promise<ActionState> {
+  return runAction("setAirframeStatus", "tech", airframeStatusSchema, form, async (actor, input) => {
+    await setAirframeStatus(actor, input.airframeId, input.status, input.note);
+    refreshAirframe(input.airframeId);
+    return input.status === "grounded" ? "Airframe grounded." : "Airframe back in service.";
+  });
+}
+
+export async function retireAirframeAction(_: ActionState, form: FormData): Promise<ActionState> {
+  const schema = z.object({ airframeId: idField, retired: z.enum(["true", "false"]) });
+  return runAction("retireAirframe", "tech", schema, form, async (actor, input) => {
+    await setAirframeRetired(actor, input.airframeId, input.retired === "true");
+    refreshAirframe(input.airframeId);
+    return input.retired === "true" ? "Airframe retired: it leaves the queue." : "Airframe reinstated.";
+  });
+}
+
+export async function logCrashAction(_: ActionState, form: FormData): Promise<ActionState> {
+  return runAction("logCrash", "pilot", crashSchema, form, async (actor, input) => {
+    await logCrash(actor, input);
+    refreshAirframe(input.airframeId);
+    return input.ground || input.severity !== "minor" ? "Crash logged; the airframe is grounded until inspected." : "Crash logged.";
+  });
+}
+
+export async function swapPartAction(_: ActionState, form: FormData): Promise<ActionState> {
+  return runAction("swapPart", "tech", swapSchema, form, async (actor, input) => {
+    const r = await swapPart(actor, input);
+    refreshAirframe(input.airframeId);
+    revalidatePath("/parts");
+    return r.removedPartId ? `Swapped at ${input.position}; the old part is marked ${input.removedStatus}.` : `Fitted at ${input.position}.`;
+  });
+}
+
+export async function recordInspectionAction(_: ActionState, form: FormData): Promise<ActionState> {
+  return runAction("recordInspection", "tech", inspectionSchema, form, async (actor, input) => {
+    await recordInspection(actor, input);
+    refreshAirframe(input.airframeId);
+    return input.returnToService ? "Inspection signed off; back in service." : "Inspection recorded; still grounded.";
+  });
+}
+
+export async function setBaselineAction(_: ActionState, form: FormData): Promise<ActionState> {
+  return runAction("setBaseline", "tech", baselineSchema, form, async (actor, input) => {
+    const r = await setBaseline(actor, input.airframeId, input.logIds, input.reason);
+    refreshAirframe(input.airframeId);
+    return `Baseline set from ${input.logIds.length} log(s); ${r.rescored} later log(s) scored again.`;
+  });
+}
+
+export async function reanalyseAction(_: ActionState, form: FormData): Promise<ActionState> {
+  const schema = z.object({ logId: idField, airframeId: idField, mapText: optionalText(2000) });
+  return runAction("reanalyse", "tech", schema, form, async (actor, input) => {
+    await reanalyseLog(actor, input.logId, input.mapText || undefined);
+    refreshAirframe(input.airframeId);
+    return "Analysis queued again.";
+  });
+}
+
+export async function addPartsAction(_: ActionState, form: FormData): Promise<ActionState> {
+  return runAction("addParts", "tech", partSchema, form, async (actor, input) => {
+    const created = await createParts(actor, input);
+    revalidatePath("/parts");
+    return `${created.length} × ${input.kind} ${input.model} added to stock.`;
+  });
+}
+
+export async function setPartStatusAction(_: ActionState, form: FormData): Promise<ActionState> {
+  return runAction("setPartStatus", "tech", partStatusSchema, form, async (actor, input) => {
+    await setPartStatus(actor, input.partId, input.status);
+    revalidatePath("/parts");
+    return `Part marked ${input.status}.`;
+  });
+}
+
+export async function createEventAction(_: ActionState, form: FormData): Promise<ActionState> {
+  return runAction("createEvent", "tech", eventSchema, form, async (actor, input) => {
+    await createEvent(actor, input);
+    revalidatePath("/events");
+    return `${input.name} added.`;
+  });
+}
+
+export async function createHeatAction(_: ActionState, form: FormData): Promise<ActionState> {
+  return runAction("createHeat", "tech", heatSchema, form, async (actor, input) => {
+    await createHeat(actor, input);
+    revalidatePath("/events");
+    return `${input.name} added.`;
+  });
+}
+
+export async function setHeatEntriesAction(_: ActionState, form: FormData): Promise<ActionState> {
+  return runAction("setHeatEntries", "tech", heatEntriesSchema, form, async (actor, input) => {
+    await setHeatEntries(actor, input.heatId, input.airframeIds);
+    revalidatePath("/events");
+    revalidatePath("/");
+    return `${input.airframeIds.length} airframe(s) in this heat.`;
+  });
+}
+
+export async function addMemberAction(_: ActionState, form: FormData): Promise<ActionState> {
+  return runAction("addMember", "owner", memberSchema, form, async (actor, input) => {
+    await addMember(actor, input);
+    revalidatePath("/team");
+    return `${input.email} added as ${input.role}.`;
+  });
+}
+
+export async function changeRoleAction(_: ActionState, form: FormData): Promise<ActionState> {
+  return runAction("changeRole", "owner", roleChangeSchema, form, async (actor, input) => {
+    await changeRole(actor, input.membershipId, input.role);
+    revalidatePath("/team");
+    return `Role changed to ${input.role}.`;
+  });
+}
+
+export async function createTokenAction(_: ActionState, form: FormData): Promise<ActionState> {
+  return runAction("createToken", "owner", tokenSchema, form, async (actor, input) => {
+    const { token } = await createToken(actor, input.name);
+    revalidatePath("/team");
+    return { ok: true, message: `Token "${input.name}" created.`, secret: token };
+  });
+}
+
+export async function revokeTokenAction(_: ActionState, form: FormData): Promise<ActionState> {
+  return runAction("revokeToken", "owner", z.object({ tokenId: idField }), form, async (actor, input) => {
+    await revokeToken(actor, input.tokenId);
+    revalidatePath("/team");
+    return "Token revoked.";
+  });
+}
+
+export async function saveProfileAction(_: ActionState, form: FormData): Promise<ActionState> {
+  return runAction("saveProfile", "pilot", importProfileSchema, form, async (actor, input) => {
+    await saveProfile(actor, input.name, input.mapText);
+    revalidatePath("/upload");
+    revalidatePath("/team");
+    return `Import profile "${input.name}" saved.`;
+  });
+}

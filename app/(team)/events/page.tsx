@@ -1,0 +1,102 @@
+import { ActionForm } from "@/app/_components/action-form";
+import { roleAtLeast } from "@/lib/roles";
+import { db } from "@/lib/server/db";
+import { listEvents } from "@/lib/server/events";
+import { requireMember } from "@/lib/server/guard";
+import { createEventAction, createHeatAction, setHeatEntriesAction } from "../actions";
+
+export const dynamic = "force-dynamic";
+
+const WHEN = new Intl.DateTimeFormat("en-GB", { weekday: "short", day: "numeric", month: "short", hour: "2-digit", minute: "2-digit", timeZone: "UTC" });
+
+export default async function EventsPage() {
+  const actor = await requireMember("viewer");
+  const events = await listEvents(actor);
+  const airframes = await db.airframe.findMany({ where: { teamId: actor.teamId, retired: false }, orderBy: { name: "asc" } });
+  const canTech = roleAtLeast(actor.role, "tech");
+  return (
+    <>
+      <h1>Events and heats</h1>
+      <p className="muted">Times in UTC. The inspection queue can show just the airframes of the next heat.</p>
+      {events.map((e) => (
+        <section className="card" key={e.id} style={{ marginBottom: "1rem" }} data-testid="event">
+          <h2 style={{ marginTop: 0 }}>
+            {e.name} <span className="muted small">{e.venue} · {WHEN.format(e.startsAt)}</span>
+          </h2>
+          <table>
+            <thead>
+              <tr>
+                <th>heat</th>
+                <th>starts</th>
+                <th>airframes</th>
+              </tr>
+            </thead>
+            <tbody>
+              {e.heats.map((h) => (
+                <tr key={h.id}>
+                  <td>{h.name}</td>
+                  <td>{WHEN.format(h.startsAt)}</td>
+                  <td>
+                    {h.entries.map((x) => x.airframe.name).join(", ") || <span className="muted">none yet</span>}
+                    {canTech ? (
+                      <details className="action" style={{ marginTop: "0.4rem" }}>
+                        <summary>Assign airframes</summary>
+                        <ActionForm action={setHeatEntriesAction} submitLabel="Save heat">
+                          <input type="hidden" name="heatId" value={h.id} />
+                          <div className="row">
+                            {airframes.map((a) => (
+                              <label key={a.id} className="inline">
+                                <input type="checkbox" name="airframeIds" value={a.id} defaultChecked={h.entries.some((x) => x.airframeId === a.id)} /> {a.name}
+                              </label>
+                            ))}
+                          </div>
+                        </ActionForm>
+                      </details>
+                    ) : null}
+                  </td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+          {canTech ? (
+            <details className="action" style={{ marginTop: "0.6rem" }}>
+              <summary>Add a heat</summary>
+              <ActionForm action={createHeatAction} submitLabel="Add heat" className="row">
+                <input type="hidden" name="eventId" value={e.id} />
+                <label>
+                  Name
+                  <input name="name" placeholder={`Heat ${e.heats.length + 1}`} />
+                </label>
+                <label>
+                  Starts (UTC)
+                  <input name="startsAt" type="datetime-local" />
+                </label>
+              </ActionForm>
+            </details>
+          ) : null}
+        </section>
+      ))}
+      {canTech ? (
+        <details className="action">
+          <summary>Add an event</summary>
+          <ActionForm action={createEventAction} submitLabel="Add event">
+            <div className="row">
+              <label>
+                Name
+                <input name="name" />
+              </label>
+              <label>
+                Venue
+                <input name="venue" />
+              </label>
+              <label>
+                Starts (UTC)
+                <input name="startsAt" type="datetime-local" />
+              </label>
+            </div>
+          </ActionForm>
+        </details>
+      ) : null}
+    </>
+  );
+}

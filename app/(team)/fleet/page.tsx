@@ -1,0 +1,82 @@
+import Link from "next/link";
+import { ActionForm } from "@/app/_components/action-form";
+import { Sparkline } from "@/app/_components/sparkline";
+import { StatusBadge } from "@/app/_components/status-badge";
+import { roleAtLeast } from "@/lib/roles";
+import { fleetTable } from "@/lib/server/fleet";
+import { requireMember } from "@/lib/server/guard";
+import { createAirframeAction } from "../actions";
+
+export const dynamic = "force-dynamic";
+
+const WHEN = new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "short", hour: "2-digit", minute: "2-digit", timeZone: "UTC" });
+
+export default async function FleetPage() {
+  const actor = await requireMember("viewer");
+  const rows = await fleetTable(actor);
+  return (
+    <>
+      <h1>Fleet</h1>
+      <div className="card">
+        <table data-testid="fleet">
+          <thead>
+            <tr>
+              <th>airframe</th>
+              <th>state</th>
+              <th>health</th>
+              <th className="num">score</th>
+              <th>trend (last 10 logs)</th>
+              <th>last flight</th>
+              <th className="num">flights since baseline</th>
+            </tr>
+          </thead>
+          <tbody>
+            {rows.map((r) => (
+              <tr key={r.id} style={r.retired ? { opacity: 0.55 } : undefined}>
+                <td>
+                  <Link href={`/airframes/${r.id}`}>
+                    <strong>{r.name}</strong>
+                  </Link>
+                  <div className="muted small">{r.frameDesign}</div>
+                </td>
+                <td>{r.retired ? "retired" : r.state}</td>
+                <td>{r.status ? <StatusBadge status={r.status} /> : <span className="muted">no baseline</span>}</td>
+                <td className="num">{r.score === null ? "–" : Math.round(r.score)}</td>
+                <td>
+                  <Sparkline scores={r.trend} />
+                </td>
+                <td className="small">{r.lastFlight ? `${WHEN.format(r.lastFlight)} UTC` : "–"}</td>
+                <td className="num">{r.flightsSinceBaseline ?? "–"}</td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      </div>
+      {roleAtLeast(actor.role, "tech") ? (
+        <details className="action" style={{ marginTop: "1rem" }}>
+          <summary>Add an airframe</summary>
+          <ActionForm action={createAirframeAction} submitLabel="Add airframe">
+            <div className="row">
+              <label>
+                Name
+                <input name="name" placeholder="HV-09" />
+              </label>
+              <label>
+                Frame design
+                <input name="frameDesign" defaultValue={rows[0]?.frameDesign ?? ""} />
+              </label>
+              <label>
+                Serial
+                <input name="serial" />
+              </label>
+            </div>
+            <label>
+              Notes
+              <textarea name="notes" />
+            </label>
+          </ActionForm>
+        </details>
+      ) : null}
+    </>
+  );
+}

@@ -1,0 +1,25 @@
+import { redirect } from "next/navigation";
+import type { ReactNode } from "react";
+import { UnauthenticatedError } from "@/lib/errors";
+import { db } from "@/lib/server/db";
+import { requireMember } from "@/lib/server/guard";
+import { Nav } from "./_components/nav";
+
+export const dynamic = "force-dynamic";
+
+export default async function TeamLayout({ children }: { children: ReactNode }) {
+  let actor;
+  try {
+    actor = await requireMember("viewer");
+  } catch (e) {
+    if (e instanceof UnauthenticatedError) redirect("/signin");
+    throw e;
+  }
+  const team = await db.team.findUnique({ where: { id: actor.teamId } });
+  return (
+    <>
+      <Nav teamName={team?.name ?? ""} userName={actor.name} role={actor.role} />
+      <main>{children}</main>
+    </>
+  );
+}

@@ -1,0 +1,203 @@
+import Link from "next/link";
+import { ActionForm } from "@/app/_components/action-form";
+import { roleAtLeast } from "@/lib/roles";
+import { db } from "@/lib/server/db";
+import { requireMember } from "@/lib/server/guard";
+import { partHistory, stockSummary } from "@/lib/server/parts";
+import { PART_KINDS } from "@/lib/validations/part";
+import { addPartsAction, setPartStatusAction } from "../actions";
+
+export const dynamic = "force-dynamic";
+
+const DAY = new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "short", year: "numeric", timeZone: "UTC" });
+
+export default async function PartsPage({ searchParams }: { searchParams: Promise<{ part?: string; kind?: string }> }) {
+  const actor = await requireMember("viewer");
+  const { part: partId, kind } = await searchParams;
+  const summary = await stockSummary(actor);
+  const history = partId ? await partHistory(actor, partId) : null;
+  const canTech = roleAtLeast(actor.role, "tech");
+  const parts = await db.part.findMany({
+    where: { teamId: actor.teamId, ...(kind && (PART_KINDS as readonly string[]).includes(kind) ? { kind } : {}) },
+    orderBy: [{ kind: "asc" }, { model: "asc" }, { label: "asc" }],
+    include: { installations: { where: { toAt: null }, include: { airframe: { select: { name: true } } } } },
+  });
+  return (
+    <>
+      <h1>Parts</h1>
+      {history ? (
+        <section className="card" data-testid="part-history">
+          <h2 style={{ marginTop: 0 }}>
+            {history.part.kind} · {history.part.model} {history.part.label}
+          </h2>
+          <p className="muted">
+            {history.part.status} · {history.life.flights} flights, {history.life.minutes.toFixed(0)} min in all
+            {history.part.lifeFlights ? ` · life limit ${history.part.lifeFlights} flights` : ""}
+            {history.part.supplier ? ` · from ${history.part.supplier}` : ""}
+            {history.part.cost !== null ? ` · ${history.part.cost.toFixed(2)}` : ""}
+          </p>
+          <table>
+            <thead>
+              <tr>
+                <th>airframe</th>
+                <th>position</th>
+                <th>on</th>
+                <th>off</th>
+                <th>why</th>
+              </tr>
+            </thead>
+            <tbody>
+              {history.installs.map((i) => (
+                <tr key={i.id}>
+                  <td>{i.airframe.name}</td>
+                  <td>{i.position}</td>
+                  <td>{DAY.format(i.fromAt)}</td>
+                  <td>{i.toAt ? DAY.format(i.toAt) : "still fitted"}</td>
+                  <td>
+                    {i.reason}
+                    {i.removalReason ? ` → off: ${i.removalReason}` : ""}
+                  </td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+          <p>
+            <Link href="/parts">Close</Link>
+          </p>
+        </section>
+      ) : null}
+
+      <h2>Stock by kind and model</h2>
+      <div className="card">
+        <table data-testid="stock">
+          <thead>
+            <tr>
+              <th>kind</th>
+              <th>model</th>
+              <th className="num">in stock</th>
+              <th className="num">fitted</th>
+              <th className="num">damaged</th>
+              <th className="num">scrapped</th>
+              <th />
+            </tr>
+          </thead>
+          <tbody>
+            {summary.map((g) => (
+              <tr key={`${g.kind}-${g.model}`}>
+                <td>{g.kind}</td>
+                <td>{g.model}</td>
+                <td className="num">{g.stock}</td>
+                <td className="num">{g.installed}</td>
+                <td className="num">{g.damaged}</td>
+                <td className="num">{g.scrapped}</td>
+                <td>{g.low ? <strong style={{ color: "var(--inspect)" }}>low stock: fewer than 2 spares</strong> : null}</td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      </div>
+
+      {canTech ? (
+        <details className="action" style={{ marginTop: "1rem" }}>
+          <summary>Add parts to stock</summary>
+          <ActionForm action={addPartsAction} submitLabel="Add to stock">
+            <div className="row">
+              <label>
+                Kind
+                <select name="kind">
+                  {PART_KINDS.map((k) => (
+                    <option key={k}>{k}</option>
+                  ))}
+                </select>
+              </label>
+              <label>
+                Model
+                <input name="model" />
+              </label>
+              <label>
+                How many
+                <input name="quantity" type="number" min={1} max={200} defaultValue={1} />
+              </label>
+              <label>
+                Label
+                <input name="label" placeholder="spare-arm" />
+              </label>
+            </div>
+            <div className="row">
+              <label>
+                Supplier
+                <input name="supplier" />
+              </label>
+              <label>
+                Cost each
+                <input name="cost" inputMode="decimal" />
+              </label>
+              <label>
+                Acquired
+                <input name="acquiredAt" type="date" />
+              </label>
+              <label>
+                Life (flights)
+                <input name="lifeFlights" inputMode="numeric" />
+              </label>
+              <label>
+                Life (minutes)
+                <input name="lifeMinutes" inputMode="numeric" />
+              </label>
+            </div>
+          </ActionForm>
+        </details>
+      ) : null}
+
+      <h2>Every part</h2>
+      <div className="toolbar">
+        <Link className="chip" href="/parts" aria-current={!kind}>
+          all
+        </Link>
+        {PART_KINDS.map((k) => (
+          <Link key={k} className="chip" href={`/parts?kind=${k}`} aria-current={kind === k}>
+            {k}
+          </Link>
+        ))}
+      </div>
+      <div className="card">
+        <table>
+          <thead>
+            <tr>
+              <th>part</th>
+              <th>status</th>
+              <th>where</th>
+              <th />
+            </tr>
+          </thead>
+          <tbody>
+            {parts.map((p) => (
+              <tr key={p.id}>
+                <td>
+                  <Link href={`/parts?part=${p.id}`}>
+                    {p.kind} · {p.model}
+                  </Link>{" "}
+                  <span className="muted small">{p.label}</span>
+                </td>
+                <td>{p.status}</td>
+                <td>{p.installations[0] ? `${p.installations[0].airframe.name}, ${p.installations[0].position}` : "–"}</td>
+                <td>
+                  {canTech && p.status !== "installed" ? (
+                    <ActionForm action={setPartStatusAction} submitLabel="Set" className="row">
+                      <input type="hidden" name="partId" value={p.id} />
+                      <select name="status" defaultValue={p.status}>
+                        <option>stock</option>
+                        <option>damaged</option>
+                        <option>scrapped</option>
+                      </select>
+                    </ActionForm>
+                  ) : null}
+                </td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      </div>
+    </>
+  );
+}

@@ -1,0 +1,146 @@
+import { ActionForm } from "@/app/_components/action-form";
+import { ROLES, roleAtLeast } from "@/lib/roles";
+import { requireMember } from "@/lib/server/guard";
+import { listMembers, listProfiles, listTokens, recentAudit } from "@/lib/server/team";
+import { addMemberAction, changeRoleAction, createTokenAction, revokeTokenAction } from "../actions";
+
+export const dynamic = "force-dynamic";
+
+const WHEN = new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "short", hour: "2-digit", minute: "2-digit", timeZone: "UTC" });
+
+export default async function TeamPage() {
+  const actor = await requireMember("viewer");
+  const isOwner = roleAtLeast(actor.role, "owner");
+  const [members, tokens, profiles, audit] = await Promise.all([
+    isOwner ? listMembers(actor) : Promise.resolve([]),
+    isOwner ? listTokens(actor) : Promise.resolve([]),
+    listProfiles(actor),
+    recentAudit(actor),
+  ]);
+  return (
+    <>
+      <h1>Team</h1>
+      {!isOwner ? <p className="muted">Members, roles and API tokens are managed by the team&apos;s owners.</p> : null}
+      {isOwner ? (
+        <div className="grid two">
+          <section className="card">
+            <h2 style={{ marginTop: 0 }}>Members and roles</h2>
+            <p className="muted small">viewer: sees everything · pilot: also uploads logs and logs crashes · tech: also works on airframes, parts, events and baselines · owner: also manages the team.</p>
+            <table data-testid="members">
+              <tbody>
+                {members.map((m) => (
+                  <tr key={m.id}>
+                    <td>
+                      <strong>{m.user.name}</strong>
+                      <div className="muted small">{m.user.email}</div>
+                    </td>
+                    <td>
+                      <ActionForm action={changeRoleAction} submitLabel="Change" className="row">
+                        <input type="hidden" name="membershipId" value={m.id} />
+                        <select name="role" defaultValue={m.role} aria-label={`role of ${m.user.name}`}>
+                          {ROLES.map((r) => (
+                            <option key={r}>{r}</option>
+                          ))}
+                        </select>
+                      </ActionForm>
+                    </td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+            <details className="action">
+              <summary>Add a member</summary>
+              <ActionForm action={addMemberAction} submitLabel="Add member">
+                <div className="row">
+                  <label>
+                    Name
+                    <input name="name" />
+                  </label>
+                  <label>
+                    Email
+                    <input name="email" type="email" />
+                  </label>
+                </div>
+                <div className="row">
+                  <label>
+                    Role
+                    <select name="role" defaultValue="pilot">
+                      {ROLES.map((r) => (
+                        <option key={r}>{r}</option>
+                      ))}
+                    </select>
+                  </label>
+                  <label>
+                    First password (10+ characters)
+                    <input name="password" type="password" autoComplete="new-password" />
+                  </label>
+                </div>
+              </ActionForm>
+            </details>
+          </section>
+          <section className="card">
+            <h2 style={{ marginTop: 0 }}>API tokens for scripted uploads</h2>
+            <p className="muted small">A token may upload logs and read the queue and the airframes. Only a hash is stored.</p>
+            <table data-testid="tokens">
+              <tbody>
+                {tokens.map((t) => (
+                  <tr key={t.id}>
+                    <td>
+                      <strong>{t.name}</strong> <code>{t.prefix}…</code>
+                      <div className="muted small">
+                        created {WHEN.format(t.createdAt)}
+                        {t.lastUsedAt ? ` · last used ${WHEN.format(t.lastUsedAt)}` : " · never used"}
+                      </div>
+                    </td>
+                    <td>
+                      {t.revokedAt ? (
+                        <span className="muted">revoked {WHEN.format(t.revokedAt)}</span>
+                      ) : (
+                        <ActionForm action={revokeTokenAction} submitLabel="Revoke" danger className="">
+                          <input type="hidden" name="tokenId" value={t.id} />
+                        </ActionForm>
+                      )}
+                    </td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+            <ActionForm action={createTokenAction} submitLabel="Create token" testId="token-form">
+              <label>
+                Name
+                <input name="name" placeholder="pit laptop uploader" />
+              </label>
+            </ActionForm>
+          </section>
+        </div>
+      ) : null}
+      <div className="grid two" style={{ marginTop: "1rem" }}>
+        <section className="card">
+          <h2 style={{ marginTop: 0 }}>Import profiles</h2>
+          {profiles.length === 0 ? <p className="muted">None yet: the upload screen saves one when you map a logger&apos;s columns.</p> : null}
+          <ul>
+            {profiles.map((p) => (
+              <li key={p.id}>
+                <strong>{p.name}</strong> <code className="small">{p.mapText}</code>
+              </li>
+            ))}
+          </ul>
+        </section>
+        <section className="card">
+          <h2 style={{ marginTop: 0 }}>Recent changes</h2>
+          <ul className="timeline">
+            {audit.map((a) => (
+              <li key={a.id}>
+                <span className="small muted">{WHEN.format(a.at)}</span>
+                <span className="kind">{a.action}</span>
+                <span>
+                  {a.userName}: {a.detail}
+                </span>
+              </li>
+            ))}
+          </ul>
+        </section>
+      </div>
+    </>
+  );
+}

@@ -1,0 +1,26 @@
+import { requireApiCaller } from "@/lib/server/guard";
+import { jsonRoute } from "@/lib/server/http";
+import { ingestLog } from "@/lib/server/ingest";
+import { readMultipartFile } from "@/lib/server/multipart";
+
+export const dynamic = "force-dynamic";
+
+/**
+ * POST /api/v1/logs — multipart: `file`, optional `airframe` (name) or `airframeId`, optional
+ * `mapText` (column map). Fields must come before the file. Bearer token or signed-in pilot+.
+ * Answers at once with { logId, airframe, duplicate, matchedBy }; the analysis runs in the background.
+ */
+export async function POST(request: Request) {
+  return jsonRoute("POST /api/v1/logs", async () => {
+    const actor = await requireApiCaller(request, "pilot");
+    return readMultipartFile(request, (file) =>
+      ingestLog(actor, {
+        fileName: file.fileName,
+        body: file.body,
+        airframeName: file.fields.airframe || undefined,
+        airframeId: file.fields.airframeId || undefined,
+        mapText: file.fields.mapText || undefined,
+      }),
+    );
+  });
+}
