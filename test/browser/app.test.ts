@@ -1,0 +1,217 @@
+import { mkdirSync, writeFileSync } from "node:fs";
+import { join } from "node:path";
+import { chromium, type Browser, type BrowserContext, type Page } from "playwright-core";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { demoCsv } from "@/lib/demo/demo-csv";
+import { startApp, type AppServer } from "../support/app-server";
+
+// The built app in Debian's chromium, driven by playwright-core, against the seeded demo team.
+// Screenshots of each main screen land in test/screenshots/ (git-ignored) for a person to look at.
+const SHOTS = "test/screenshots";
+const CHROMIUM_ARGS = ["--headless", "--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update", "--disable-sync", "--no-first-run"];
+
+let app: AppServer;
+let browser: Browser;
+
+async function signedIn(email: string, password: string, width = 1440): Promise<{ context: BrowserContext; page: Page }> {
+  const context = await browser.newContext({ viewport: { width, height: 900 } });
+  const page = await context.newPage();
+  await page.goto(`${app.url}/signin`);
+  await page.fill("input[name=email]", email);
+  await page.fill("input[name=password]", password);
+  await page.click("button[type=submit]");
+  await page.waitForURL(`${app.url}/`);
+  return { context, page };
+}
+
+async function shot(page: Page, name: string): Promise<void> {
+  await page.screenshot({ path: join(SHOTS, `${name}.png`), fullPage: true });
+}
+
+async function airframeUrl(page: Page, name: string): Promise<string> {
+  await page.goto(`${app.url}/fleet`);
+  const href = await page.locator(`table[data-testid=fleet] a:has-text("${name}")`).first().getAttribute("href");
+  return `${app.url}${href ?? ""}`;
+}
+
+beforeAll(async () => {
+  mkdirSync(SHOTS, { recursive: true });
+  app = await startApp();
+  browser = await chromium.launch({ executablePath: "/usr/bin/chromium", args: CHROMIUM_ARGS });
+}, 400_000);
+
+afterAll(async () => {
+  await browser?.close();
+  await app?.stop();
+});
+
+describe("signed out", () => {
+  it("pages send you to sign in, the API answers 401", async () => {
+    const page = await browser.newPage();
+    await page.goto(`${app.url}/fleet`);
+    expect(page.url()).toContain("/signin");
+    await shot(page, "signin");
+    const r = await fetch(`${app.url}/api/v1/queue`);
+    expect(r.status).toBe(401);
+    await page.close();
+  });
+});
+
+describe("the crew at work (owner)", () => {
+  let page: Page;
+  let context: BrowserContext;
+  beforeAll(async () => {
+    ({ context, page } = await signedIn("owner@heatcheck.test", "pitwall-owner-2026"));
+  });
+  afterAll(async () => context.close());
+
+  it("the queue shows the demo ranking with reasons in words", async () => {
+    const rows = page.locator("[data-testid=queue] > li");
+    await expect.poll(() => rows.count()).toBe(8);
+    const names = await rows.evaluateAll((els) => els.map((e) => e.getAttribute("data-airframe")));
+    // The crashed, uninspected quad first; then the three damaged ones; healthy ones last.
+    expect(names[0]).toBe("HV-07");
+    expect(new Set(names.slice(1, 4))).toEqual(new Set(["HV-03", "HV-05", "HV-06"]));
+    const text = await page.locator("[data-testid=queue]").innerText();
+    expect(text).toMatch(/pitch mode at \d+ Hz dropped \d+ % since baseline/);
+    expect(text).toMatch(/motor 3 \(rear-right\) vibrates \d+ dB more/);
+    expect(text).toMatch(/broadband noise above \d+ Hz is up \d+ dB/);
+    expect(text).toMatch(/crash on .* with no inspection since/);
+    expect(await page.locator(".caution").innerText()).toMatch(/decision aid, not an airworthiness certificate/);
+    await shot(page, "queue");
+    await page.setViewportSize({ width: 1024, height: 768 });
+    await shot(page, "queue-tablet");
+    await page.setViewportSize({ width: 1440, height: 900 });
+  });
+
+  it("logging a crash on a healthy quad moves it up the queue", async () => {
+    const before = await page.locator("[data-testid=queue] > li").evaluateAll((els) => els.map((e) => e.getAttribute("data-airframe")));
+    expect(before.indexOf("HV-01")).toBeGreaterThan(3);
+    await page.goto(await airframeUrl(page, "HV-01"));
+    await page.click("[data-testid=crash-form] summary");
+    await page.selectOption("[data-testid=crash-form] select[name=severity]", "hard");
+    await page.check('[data-testid=crash-form] input[value="arm front-right"]');
+    await page.fill("[data-testid=crash-form] textarea[name=note]", "hit the gate frame");
+    await page.click("[data-testid=crash-form] button[type=submit]");
+    await page.waitForSelector("[data-testid=crash-form] .form-message.ok");
+    await page.goto(`${app.url}/`);
+    const after = await page.locator("[data-testid=queue] > li").evaluateAll((els) => els.map((e) => e.getAttribute("data-airframe")));
+    expect(after.indexOf("HV-01")).toBeLessThan(2);
+    expect(await page.locator('[data-airframe="HV-01"]').innerText()).toMatch(/hard crash .* \(arm front-right\) with no inspection since/);
+  });
+
+  it("the airframe screen draws spectra, the throttle map, parts and history", async () => {
+    await page.goto(await airframeUrl(page, "HV-03"));
+    await page.waitForSelector("[data-testid=spectrum-pitch] svg path.recharts-curve");
+    expect(await page.locator("[data-testid=heatmap] rect").count()).toBeGreaterThan(100);
+    expect(await page.locator("[data-testid=installed-parts] tbody tr").count()).toBe(16);
+    expect(await page.locator("[data-testid=timeline] li").count()).toBeGreaterThan(2);
+    expect(await page.locator("body").innerText()).toMatch(/pitch mode at \d+ Hz dropped/);
+    await shot(page, "airframe");
+  });
+
+  it("uploading two logs through the upload screen, both analysed", async () => {
+    const dir = join(app.dataDir, "to-upload");
+    mkdirSync(dir, { recursive: true });
+    const good = join(dir, "hv-04-practice-good.csv");
+    const loose = join(dir, "hv-04-practice-loose.csv");
+    writeFileSync(good, demoCsv({ seed: 901, durationS: 24, airframeSeed: 3 }, { airframe: "HV-04", flownAt: new Date(Date.now() - 20 * 60_000).toISOString() }));
+    writeFileSync(loose, demoCsv({ seed: 902, durationS: 24, airframeSeed: 3, scenario: "loose-stack", severity: 3 }, { airframe: "HV-04", flownAt: new Date(Date.now() - 10 * 60_000).toISOString() }));
+    await page.goto(`${app.url}/upload`);
+    await page.setInputFiles("[data-testid=file-input]", [good, loose]);
+    await expect.poll(() => page.locator("[data-testid=upload-list] tbody tr").count()).toBe(2);
+    expect(await page.locator("[data-testid=upload-list]").innerText()).toMatch(/matched by metadata/);
+    await page.click("[data-testid=import-all]");
+    await expect
+      .poll(async () => page.locator('[data-testid=upload-list] tr[data-phase="done"]').count(), { timeout: 60_000 })
+      .toBe(2);
+    const results = await page.locator("[data-testid=upload-result]").allInnerTexts();
+    expect(results.join(" ")).toMatch(/score \d+/);
+    await shot(page, "upload");
+  });
+
+  it("setting a baseline from the uploaded good log scores the later one against it", async () => {
+    await page.goto(await airframeUrl(page, "HV-04"));
+    await page.click("[data-testid=baseline-form] summary");
+    await page.check('[data-testid=baseline-form] label:has-text("hv-04-practice-good.csv") input');
+    await page.fill("[data-testid=baseline-form] input[name=reason]", "clean practice pack after re-torquing");
+    await page.click("[data-testid=baseline-form] button[type=submit]");
+    await expect.poll(() => page.locator("[data-testid=baseline-form] .form-message.ok").innerText()).toMatch(/1 later log\(s\) scored again/);
+    await page.reload();
+    expect(await page.locator("[data-testid=timeline]").innerText()).toMatch(/baseline set by Mara Quill: clean practice pack/);
+    expect(await page.locator("body").innerText()).toMatch(/new (pitch|roll) peak at 1\d\d Hz/);
+  });
+
+  it("swapping a part records it on the airframe", async () => {
+    await page.goto(await airframeUrl(page, "HV-02"));
+    await page.click("[data-testid=swap-form] summary");
+    await page.selectOption("[data-testid=swap-form] select[name=position]", "motor 3 (rear-right)");
+    const spare = await page.locator('[data-testid=swap-form] select[name=newPartId] option:has-text("spare-motor")').first().getAttribute("value");
+    await page.selectOption("[data-testid=swap-form] select[name=newPartId]", spare ?? "");
+    await page.fill("[data-testid=swap-form] input[name=reason]", "bearing felt rough by hand");
+    await page.click("[data-testid=swap-form] button[type=submit]");
+    await page.waitForSelector("[data-testid=swap-form] .form-message.ok");
+    await page.reload();
+    const row = page.locator("[data-testid=installed-parts] tr", { hasText: "motor 3 (rear-right)" });
+    expect(await row.innerText()).toMatch(/spare-motor/);
+    expect(await page.locator("[data-testid=timeline]").innerText()).toMatch(/bearing felt rough by hand/);
+  });
+
+  it("fleet, parts, events and team screens are filled", async () => {
+    for (const [path, name, needle] of [
+      ["/fleet", "fleet", /HV-08/],
+      ["/parts", "parts", /low stock|spare-arm/],
+      ["/events", "events", /Winter Series round 1/],
+      ["/team", "team", /API tokens/],
+    ] as const) {
+      await page.goto(`${app.url}${path}`);
+      expect(await page.locator("main").innerText()).toMatch(needle);
+      await shot(page, name);
+    }
+    expect(await page.locator("[data-testid=sparkline]").count()).toBe(0); // team page has none
+    await page.goto(`${app.url}/fleet`);
+    expect(await page.locator("[data-testid=sparkline]").count()).toBeGreaterThan(4);
+  });
+
+  it("an API token uploads a log and reads the queue and an airframe", async () => {
+    await page.goto(`${app.url}/team`);
+    await page.fill("[data-testid=token-form] input[name=name]", "pit script");
+    await page.click("[data-testid=token-form] button[type=submit]");
+    const token = (await page.locator("[data-testid=new-token]").innerText()).trim();
+    const auth = { authorization: `Bearer ${token}` };
+    const queue = (await (await fetch(`${app.url}/api/v1/queue`, { headers: auth })).json()) as { airframe: string; status: string; reasons: string[] }[];
+    expect(queue[0]).toMatchObject({ airframe: expect.any(String), status: "ground" });
+    const form = new FormData();
+    form.append("airframe", "HV-08");
+    form.append("file", new Blob([demoCsv({ seed: 903, durationS: 12, sampleRateHz: 2000, airframeSeed: 7 }, { airframe: "HV-08" })]), "scripted.csv");
+    const up = await fetch(`${app.url}/api/v1/logs`, { method: "POST", headers: auth, body: form });
+    expect(up.status).toBe(200);
+    const rec = (await (await fetch(`${app.url}/api/v1/airframes/HV-08`, { headers: auth })).json()) as { name: string; parts: unknown[]; logs: { fileName: string }[] };
+    expect(rec.name).toBe("HV-08");
+    expect(rec.parts).toHaveLength(16);
+    expect(rec.logs.map((l) => l.fileName)).toContain("scripted.csv");
+    expect((await fetch(`${app.url}/api/v1/queue`, { headers: { authorization: "Bearer hc_not-a-token" } })).status).toBe(401);
+  });
+});
+
+describe("a viewer", () => {
+  it("sees everything and can change nothing", async () => {
+    const { context, page } = await signedIn("viewer@heatcheck.test", "pitwall-viewer-2026", 1024);
+    await page.goto(await airframeUrl(page, "HV-05"));
+    expect(await page.locator("body").innerText()).toMatch(/can view this airframe but not change it/);
+    expect(await page.locator("details.action").count()).toBe(0);
+    expect(await page.locator('button:has-text("Re-run analysis")').count()).toBe(0);
+    await shot(page, "airframe-viewer-tablet");
+    await page.goto(`${app.url}/upload`);
+    expect(await page.locator("main").innerText()).toMatch(/cannot upload|not upload/);
+    // The server refuses too, whatever the screen shows.
+    const cookies = (await context.cookies()).map((c) => `${c.name}=${c.value}`).join("; ");
+    const form = new FormData();
+    form.append("file", new Blob(["time_us,gyro_roll,gyro_pitch,gyro_yaw\n"]), "v.csv");
+    const r = await fetch(`${app.url}/api/v1/logs`, { method: "POST", headers: { cookie: cookies }, body: form });
+    expect(r.status).toBe(403);
+    await page.goto(`${app.url}/team`);
+    expect(await page.locator("main").innerText()).toMatch(/managed by the team's owners/);
+    await context.close();
+  });
+});
