@@ -1,5 +1,6 @@
 import { closeSync, openSync, writeSync } from "node:fs";
 import { analyzeLog, type AnalyzeOptions } from "../analysis/analyze-log";
+import { analyzeLogInTwoThreads } from "../analysis/two-threads";
 import { DEFAULT_ANALYSIS, type AnalysisSettings } from "../analysis/settings";
 import type { LogAnalysis } from "../analysis/types";
 import { MOTOR_POSITIONS } from "../demo/airframe-model";
@@ -34,17 +35,25 @@ export interface CliIo {
   stderr: (text: string) => void;
 }
 
+export interface CliOptions {
+  /**
+   * The entry module's URL, when it serves the analysis thread too: logs are then parsed on one
+   * thread and analysed on another. Without it everything runs on this thread.
+   */
+  entryUrl?: string;
+}
+
 const ANALYSIS_FLAGS = ["nperseg", "overlap", "window", "average", "map", "max-mb"];
 
 /** Runs one CLI command and returns its exit code. Never throws. */
-export async function runCli(argv: readonly string[], io: CliIo): Promise<number> {
+export async function runCli(argv: readonly string[], io: CliIo, cli: CliOptions = {}): Promise<number> {
   const [command, ...rest] = argv;
   try {
     switch (command) {
       case "analyze":
-        return await analyzeCommand(parseArgs(rest, ANALYSIS_FLAGS, ["json"]), io);
+        return await analyzeCommand(parseArgs(rest, ANALYSIS_FLAGS, ["json"]), io, cli);
       case "compare":
-        return await compareCommand(parseArgs(rest, [...ANALYSIS_FLAGS, "baseline"], ["json"]), io);
+        return await compareCommand(parseArgs(rest, [...ANALYSIS_FLAGS, "baseline"], ["json"]), io, cli);
       case "demo-log":
         return demoLogCommand(parseArgs(rest, ["scenario", "severity", "seed", "duration", "rate", "style", "airframe"]), io);
       case undefined:
@@ -89,10 +98,11 @@ function analyzeOptions(args: ParsedArgs): AnalyzeOptions {
   };
 }
 
-async function analyzeFile(path: string, options: AnalyzeOptions): Promise<LogAnalysis> {
+async function analyzeFile(path: string, options: AnalyzeOptions, cli: CliOptions): Promise<LogAnalysis> {
   const source = await fileSource(path);
   try {
-    return (await analyzeLog(source, options)).analysis;
+    const run = cli.entryUrl ? analyzeLogInTwoThreads(source, { ...options, entryUrl: cli.entryUrl }) : analyzeLog(source, options);
+    return (await run).analysis;
   } catch (e) {
     // Say which file, since compare reads several.
     if (isDomainError(e)) throw new InputError(`${path}: ${e.message}`);
@@ -105,21 +115,21 @@ function onePositional(args: ParsedArgs, what: string): string {
   return args.positionals[0] ?? "";
 }
 
-async function analyzeCommand(args: ParsedArgs, io: CliIo): Promise<number> {
+async function analyzeCommand(args: ParsedArgs, io: CliIo, cli: CliOptions): Promise<number> {
   const path = onePositional(args, "log file");
-  const analysis = await analyzeFile(path, analyzeOptions(args));
+  const analysis = await analyzeFile(path, analyzeOptions(args), cli);
   io.stdout(hasSwitch(args, "json") ? JSON.stringify(analyzeJson(analysis)) + "\n" : formatAnalysis(path, analysis));
   return 0;
 }
 
-async function compareCommand(args: ParsedArgs, io: CliIo): Promise<number> {
+async function compareCommand(args: ParsedArgs, io: CliIo, cli: CliOptions): Promise<number> {
   const path = onePositional(args, "log file to check");
   const baselines = args.flags.get("baseline") ?? [];
   if (baselines.length === 0) throw new UsageError("compare needs at least one --baseline <known-good log>");
   const options = analyzeOptions(args);
   const good = [];
-  for (const b of baselines) good.push(await analyzeFile(b, options));
-  const log = await analyzeFile(path, options);
+  for (const b of baselines) good.push(await analyzeFile(b, options, cli));
+  const log = await analyzeFile(path, options, cli);
   const assessment = compareWithBaseline(log, buildBaseline(good), { motorPositions: MOTOR_POSITIONS });
   io.stdout(hasSwitch(args, "json") ? JSON.stringify(compareJson(assessment)) + "\n" : formatAssessment(path, assessment));
   return 0;

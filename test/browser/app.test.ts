@@ -67,7 +67,7 @@ describe("the crew at work (owner)", () => {
 
   it("the queue shows the demo ranking with reasons in words", async () => {
     const rows = page.locator("[data-testid=queue] > li");
-    await expect.poll(() => rows.count()).toBe(8);
+    await expect.poll(() => rows.count(), { timeout: 15_000 }).toBe(8);
     const names = await rows.evaluateAll((els) => els.map((e) => e.getAttribute("data-airframe")));
     // The crashed, uninspected quad first; then the three damaged ones; healthy ones last.
     expect(names[0]).toBe("HV-07");
@@ -170,7 +170,8 @@ describe("the crew at work (owner)", () => {
     }
     expect(await page.locator("[data-testid=sparkline]").count()).toBe(0); // team page has none
     await page.goto(`${app.url}/fleet`);
-    expect(await page.locator("[data-testid=sparkline]").count()).toBeGreaterThan(4);
+    // Charts draw after hydration.
+    await expect.poll(() => page.locator("[data-testid=sparkline]").count(), { timeout: 15_000 }).toBeGreaterThan(4);
   });
 
   it("an API token uploads a log and reads the queue and an airframe", async () => {

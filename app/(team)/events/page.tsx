@@ -1,4 +1,5 @@
 import { ActionForm } from "@/app/_components/action-form";
+import { TextField } from "@/app/_components/fields";
 import { roleAtLeast } from "@/lib/roles";
 import { db } from "@/lib/server/db";
 import { listEvents } from "@/lib/server/events";
@@ -63,14 +64,8 @@ export default async function EventsPage() {
               <summary>Add a heat</summary>
               <ActionForm action={createHeatAction} submitLabel="Add heat" className="row">
                 <input type="hidden" name="eventId" value={e.id} />
-                <label>
-                  Name
-                  <input name="name" placeholder={`Heat ${e.heats.length + 1}`} />
-                </label>
-                <label>
-                  Starts (UTC)
-                  <input name="startsAt" type="datetime-local" />
-                </label>
+                <TextField label="Name" name="name" placeholder={`Heat ${e.heats.length + 1}`} />
+                <TextField label="Starts (UTC)" name="startsAt" type="datetime-local" />
               </ActionForm>
             </details>
           ) : null}
@@ -81,18 +76,9 @@ export default async function EventsPage() {
           <summary>Add an event</summary>
           <ActionForm action={createEventAction} submitLabel="Add event">
             <div className="row">
-              <label>
-                Name
-                <input name="name" />
-              </label>
-              <label>
-                Venue
-                <input name="venue" />
-              </label>
-              <label>
-                Starts (UTC)
-                <input name="startsAt" type="datetime-local" />
-              </label>
+              <TextField label="Name" name="name" />
+              <TextField label="Venue" name="venue" />
+              <TextField label="Starts (UTC)" name="startsAt" type="datetime-local" />
             </div>
           </ActionForm>
         </details>

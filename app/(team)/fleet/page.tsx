@@ -1,5 +1,6 @@
 import Link from "next/link";
 import { ActionForm } from "@/app/_components/action-form";
+import { TextField } from "@/app/_components/fields";
 import { Sparkline } from "@/app/_components/sparkline";
 import { StatusBadge } from "@/app/_components/status-badge";
 import { roleAtLeast } from "@/lib/roles";
@@ -57,18 +58,9 @@ export default async function FleetPage() {
           <summary>Add an airframe</summary>
           <ActionForm action={createAirframeAction} submitLabel="Add airframe">
             <div className="row">
-              <label>
-                Name
-                <input name="name" placeholder="HV-09" />
-              </label>
-              <label>
-                Frame design
-                <input name="frameDesign" defaultValue={rows[0]?.frameDesign ?? ""} />
-              </label>
-              <label>
-                Serial
-                <input name="serial" />
-              </label>
+              <TextField label="Name" name="name" placeholder="HV-09" />
+              <TextField label="Frame design" name="frameDesign" defaultValue={rows[0]?.frameDesign ?? ""} />
+              <TextField label="Serial" name="serial" />
             </div>
             <label>
               Notes

@@ -1,5 +1,6 @@
 import Link from "next/link";
 import { ActionForm } from "@/app/_components/action-form";
+import { SelectField, TextField } from "@/app/_components/fields";
 import { roleAtLeast } from "@/lib/roles";
 import { db } from "@/lib/server/db";
 import { requireMember } from "@/lib/server/guard";
@@ -102,48 +103,17 @@ export default async function PartsPage({ searchParams }: { searchParams: Promis
           <summary>Add parts to stock</summary>
           <ActionForm action={addPartsAction} submitLabel="Add to stock">
             <div className="row">
-              <label>
-                Kind
-                <select name="kind">
-                  {PART_KINDS.map((k) => (
-                    <option key={k}>{k}</option>
-                  ))}
-                </select>
-              </label>
-              <label>
-                Model
-                <input name="model" />
-              </label>
-              <label>
-                How many
-                <input name="quantity" type="number" min={1} max={200} defaultValue={1} />
-              </label>
-              <label>
-                Label
-                <input name="label" placeholder="spare-arm" />
-              </label>
+              <SelectField label="Kind" name="kind" options={PART_KINDS} />
+              <TextField label="Model" name="model" />
+              <TextField label="How many" name="quantity" type="number" min={1} max={200} defaultValue={1} />
+              <TextField label="Label" name="label" placeholder="spare-arm" />
             </div>
             <div className="row">
-              <label>
-                Supplier
-                <input name="supplier" />
-              </label>
-              <label>
-                Cost each
-                <input name="cost" inputMode="decimal" />
-              </label>
-              <label>
-                Acquired
-                <input name="acquiredAt" type="date" />
-              </label>
-              <label>
-                Life (flights)
-                <input name="lifeFlights" inputMode="numeric" />
-              </label>
-              <label>
-                Life (minutes)
-                <input name="lifeMinutes" inputMode="numeric" />
-              </label>
+              <TextField label="Supplier" name="supplier" />
+              <TextField label="Cost each" name="cost" inputMode="decimal" />
+              <TextField label="Acquired" name="acquiredAt" type="date" />
+              <TextField label="Life (flights)" name="lifeFlights" inputMode="numeric" />
+              <TextField label="Life (minutes)" name="lifeMinutes" inputMode="numeric" />
             </div>
           </ActionForm>
         </details>

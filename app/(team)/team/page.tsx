@@ -1,4 +1,5 @@
 import { ActionForm } from "@/app/_components/action-form";
+import { SelectField, TextField } from "@/app/_components/fields";
 import { ROLES, roleAtLeast } from "@/lib/roles";
 import { requireMember } from "@/lib/server/guard";
 import { listMembers, listProfiles, listTokens, recentAudit } from "@/lib/server/team";
@@ -52,28 +53,12 @@ export default async function TeamPage() {
               <summary>Add a member</summary>
               <ActionForm action={addMemberAction} submitLabel="Add member">
                 <div className="row">
-                  <label>
-                    Name
-                    <input name="name" />
-                  </label>
-                  <label>
-                    Email
-                    <input name="email" type="email" />
-                  </label>
+                  <TextField label="Name" name="name" />
+                  <TextField label="Email" name="email" type="email" />
                 </div>
                 <div className="row">
-                  <label>
-                    Role
-                    <select name="role" defaultValue="pilot">
-                      {ROLES.map((r) => (
-                        <option key={r}>{r}</option>
-                      ))}
-                    </select>
-                  </label>
-                  <label>
-                    First password (10+ characters)
-                    <input name="password" type="password" autoComplete="new-password" />
-                  </label>
+                  <SelectField label="Role" name="role" options={ROLES} defaultValue="pilot" />
+                  <TextField label="First password (10+ characters)" name="password" type="password" autoComplete="new-password" />
                 </div>
               </ActionForm>
             </details>
@@ -106,10 +91,7 @@ export default async function TeamPage() {
               </tbody>
             </table>
             <ActionForm action={createTokenAction} submitLabel="Create token" testId="token-form">
-              <label>
-                Name
-                <input name="name" placeholder="pit laptop uploader" />
-              </label>
+              <TextField label="Name" name="name" placeholder="pit laptop uploader" />
             </ActionForm>
           </section>
         </div>

@@ -1,6 +1,7 @@
 import Link from "next/link";
 import { ActionForm } from "@/app/_components/action-form";
 import { Caution } from "@/app/_components/caution";
+import { SelectField, TextField } from "@/app/_components/fields";
 import { SpectrumChart } from "@/app/_components/spectrum-chart";
 import { StatusBadge } from "@/app/_components/status-badge";
 import { ThrottleHeatmap } from "@/app/_components/throttle-heatmap";
@@ -146,29 +147,9 @@ export default async function AirframePage({ params, searchParams }: { params: P
             <ActionForm action={logCrashAction} submitLabel="Log crash">
               <input type="hidden" name="airframeId" value={airframe.id} />
               <div className="row">
-                <label>
-                  When
-                  <input type="datetime-local" name="at" />
-                </label>
-                <label>
-                  How hard
-                  <select name="severity" defaultValue="hard">
-                    {CRASH_SEVERITIES.map((s) => (
-                      <option key={s}>{s}</option>
-                    ))}
-                  </select>
-                </label>
-                <label>
-                  Heat
-                  <select name="heatId" defaultValue="">
-                    <option value="">—</option>
-                    {heats.map((h) => (
-                      <option key={h.id} value={h.id}>
-                        {h.event.name} {h.name}
-                      </option>
-                    ))}
-                  </select>
-                </label>
+                <TextField label="When" type="datetime-local" name="at" />
+                <SelectField label="How hard" name="severity" options={CRASH_SEVERITIES} defaultValue="hard" />
+                <SelectField label="Heat" name="heatId" defaultValue="" options={[{ value: "", label: "—" }, ...heats.map((h) => ({ value: h.id, label: `${h.event.name} ${h.name}` }))]} />
               </div>
               <fieldset>
                 <legend className="small">Positions hit</legend>
@@ -196,43 +177,14 @@ export default async function AirframePage({ params, searchParams }: { params: P
             <ActionForm action={swapPartAction} submitLabel="Swap part">
               <input type="hidden" name="airframeId" value={airframe.id} />
               <div className="row">
-                <label>
-                  Position
-                  <select name="position">
-                    {STANDARD_POSITIONS.map((p) => (
-                      <option key={p}>{p}</option>
-                    ))}
-                  </select>
-                </label>
-                <label>
-                  New part (from stock)
-                  <select name="newPartId">
-                    {stock.map((p) => (
-                      <option key={p.id} value={p.id}>
-                        {p.kind} · {p.model} {p.label}
-                      </option>
-                    ))}
-                  </select>
-                </label>
+                <SelectField label="Position" name="position" options={STANDARD_POSITIONS} />
+                <SelectField label="New part (from stock)" name="newPartId" options={stock.map((p) => ({ value: p.id, label: `${p.kind} · ${p.model} ${p.label}` }))} />
               </div>
               <div className="row">
-                <label>
-                  Old part goes to
-                  <select name="removedStatus" defaultValue="damaged">
-                    <option>damaged</option>
-                    <option>stock</option>
-                    <option>scrapped</option>
-                  </select>
-                </label>
-                <label>
-                  When
-                  <input type="datetime-local" name="at" />
-                </label>
+                <SelectField label="Old part goes to" name="removedStatus" options={["damaged", "stock", "scrapped"]} defaultValue="damaged" />
+                <TextField label="When" type="datetime-local" name="at" />
               </div>
-              <label>
-                Reason
-                <input name="reason" placeholder="cracked at the motor mount" />
-              </label>
+              <TextField label="Reason" name="reason" placeholder="cracked at the motor mount" />
             </ActionForm>
           </details>
         ) : null}
@@ -268,10 +220,7 @@ export default async function AirframePage({ params, searchParams }: { params: P
                   {assessment ? ` · ${assessment.status}` : ""}
                 </label>
               ))}
-              <label>
-                Why these logs are known-good
-                <input name="reason" placeholder="new arms fitted and inspected" />
-              </label>
+              <TextField label="Why these logs are known-good" name="reason" placeholder="new arms fitted and inspected" />
             </ActionForm>
           </details>
         ) : null}
@@ -281,10 +230,7 @@ export default async function AirframePage({ params, searchParams }: { params: P
             <ActionForm action={setAirframeStatusAction} submitLabel={airframe.status === "grounded" ? "Return to service" : "Ground it"} danger={airframe.status !== "grounded"}>
               <input type="hidden" name="airframeId" value={airframe.id} />
               <input type="hidden" name="status" value={airframe.status === "grounded" ? "ready" : "grounded"} />
-              <label>
-                Note
-                <input name="note" />
-              </label>
+              <TextField label="Note" name="note" />
             </ActionForm>
           </details>
         ) : null}
