@@ -44,9 +44,10 @@ export default async function InspectionQueuePage({ searchParams }: { searchPara
             </div>
             <div>
               <StatusBadge status={e.status} />
-              <div className="score">
+              <div className="score" title="vibration score of the latest log against the baseline">
                 {e.score === null ? "–" : Math.round(e.score)} <small>/ 100</small>
               </div>
+              <div className="muted small">vibration</div>
             </div>
             <ul>
               {e.reasons.length === 0 ? <li className="muted">Matches its baseline; nothing else open.</li> : e.reasons.map((r) => <li key={r}>{r}</li>)}

@@ -12,14 +12,26 @@ export const dynamic = "force-dynamic";
 
 const DAY = new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "short", year: "numeric", timeZone: "UTC" });
 
-export default async function PartsPage({ searchParams }: { searchParams: Promise<{ part?: string; kind?: string }> }) {
+export default async function PartsPage({ searchParams }: { searchParams: Promise<{ part?: string; kind?: string; fitted?: string }> }) {
   const actor = await requireMember("viewer");
-  const { part: partId, kind } = await searchParams;
+  const { part: partId, kind, fitted } = await searchParams;
+  const withFitted = fitted === "1";
+  const query = (k: string | undefined, f: boolean) => {
+    const q = new URLSearchParams();
+    if (k) q.set("kind", k);
+    if (f) q.set("fitted", "1");
+    const text = q.toString();
+    return text ? `/parts?${text}` : "/parts";
+  };
   const summary = await stockSummary(actor);
   const history = partId ? await partHistory(actor, partId) : null;
   const canTech = roleAtLeast(actor.role, "tech");
   const parts = await db.part.findMany({
-    where: { teamId: actor.teamId, ...(kind && (PART_KINDS as readonly string[]).includes(kind) ? { kind } : {}) },
+    where: {
+      teamId: actor.teamId,
+      ...(kind && (PART_KINDS as readonly string[]).includes(kind) ? { kind } : {}),
+      ...(withFitted ? {} : { status: { not: "installed" } }),
+    },
     orderBy: [{ kind: "asc" }, { model: "asc" }, { label: "asc" }],
     include: { installations: { where: { toAt: null }, include: { airframe: { select: { name: true } } } } },
   });
@@ -119,16 +131,19 @@ export default async function PartsPage({ searchParams }: { searchParams: Promis
         </details>
       ) : null}
 
-      <h2>Every part</h2>
+      <h2>{withFitted ? "Every part" : "Parts not fitted: spares, damaged, scrapped"}</h2>
       <div className="toolbar">
-        <Link className="chip" href="/parts" aria-current={!kind}>
-          all
+        <Link className="chip" href={query(undefined, withFitted)} aria-current={!kind}>
+          all kinds
         </Link>
         {PART_KINDS.map((k) => (
-          <Link key={k} className="chip" href={`/parts?kind=${k}`} aria-current={kind === k}>
+          <Link key={k} className="chip" href={query(k, withFitted)} aria-current={kind === k}>
             {k}
           </Link>
         ))}
+        <Link className="chip" href={query(kind, !withFitted)} aria-current={withFitted}>
+          {withFitted ? "hide fitted parts" : "show fitted parts too"}
+        </Link>
       </div>
       <div className="card">
         <table>
