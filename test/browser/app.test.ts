@@ -130,6 +130,32 @@ describe("the crew at work (owner)", () => {
     await shot(page, "upload");
   });
 
+  it("a log with foreign headers gets a proposed column map, saved as an import profile", async () => {
+    // Same flight, written the way another logger might: ms, rad/s, throttle in percent.
+    const lines = demoCsv({ seed: 904, durationS: 12, sampleRateHz: 2000, airframeSeed: 7 }, { airframe: "HV-08" }).trim().split("\n");
+    const rows = lines.filter((l) => !l.startsWith("#")).slice(1).map((l) => {
+      const [t, r, p, y, thr] = l.split(",").map(Number);
+      const rad = (v: number | undefined) => (((v ?? 0) * Math.PI) / 180).toFixed(6);
+      return `${((t ?? 0) / 1000).toFixed(3)},${rad(r)},${rad(p)},${rad(y)},${((thr ?? 0) * 100).toFixed(2)}`;
+    });
+    const file = join(app.dataDir, "HV-08 other logger.csv");
+    writeFileSync(file, ["Time (ms),Gyro X (rad/s),Gyro Y (rad/s),Gyro Z (rad/s),Thr %", ...rows].join("\n"));
+    await page.goto(`${app.url}/upload`);
+    await page.setInputFiles("[data-testid=file-input]", [file]);
+    await page.waitForSelector("[data-testid=map-step]");
+    const map = await page.locator("[data-testid=map-step] input").first().inputValue();
+    expect(map).toContain("time=Time (ms)|ms");
+    expect(map).toContain("roll=Gyro X (rad/s)|rad/s");
+    expect(await page.locator("[data-testid=upload-list]").innerText()).toMatch(/matched by file name/);
+    await page.fill('[data-testid=map-step] input[placeholder="logger model"]', "other logger");
+    await page.click('[data-testid=map-step] button:has-text("Save profile")');
+    await expect.poll(() => page.locator("[data-testid=map-step] .form-message").innerText()).toMatch(/Import profile "other logger" saved/);
+    await page.click("[data-testid=import-all]");
+    await expect.poll(async () => page.locator('[data-testid=upload-list] tr[data-phase="done"]').count(), { timeout: 60_000 }).toBe(1);
+    await page.goto(`${app.url}/team`);
+    expect(await page.locator("main").innerText()).toMatch(/other logger/);
+  });
+
   it("setting a baseline from the uploaded good log scores the later one against it", async () => {
     await page.goto(await airframeUrl(page, "HV-04"));
     await page.click("[data-testid=baseline-form] summary");
