@@ -1,3 +1,4 @@
+import { DEFAULT_ANALYSIS } from "../analysis/settings";
 import type { LogAnalysis } from "../analysis/types";
 import { InputError } from "../errors";
 import { AXES, type Axis } from "../logs/columns";
@@ -71,7 +72,8 @@ export interface Baseline {
   peaks: Record<Axis, number[]>;
 }
 
-const MIN_BAND_SEGMENTS = 8;
+/** A throttle band needs as many segments to enter a baseline as the analysis needs to search it. */
+const MIN_BAND_SEGMENTS = DEFAULT_ANALYSIS.minBandSegments;
 /** Modes within this fraction of each other across logs are one mode. */
 const MODE_CLUSTER_FRACTION = 0.04;
 

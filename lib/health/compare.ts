@@ -1,3 +1,4 @@
+import { DEFAULT_ANALYSIS } from "../analysis/settings";
 import type { LogAnalysis, ThrottleBandResult } from "../analysis/types";
 import { AXES, type Axis } from "../logs/columns";
 import { median, round, weightedMean } from "../signal/stats";
@@ -54,7 +55,7 @@ export interface CompareOptions {
   thresholds?: HealthThresholds;
   /** Names of motor positions for the sentences, e.g. { 3: "rear-right" }. */
   motorPositions?: Record<number, string>;
-  /** Segments a throttle band of the log needs to be compared. Default 8. */
+  /** Segments a throttle band of the log needs to be compared. Default: the analysis's minimum (8). */
   minBandSegments?: number;
 }
 
@@ -68,7 +69,7 @@ const MODE_SEARCH = { below: 0.7, above: 1.15 };
 
 export function compareWithBaseline(log: LogAnalysis, baseline: Baseline, options: CompareOptions = {}): Assessment {
   const h = options.thresholds ?? DEFAULT_THRESHOLDS;
-  const minSegments = options.minBandSegments ?? 8;
+  const minSegments = options.minBandSegments ?? DEFAULT_ANALYSIS.minBandSegments;
   const notCompared: NotCompared[] = [];
   const maxHz = Math.min(log.settings.maxFreqHz, baseline.maxFreqHz);
   if (log.settings.maxFreqHz < baseline.maxFreqHz - 1) {

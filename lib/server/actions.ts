@@ -14,8 +14,6 @@ export interface ActionState {
   secret?: string;
 }
 
-export const IDLE: ActionState = { ok: false, message: "" };
-
 /**
  * The shape of every server action: the guard first, then the zod schema (field messages on
  * failure), then the service. Domain errors become their sentence; anything else is logged with

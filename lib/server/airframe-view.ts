@@ -1,4 +1,5 @@
 import "server-only";
+import { DEFAULT_ANALYSIS } from "@/lib/analysis/settings";
 import type { LogAnalysis } from "@/lib/analysis/types";
 import type { Baseline } from "@/lib/health/baseline";
 import type { Finding, NotCompared } from "@/lib/health/compare";
@@ -87,7 +88,7 @@ function spectrumOverlay(analysis: LogAnalysis, axis: Axis, baseline: Baseline |
   const step = Math.max(1, Math.ceil((last - first) / MAX_POINTS));
   const pairs = baseline
     ? baseline.throttleBands.flatMap((b) => {
-        const mine = analysis.throttleBands.find((x) => x.index === b.index && x.segments >= 8);
+        const mine = analysis.throttleBands.find((x) => x.index === b.index && x.segments >= DEFAULT_ANALYSIS.minBandSegments);
         return mine ? [{ weight: b.segments, log: mine.axes[axis].psdDb, base: b.axes[axis].psdDb }] : [];
       })
     : [];

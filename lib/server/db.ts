@@ -20,6 +20,5 @@ const globalForPrisma = globalThis as unknown as { heatcheckPrisma?: PrismaClien
 export const db: PrismaClient = globalForPrisma.heatcheckPrisma ?? createClient();
 if (process.env.NODE_ENV !== "production") globalForPrisma.heatcheckPrisma = db;
 
-export type Db = PrismaClient;
 /** The client inside `db.$transaction(async (tx) => …)`. */
 export type Tx = Parameters<Parameters<PrismaClient["$transaction"]>[0]>[0];

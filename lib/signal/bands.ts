@@ -44,14 +44,3 @@ export function arrayToDb(values: Float64Array): Float64Array {
   for (let i = 0; i < values.length; i++) out[i] = toDb(values[i] ?? 0);
   return out;
 }
-
-/** Linear interpolation of y(x) on a uniform grid x = k·step; clamps outside the grid. */
-export function interpolateUniform(y: ArrayLike<number>, step: number, x: number): number {
-  const pos = x / step;
-  if (pos <= 0) return y[0] ?? Number.NaN;
-  const last = y.length - 1;
-  if (pos >= last) return y[last] ?? Number.NaN;
-  const i = Math.floor(pos);
-  const t = pos - i;
-  return (y[i] ?? 0) * (1 - t) + (y[i + 1] ?? 0) * t;
-}
