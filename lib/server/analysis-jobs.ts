@@ -12,8 +12,11 @@ import { maxUploadBytes } from "./limits";
  * transaction. Progress is kept in memory for the upload screen.
  */
 
-const progress = new Map<string, number>();
-const running = new Map<string, Promise<void>>();
+// Kept on globalThis: route handlers and server actions may load their own copy of this module,
+// and the upload screen's progress must come from the one running the job.
+const state = globalThis as unknown as { heatcheckJobs?: { progress: Map<string, number>; running: Map<string, Promise<void>> } };
+state.heatcheckJobs ??= { progress: new Map(), running: new Map() };
+const { progress, running } = state.heatcheckJobs;
 
 export function analysisProgress(logId: string): number | undefined {
   return progress.get(logId);
@@ -25,7 +28,13 @@ export function enqueueAnalysis(logId: string): Promise<void> {
   if (already) return already;
   progress.set(logId, 0);
   const job = run(logId)
-    .catch((e: unknown) => console.error(`storing the analysis of log ${logId} failed`, e))
+    .catch(async (e: unknown) => {
+      console.error(`the analysis of log ${logId} could not be completed`, e);
+      // Never leave a log "pending" for ever: say it failed, so it can be re-run.
+      await db.flightLog
+        .update({ where: { id: logId }, data: { status: "failed", error: "the analysis could not be completed on the server; re-run it" } })
+        .catch(() => undefined);
+    })
     .finally(() => {
       running.delete(logId);
       progress.delete(logId);
