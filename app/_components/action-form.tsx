@@ -10,13 +10,30 @@ export interface ActionFormProps {
   className?: string;
   danger?: boolean;
   testId?: string;
+  /** One line: the fields and a small button side by side (for forms inside table rows). */
+  compact?: boolean;
 }
 
 const IDLE: ActionState = { ok: false, message: "" };
 
 /** A form bound to a server action: shows the outcome and each field's message. */
-export function ActionForm({ action, submitLabel, children, className = "stack", danger = false, testId }: ActionFormProps) {
+export function ActionForm({ action, submitLabel, children, className = "stack", danger = false, testId, compact = false }: ActionFormProps) {
   const [state, formAction, pending] = useActionState(action, IDLE);
+  if (compact) {
+    return (
+      <form action={formAction} className="inline-form" data-testid={testId}>
+        {children}
+        <button type="submit" disabled={pending} className={danger ? "danger small" : "secondary small"}>
+          {pending ? "…" : submitLabel}
+        </button>
+        {state.message ? (
+          <span className={`form-message small ${state.ok ? "ok" : "error"}`} role="status">
+            {state.message}
+          </span>
+        ) : null}
+      </form>
+    );
+  }
   return (
     <form action={formAction} className={className} data-testid={testId}>
       {children}

@@ -168,7 +168,7 @@ export default async function PartsPage({ searchParams }: { searchParams: Promis
                 <td>{p.installations[0] ? `${p.installations[0].airframe.name}, ${p.installations[0].position}` : "–"}</td>
                 <td>
                   {canTech && p.status !== "installed" ? (
-                    <ActionForm action={setPartStatusAction} submitLabel="Set" className="row">
+                    <ActionForm action={setPartStatusAction} submitLabel="Set" compact>
                       <input type="hidden" name="partId" value={p.id} />
                       <select name="status" defaultValue={p.status}>
                         <option>stock</option>

@@ -36,7 +36,7 @@ export default async function TeamPage() {
                       <div className="muted small">{m.user.email}</div>
                     </td>
                     <td>
-                      <ActionForm action={changeRoleAction} submitLabel="Change" className="row">
+                      <ActionForm action={changeRoleAction} submitLabel="Change" compact>
                         <input type="hidden" name="membershipId" value={m.id} />
                         <select name="role" defaultValue={m.role} aria-label={`role of ${m.user.name}`}>
                           {ROLES.map((r) => (
@@ -81,7 +81,7 @@ export default async function TeamPage() {
                       {t.revokedAt ? (
                         <span className="muted">revoked {WHEN.format(t.revokedAt)}</span>
                       ) : (
-                        <ActionForm action={revokeTokenAction} submitLabel="Revoke" danger className="">
+                        <ActionForm action={revokeTokenAction} submitLabel="Revoke" danger compact>
                           <input type="hidden" name="tokenId" value={t.id} />
                         </ActionForm>
                       )}

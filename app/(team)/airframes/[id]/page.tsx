@@ -105,7 +105,7 @@ export default async function AirframePage({ params, searchParams }: { params: P
       <h2>Spectrum: latest log against the baseline, at matched throttle</h2>
       <p className="muted small">
         {analysis
-          ? `${analysis.sampleRateHz} Hz log, ${analysis.durationS.toFixed(0)} s, Welch ${analysis.settings.window} ${analysis.settings.nperseg}-sample segments (${analysis.settings.binHz.toFixed(2)} Hz bins). Dots: peaks (dark: structural, amber: motor or unclassified).`
+          ? `${analysis.sampleRateHz} Hz log, ${analysis.durationS.toFixed(0)} s, Welch ${analysis.settings.window} ${analysis.settings.nperseg}-sample segments (${analysis.settings.binHz.toFixed(2)} Hz bins). PSD in dB re 1 (deg/s)²/Hz. Dots: peaks (dark: structural, amber: motor or unclassified).`
           : "No analysed log yet."}
       </p>
       <div className="grid three">
@@ -305,7 +305,7 @@ export default async function AirframePage({ params, searchParams }: { params: P
                 <td className="num">{assessment?.score === null || !assessment ? "–" : Math.round(assessment.score)}</td>
                 <td>
                   {canTech && log.status !== "pending" ? (
-                    <ActionForm action={reanalyseAction} submitLabel="Re-run analysis" className="">
+                    <ActionForm action={reanalyseAction} submitLabel="Re-run analysis" compact>
                       <input type="hidden" name="logId" value={log.id} />
                       <input type="hidden" name="airframeId" value={airframe.id} />
                     </ActionForm>
