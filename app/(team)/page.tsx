@@ -4,10 +4,9 @@ import { Caution } from "@/app/_components/caution";
 import { StatusBadge } from "@/app/_components/status-badge";
 import { requireMember } from "@/lib/server/guard";
 import { inspectionQueue } from "@/lib/server/queue";
+import { TIME } from "@/app/_components/dates";
 
 export const dynamic = "force-dynamic";
-
-const TIME = new Intl.DateTimeFormat("en-GB", { hour: "2-digit", minute: "2-digit", timeZone: "UTC" });
 
 export default async function InspectionQueuePage({ searchParams }: { searchParams: Promise<{ heat?: string }> }) {
   const actor = await requireMember("viewer");

@@ -5,10 +5,9 @@ import { db } from "@/lib/server/db";
 import { listEvents } from "@/lib/server/events";
 import { requireMember } from "@/lib/server/guard";
 import { createEventAction, createHeatAction, setHeatEntriesAction } from "../actions";
+import { WEEKDAY_TIME as WHEN } from "@/app/_components/dates";
 
 export const dynamic = "force-dynamic";
-
-const WHEN = new Intl.DateTimeFormat("en-GB", { weekday: "short", day: "numeric", month: "short", hour: "2-digit", minute: "2-digit", timeZone: "UTC" });
 
 export default async function EventsPage() {
   const actor = await requireMember("viewer");

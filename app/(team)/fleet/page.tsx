@@ -7,10 +7,9 @@ import { roleAtLeast } from "@/lib/roles";
 import { fleetTable } from "@/lib/server/fleet";
 import { requireMember } from "@/lib/server/guard";
 import { createAirframeAction } from "../actions";
+import { WHEN_SHORT as WHEN } from "@/app/_components/dates";
 
 export const dynamic = "force-dynamic";
-
-const WHEN = new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "short", hour: "2-digit", minute: "2-digit", timeZone: "UTC" });
 
 export default async function FleetPage() {
   const actor = await requireMember("viewer");

@@ -7,10 +7,9 @@ import { requireMember } from "@/lib/server/guard";
 import { partHistory, stockSummary } from "@/lib/server/parts";
 import { PART_KINDS } from "@/lib/validations/part";
 import { addPartsAction, setPartStatusAction } from "../actions";
+import { DAY } from "@/app/_components/dates";
 
 export const dynamic = "force-dynamic";
-
-const DAY = new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "short", year: "numeric", timeZone: "UTC" });
 
 export default async function PartsPage({ searchParams }: { searchParams: Promise<{ part?: string; kind?: string; fitted?: string }> }) {
   const actor = await requireMember("viewer");

@@ -4,10 +4,9 @@ import { ROLES, roleAtLeast } from "@/lib/roles";
 import { requireMember } from "@/lib/server/guard";
 import { listMembers, listProfiles, listTokens, recentAudit } from "@/lib/server/team";
 import { addMemberAction, changeRoleAction, createTokenAction, revokeTokenAction } from "../actions";
+import { WHEN_SHORT as WHEN } from "@/app/_components/dates";
 
 export const dynamic = "force-dynamic";
-
-const WHEN = new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "short", hour: "2-digit", minute: "2-digit", timeZone: "UTC" });
 
 export default async function TeamPage() {
   const actor = await requireMember("viewer");

@@ -1,7 +1,5 @@
 import Link from "next/link";
-import { ActionForm } from "@/app/_components/action-form";
 import { Caution } from "@/app/_components/caution";
-import { SelectField, TextField } from "@/app/_components/fields";
 import { SpectrumChart } from "@/app/_components/spectrum-chart";
 import { StatusBadge } from "@/app/_components/status-badge";
 import { ThrottleHeatmap } from "@/app/_components/throttle-heatmap";
@@ -10,21 +8,11 @@ import { roleAtLeast } from "@/lib/roles";
 import { airframeView } from "@/lib/server/airframe-view";
 import { db } from "@/lib/server/db";
 import { requireMember } from "@/lib/server/guard";
-import { STANDARD_POSITIONS } from "@/lib/validations/airframe";
-import { CRASH_SEVERITIES } from "@/lib/validations/crash";
-import { INSPECTION_CHECKLIST } from "@/lib/validations/inspection";
-import {
-  logCrashAction,
-  reanalyseAction,
-  recordInspectionAction,
-  setAirframeStatusAction,
-  setBaselineAction,
-  swapPartAction,
-} from "../../actions";
+import { LogsTable } from "./_components/logs-table";
+import { WorkForms } from "./_components/work-forms";
+import { WHEN } from "@/app/_components/dates";
 
 export const dynamic = "force-dynamic";
-
-const WHEN = new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "short", year: "numeric", hour: "2-digit", minute: "2-digit", timeZone: "UTC" });
 
 export default async function AirframePage({ params, searchParams }: { params: Promise<{ id: string }>; searchParams: Promise<{ axis?: string }> }) {
   const actor = await requireMember("viewer");
@@ -138,104 +126,7 @@ export default async function AirframePage({ params, searchParams }: { params: P
         )}
       </div>
 
-      <h2>Work on this airframe</h2>
-      {!canPilot ? <p className="muted">Your role can view this airframe but not change it.</p> : null}
-      <div className="grid two">
-        {canPilot ? (
-          <details className="action" data-testid="crash-form">
-            <summary>Log a crash</summary>
-            <ActionForm action={logCrashAction} submitLabel="Log crash">
-              <input type="hidden" name="airframeId" value={airframe.id} />
-              <div className="row">
-                <TextField label="When" type="datetime-local" name="at" />
-                <SelectField label="How hard" name="severity" options={CRASH_SEVERITIES} defaultValue="hard" />
-                <SelectField label="Heat" name="heatId" defaultValue="" options={[{ value: "", label: "—" }, ...heats.map((h) => ({ value: h.id, label: `${h.event.name} ${h.name}` }))]} />
-              </div>
-              <fieldset>
-                <legend className="small">Positions hit</legend>
-                <div className="row">
-                  {STANDARD_POSITIONS.filter((p) => p.startsWith("arm") || p === "props" || p === "camera" || p === "antenna").map((p) => (
-                    <label key={p} className="inline">
-                      <input type="checkbox" name="positions" value={p} /> {p}
-                    </label>
-                  ))}
-                </div>
-              </fieldset>
-              <label>
-                Note
-                <textarea name="note" placeholder="what happened" />
-              </label>
-              <label className="inline">
-                <input type="checkbox" name="ground" defaultChecked /> ground it until inspected (always for hard crashes)
-              </label>
-            </ActionForm>
-          </details>
-        ) : null}
-        {canTech ? (
-          <details className="action" data-testid="swap-form">
-            <summary>Swap a part</summary>
-            <ActionForm action={swapPartAction} submitLabel="Swap part">
-              <input type="hidden" name="airframeId" value={airframe.id} />
-              <div className="row">
-                <SelectField label="Position" name="position" options={STANDARD_POSITIONS} />
-                <SelectField label="New part (from stock)" name="newPartId" options={stock.map((p) => ({ value: p.id, label: `${p.kind} · ${p.model} ${p.label}` }))} />
-              </div>
-              <div className="row">
-                <SelectField label="Old part goes to" name="removedStatus" options={["damaged", "stock", "scrapped"]} defaultValue="damaged" />
-                <TextField label="When" type="datetime-local" name="at" />
-              </div>
-              <TextField label="Reason" name="reason" placeholder="cracked at the motor mount" />
-            </ActionForm>
-          </details>
-        ) : null}
-        {canTech ? (
-          <details className="action" data-testid="inspection-form">
-            <summary>Record an inspection</summary>
-            <ActionForm action={recordInspectionAction} submitLabel="Sign off inspection">
-              <input type="hidden" name="airframeId" value={airframe.id} />
-              {INSPECTION_CHECKLIST.map((c) => (
-                <label key={c} className="inline">
-                  <input type="checkbox" name="checklist" value={c} /> {c}
-                </label>
-              ))}
-              <label>
-                Findings and work done
-                <textarea name="findings" />
-              </label>
-              <label className="inline">
-                <input type="checkbox" name="returnToService" defaultChecked /> return to service (signed off by {actor.name})
-              </label>
-            </ActionForm>
-          </details>
-        ) : null}
-        {canTech ? (
-          <details className="action" data-testid="baseline-form">
-            <summary>Set the baseline from known-good logs</summary>
-            <ActionForm action={setBaselineAction} submitLabel="Set baseline">
-              <input type="hidden" name="airframeId" value={airframe.id} />
-              {analysed.length === 0 ? <p className="muted">No analysed logs yet.</p> : null}
-              {analysed.slice(0, 12).map(({ log, assessment }) => (
-                <label key={log.id} className="inline">
-                  <input type="checkbox" name="logIds" value={log.id} /> {WHEN.format(log.flownAt)} · {log.fileName}
-                  {assessment ? ` · ${assessment.status}` : ""}
-                </label>
-              ))}
-              <TextField label="Why these logs are known-good" name="reason" placeholder="new arms fitted and inspected" />
-            </ActionForm>
-          </details>
-        ) : null}
-        {canTech ? (
-          <details className="action">
-            <summary>{airframe.status === "grounded" ? "Return to service" : "Ground this airframe"}</summary>
-            <ActionForm action={setAirframeStatusAction} submitLabel={airframe.status === "grounded" ? "Return to service" : "Ground it"} danger={airframe.status !== "grounded"}>
-              <input type="hidden" name="airframeId" value={airframe.id} />
-              <input type="hidden" name="status" value={airframe.status === "grounded" ? "ready" : "grounded"} />
-              <TextField label="Note" name="note" />
-            </ActionForm>
-          </details>
-        ) : null}
-      </div>
-
+      <WorkForms airframe={{ id: airframe.id, status: airframe.status }} actorName={actor.name} canPilot={canPilot} canTech={canTech} stock={stock} heats={heats} analysed={analysed} />
       <div className="grid two" style={{ marginTop: "1rem" }}>
         <section className="card">
           <h2 style={{ marginTop: 0 }}>Installed parts</h2>
@@ -282,40 +173,7 @@ export default async function AirframePage({ params, searchParams }: { params: P
         </section>
       </div>
 
-      <section className="card" style={{ marginTop: "1rem" }}>
-        <h2 style={{ marginTop: 0 }}>Logs</h2>
-        <table data-testid="logs">
-          <thead>
-            <tr>
-              <th>flown</th>
-              <th>file</th>
-              <th>rate</th>
-              <th>status</th>
-              <th className="num">score</th>
-              <th />
-            </tr>
-          </thead>
-          <tbody>
-            {view.logs.map(({ log, assessment }) => (
-              <tr key={log.id}>
-                <td className="small">{WHEN.format(log.flownAt)}</td>
-                <td>{log.fileName}</td>
-                <td className="small">{log.sampleRateHz ? `${Math.round(log.sampleRateHz)} Hz · ${(log.durationS ?? 0).toFixed(0)} s` : "–"}</td>
-                <td>{log.status === "failed" ? <span className="field-error">failed: {log.error}</span> : assessment ? <StatusBadge status={assessment.status} /> : log.status}</td>
-                <td className="num">{assessment?.score === null || !assessment ? "–" : Math.round(assessment.score)}</td>
-                <td>
-                  {canTech && log.status !== "pending" ? (
-                    <ActionForm action={reanalyseAction} submitLabel="Re-run analysis" compact>
-                      <input type="hidden" name="logId" value={log.id} />
-                      <input type="hidden" name="airframeId" value={airframe.id} />
-                    </ActionForm>
-                  ) : null}
-                </td>
-              </tr>
-            ))}
-          </tbody>
-        </table>
-      </section>
+      <LogsTable airframeId={airframe.id} logs={view.logs} canTech={canTech} />
     </>
   );
 }
