@@ -1,8 +1,11 @@
 "use server";
 
 import { revalidatePath } from "next/cache";
+import { cookies } from "next/headers";
 import { z } from "zod";
+import { assertMemberOf, changePassword } from "@/lib/server/account";
 import { createAirframe, setAirframeRetired, setAirframeStatus } from "@/lib/server/airframes";
+import { TEAM_COOKIE } from "@/lib/server/guard";
 import { runAction, type ActionState } from "@/lib/server/actions";
 import { setBaseline } from "@/lib/server/baselines";
 import { logCrash, recordInspection } from "@/lib/server/crashes";
@@ -17,7 +20,7 @@ import { crashSchema } from "@/lib/validations/crash";
 import { eventSchema, heatEntriesSchema, heatSchema } from "@/lib/validations/event";
 import { inspectionSchema } from "@/lib/validations/inspection";
 import { partSchema, partStatusSchema, swapSchema } from "@/lib/validations/part";
-import { importProfileSchema, memberSchema, roleChangeSchema, tokenSchema } from "@/lib/validations/team";
+import { importProfileSchema, memberSchema, passwordChangeSchema, roleChangeSchema, switchTeamSchema, tokenSchema } from "@/lib/validations/team";
 
 // Every action: guard (role) → zod → service, via runAction. The service checks role and team again.
 
@@ -173,5 +176,21 @@ export async function saveProfileAction(_: ActionState, form: FormData): Promise
     revalidatePath("/upload");
     revalidatePath("/team");
     return `Import profile "${input.name}" saved.`;
+  });
+}
+
+export async function changePasswordAction(_: ActionState, form: FormData): Promise<ActionState> {
+  return runAction("changePassword", "viewer", passwordChangeSchema, form, async (actor, input) => {
+    await changePassword(actor, input.current, input.next);
+    return "Password changed. Use the new one next time you sign in.";
+  });
+}
+
+export async function switchTeamAction(_: ActionState, form: FormData): Promise<ActionState> {
+  return runAction("switchTeam", "viewer", switchTeamSchema, form, async (actor, input) => {
+    await assertMemberOf(actor, input.teamId);
+    (await cookies()).set(TEAM_COOKIE, input.teamId, { httpOnly: true, sameSite: "lax", path: "/" });
+    revalidatePath("/", "layout");
+    return "Team switched.";
   });
 }

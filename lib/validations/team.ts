@@ -22,3 +22,13 @@ export const importProfileSchema = z.object({
   name: nameField("profile name", 60),
   mapText: z.string().trim().min(1, "Give the column map.").max(2000),
 });
+
+export const passwordChangeSchema = z
+  .object({
+    current: z.string().min(1, "Give your current password."),
+    next: z.string().min(10, "Choose a new password of at least 10 characters.").max(200),
+    confirm: z.string(),
+  })
+  .refine((v) => v.next === v.confirm, { message: "The two new passwords differ.", path: ["confirm"] });
+
+export const switchTeamSchema = z.object({ teamId: z.string().min(1) });

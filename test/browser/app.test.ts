@@ -239,6 +239,13 @@ describe("a viewer", () => {
     expect(r.status).toBe(403);
     await page.goto(`${app.url}/team`);
     expect(await page.locator("main").innerText()).toMatch(/managed by the team's owners/);
+    // Their own password is theirs to change.
+    await page.click("[data-testid=account] summary");
+    await page.fill("[data-testid=account] input[name=current]", "pitwall-viewer-2026");
+    await page.fill("[data-testid=account] input[name=next]", "pitwall-viewer-2027");
+    await page.fill("[data-testid=account] input[name=confirm]", "pitwall-viewer-2027");
+    await page.click('[data-testid=account] button:has-text("Change password")');
+    await expect.poll(() => page.locator("[data-testid=account] .form-message").innerText()).toMatch(/Password changed/);
     await context.close();
   });
 });

@@ -21,6 +21,9 @@ const { inspectionQueue } = await import("@/lib/server/queue");
 const { createToken, revokeToken, addMember } = await import("@/lib/server/team");
 const { actorForUser, requireToken } = await import("@/lib/server/guard");
 const { createEvent } = await import("@/lib/server/events");
+const { changePassword, assertMemberOf, myTeams } = await import("@/lib/server/account");
+const { hashPassword } = await import("@/lib/server/passwords");
+const bcrypt = (await import("bcryptjs")).default;
 
 const actors = {} as Record<Role, Actor>;
 let other: Actor;
@@ -181,5 +184,26 @@ describe("the guard: roles and teams", () => {
     await expect(requireToken(request(token))).rejects.toBeInstanceOf(UnauthenticatedError);
     const stored = await db.apiToken.findUnique({ where: { id } });
     expect(stored?.tokenHash).not.toContain(token);
+  });
+});
+
+describe("accounts", () => {
+  it("a member of two teams works in the one they chose, else in their first", async () => {
+    const userId = actors.viewer.userId ?? "";
+    await db.membership.create({ data: { userId, teamId: other.teamId, role: "tech" } });
+    expect((await actorForUser(userId, other.teamId, "viewer")).role).toBe("tech");
+    expect((await actorForUser(userId, "not-a-team", "viewer")).teamId).toBe(actors.viewer.teamId);
+    expect((await myTeams(actors.viewer)).map((m) => m.teamId).sort()).toEqual([actors.viewer.teamId, other.teamId].sort());
+    await expect(assertMemberOf(actors.pilot, other.teamId)).rejects.toBeInstanceOf(ForbiddenError);
+  });
+
+  it("changing a password needs the current one and stores only a new bcrypt hash", async () => {
+    const id = actors.pilot.userId ?? "";
+    await db.user.update({ where: { id }, data: { passwordHash: await hashPassword("first-password-1") } });
+    await expect(changePassword(actors.pilot, "wrong", "second-password-2")).rejects.toBeInstanceOf(InputError);
+    await changePassword(actors.pilot, "first-password-1", "second-password-2");
+    const user = await db.user.findUnique({ where: { id } });
+    expect(user?.passwordHash).not.toContain("second-password-2");
+    expect(await bcrypt.compare("second-password-2", user?.passwordHash ?? "")).toBe(true);
   });
 });

@@ -2,8 +2,9 @@ import { ActionForm } from "@/app/_components/action-form";
 import { SelectField, TextField } from "@/app/_components/fields";
 import { ROLES, roleAtLeast } from "@/lib/roles";
 import { requireMember } from "@/lib/server/guard";
+import { myTeams } from "@/lib/server/account";
 import { listMembers, listProfiles, listTokens, recentAudit } from "@/lib/server/team";
-import { addMemberAction, changeRoleAction, createTokenAction, revokeTokenAction } from "../actions";
+import { addMemberAction, changePasswordAction, changeRoleAction, createTokenAction, revokeTokenAction, switchTeamAction } from "../actions";
 import { WHEN_SHORT as WHEN } from "@/app/_components/dates";
 
 export const dynamic = "force-dynamic";
@@ -11,11 +12,12 @@ export const dynamic = "force-dynamic";
 export default async function TeamPage() {
   const actor = await requireMember("viewer");
   const isOwner = roleAtLeast(actor.role, "owner");
-  const [members, tokens, profiles, audit] = await Promise.all([
+  const [members, tokens, profiles, audit, teams] = await Promise.all([
     isOwner ? listMembers(actor) : Promise.resolve([]),
     isOwner ? listTokens(actor) : Promise.resolve([]),
     listProfiles(actor),
     recentAudit(actor),
+    myTeams(actor),
   ]);
   return (
     <>
@@ -96,6 +98,24 @@ export default async function TeamPage() {
         </div>
       ) : null}
       <div className="grid two" style={{ marginTop: "1rem" }}>
+        <section className="card" data-testid="account">
+          <h2 style={{ marginTop: 0 }}>Your account</h2>
+          {teams.length > 1 ? (
+            <ActionForm action={switchTeamAction} submitLabel="Switch team" compact>
+              <SelectField label="Team" name="teamId" defaultValue={actor.teamId} options={teams.map((t) => ({ value: t.teamId, label: `${t.team.name} (${t.role})` }))} />
+            </ActionForm>
+          ) : null}
+          <details className="action" style={{ marginTop: "0.6rem" }}>
+            <summary>Change your password</summary>
+            <ActionForm action={changePasswordAction} submitLabel="Change password">
+              <TextField label="Current password" name="current" type="password" autoComplete="current-password" />
+              <div className="row">
+                <TextField label="New password (10+ characters)" name="next" type="password" autoComplete="new-password" />
+                <TextField label="New password again" name="confirm" type="password" autoComplete="new-password" />
+              </div>
+            </ActionForm>
+          </details>
+        </section>
         <section className="card">
           <h2 style={{ marginTop: 0 }}>Import profiles</h2>
           {profiles.length === 0 ? <p className="muted">None yet: the upload screen saves one when you map a logger&apos;s columns.</p> : null}
