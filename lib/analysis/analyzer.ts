@@ -37,8 +37,8 @@ interface BandAccumulator {
   /** per axis, per analysis band: Σ dB and Σ dB² over segments */
   dbSum: Float64Array[];
   dbSqSum: Float64Array[];
-  rpmSum: Float64Array;
   /** per motor: Σ mean rpm of the order blocks */
+  rpmSum: Float64Array;
   /** per motor, per order, per axis: Σ power (linear) */
   orderPowerSum: Float64Array[][];
   /** per motor, per order: order-tracking blocks that measured it (below the trusted top) */
@@ -136,8 +136,9 @@ export class LogAnalyzer implements LogSink {
   private orderBlock(b: OrderBlock): void {
     const acc = this.accumulators[throttleBandOf(b.throttle, this.throttleBandCount)] as BandAccumulator;
     acc.orderBlocks++;
-    let order1Max = Number.NaN;
     for (let m = 0; m < b.rotationHz.length; m++) {
+      // Per motor: a motor whose 1× is above the trusted range must not inherit another's level.
+      let order1Max = Number.NaN;
       acc.rpmSum[m] = (acc.rpmSum[m] ?? 0) + (b.rotationHz[m] ?? 0) * 60;
       const counts = acc.orderCount[m] as Float64Array;
       this.orders.forEach((_, j) => {
