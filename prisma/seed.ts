@@ -17,6 +17,7 @@ import { createEvent, createHeat, setHeatEntries } from "@/lib/server/events";
 import { ingestLog } from "@/lib/server/ingest";
 import { createParts, swapPart } from "@/lib/server/parts";
 import { hashPassword } from "@/lib/server/passwords";
+import type { PartKind } from "@/lib/validations/part";
 
 export const DEMO_ACCOUNTS = [
   { email: "owner@heatcheck.test", name: "Mara Quill", role: "owner", password: "pitwall-owner-2026" },
@@ -30,7 +31,7 @@ const HOUR = 3600_000;
 const DAY = 24 * HOUR;
 const LOG_SECONDS = 30;
 
-const POSITIONS: { position: string; kind: string; model: string; lifeFlights?: number }[] = [
+const POSITIONS: { position: string; kind: PartKind; model: string; lifeFlights?: number }[] = [
   { position: "frame", kind: "frame", model: "Harrow Five plate set" },
   { position: "arm front-left", kind: "arm", model: "Harrow arm 6 mm" },
   { position: "arm front-right", kind: "arm", model: "Harrow arm 6 mm" },
@@ -93,7 +94,7 @@ async function main(): Promise<void> {
     const a = await createAirframe(tech, { name, frameDesign: FRAME, serial: `HVQ-2026-${String(101 + i)}`, notes: i === 7 ? "Practice quad; motors from last season." : "" });
     ids[name] = a.id;
     for (const p of POSITIONS) {
-      const [part] = await createParts(tech, { kind: p.kind as never, model: p.model, label: `${name}-${p.position.split(" ")[0]}`, supplier: "Vale Carbon Works", cost: null, acquiredAt: new Date(autumn - 10 * DAY), lifeFlights: p.lifeFlights ?? null, lifeMinutes: null, quantity: 1, notes: "" });
+      const [part] = await createParts(tech, { kind: p.kind, model: p.model, label: `${name}-${p.position.split(" ")[0]}`, supplier: "Vale Carbon Works", cost: null, acquiredAt: new Date(autumn - 10 * DAY), lifeFlights: p.lifeFlights ?? null, lifeMinutes: null, quantity: 1, notes: "" });
       if (part) await swapPart(tech, { airframeId: a.id, position: p.position, newPartId: part.id, reason: "initial build", removedStatus: "stock", at: new Date(autumn - 7 * DAY) });
     }
   }

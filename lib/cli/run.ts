@@ -3,7 +3,7 @@ import { analyzeLog, type AnalyzeOptions } from "../analysis/analyze-log";
 import { analyzeLogInTwoThreads } from "../analysis/two-threads";
 import { DEFAULT_ANALYSIS, type AnalysisSettings } from "../analysis/settings";
 import type { LogAnalysis } from "../analysis/types";
-import { MOTOR_POSITIONS } from "../demo/airframe-model";
+import { MOTOR_POSITIONS } from "../health/motor-positions";
 import { demoCsvChunks } from "../demo/demo-csv";
 import { SCENARIOS, type FlyingStyle, type Scenario } from "../demo/generator";
 import { InputError, UsageError, isDomainError } from "../errors";

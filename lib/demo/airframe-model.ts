@@ -1,3 +1,4 @@
+import { MOTOR_POSITIONS } from "../health/motor-positions";
 import type { Axis } from "../logs/columns";
 
 /**
@@ -47,10 +48,10 @@ export const HOUSE_FRAME: AirframeModel = {
     { name: "second bending", coupling: { roll: 0.7, pitch: 0.7, yaw: 0.1 }, freqHz: 455, q: 10, gain: 2.5 },
   ],
   motors: [
-    { motor: 1, position: "front-left", coupling: { roll: 0.72, pitch: 0.68, yaw: 0.3 }, imbalance: 2.4 },
-    { motor: 2, position: "front-right", coupling: { roll: 0.66, pitch: 0.74, yaw: 0.28 }, imbalance: 2.8 },
-    { motor: 3, position: "rear-right", coupling: { roll: 0.7, pitch: 0.7, yaw: 0.32 }, imbalance: 2.2 },
-    { motor: 4, position: "rear-left", coupling: { roll: 0.75, pitch: 0.65, yaw: 0.3 }, imbalance: 2.6 },
+    { motor: 1, position: MOTOR_POSITIONS[1] ?? "", coupling: { roll: 0.72, pitch: 0.68, yaw: 0.3 }, imbalance: 2.4 },
+    { motor: 2, position: MOTOR_POSITIONS[2] ?? "", coupling: { roll: 0.66, pitch: 0.74, yaw: 0.28 }, imbalance: 2.8 },
+    { motor: 3, position: MOTOR_POSITIONS[3] ?? "", coupling: { roll: 0.7, pitch: 0.7, yaw: 0.32 }, imbalance: 2.2 },
+    { motor: 4, position: MOTOR_POSITIONS[4] ?? "", coupling: { roll: 0.75, pitch: 0.65, yaw: 0.3 }, imbalance: 2.6 },
   ],
   maxRpm: 36000,
   blades: 3,
@@ -59,8 +60,3 @@ export const HOUSE_FRAME: AirframeModel = {
   excitation: 7,
   sensorNoise: 0.5,
 };
-
-/** Position names by motor number on the house frame (clockwise from front-left, seen from above). */
-export const MOTOR_POSITIONS: Record<number, string> = Object.fromEntries(
-  HOUSE_FRAME.motors.map((m) => [m.motor, m.position]),
-);

@@ -1,6 +1,6 @@
 import "server-only";
 import type { LogAnalysis } from "@/lib/analysis/types";
-import { MOTOR_POSITIONS } from "@/lib/demo/airframe-model";
+import { MOTOR_POSITIONS } from "@/lib/health/motor-positions";
 import type { Baseline } from "@/lib/health/baseline";
 import { compareWithBaseline } from "@/lib/health/compare";
 import type { Tx } from "./db";

@@ -116,7 +116,7 @@ export async function installedParts(actor: Actor, airframeId: string) {
     include: { part: true },
   });
   const order = (p: string) => {
-    const i = (STANDARD_POSITIONS as readonly string[]).indexOf(p);
+    const i = STANDARD_POSITIONS.indexOf(p);
     return i < 0 ? STANDARD_POSITIONS.length : i;
   };
   installs.sort((a, b) => order(a.position) - order(b.position) || a.position.localeCompare(b.position));

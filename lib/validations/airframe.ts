@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { motorPositionName } from "@/lib/health/motor-positions";
 import { nameField, optionalText } from "./common";
 
 export const AIRFRAME_STATUSES = ["ready", "grounded"] as const;
@@ -18,16 +19,13 @@ export const airframeStatusSchema = z.object({
 });
 
 /** Positions on a quad, in the order the screens list them. Free text is allowed too. */
-export const STANDARD_POSITIONS = [
+export const STANDARD_POSITIONS: readonly string[] = [
   "frame",
   "arm front-left",
   "arm front-right",
   "arm rear-right",
   "arm rear-left",
-  "motor 1 (front-left)",
-  "motor 2 (front-right)",
-  "motor 3 (rear-right)",
-  "motor 4 (rear-left)",
+  ...[1, 2, 3, 4].map(motorPositionName),
   "props",
   "flight controller",
   "ESC",
@@ -35,4 +33,4 @@ export const STANDARD_POSITIONS = [
   "video transmitter",
   "receiver",
   "antenna",
-] as const;
+];
