@@ -79,15 +79,6 @@ export async function setPartStatus(actor: Actor, partId: string, status: "stock
   });
 }
 
-/** Flights and minutes logged on an airframe between two times. */
-async function usageBetween(airframeId: string, from: Date, to: Date | null) {
-  const logs = await db.flightLog.findMany({
-    where: { airframeId, flownAt: { gte: from, ...(to ? { lte: to } : {}) } },
-    select: { durationS: true },
-  });
-  return { flights: logs.length, minutes: logs.reduce((s, l) => s + (l.durationS ?? 0), 0) / 60 };
-}
-
 export function lifeFraction(used: { flights: number; minutes: number }, part: { lifeFlights: number | null; lifeMinutes: number | null }): number | null {
   const shares = [
     part.lifeFlights ? used.flights / part.lifeFlights : null,
@@ -96,18 +87,36 @@ export function lifeFraction(used: { flights: number; minutes: number }, part: {
   return shares.length > 0 ? Math.max(...shares) : null;
 }
 
-/** A part's whole life so far, over every airframe it has been on. */
-export async function partLife(partId: string, part: { lifeFlights: number | null; lifeMinutes: number | null }): Promise<LifeUsed> {
-  const installs = await db.installation.findMany({ where: { partId } });
-  let flights = 0;
-  let minutes = 0;
-  for (const i of installs) {
-    const u = await usageBetween(i.airframeId, i.fromAt, i.toAt);
-    flights += u.flights;
-    minutes += u.minutes;
+type LifeLimits = { id: string; lifeFlights: number | null; lifeMinutes: number | null };
+
+/**
+ * The whole life so far of several parts, over every airframe each has been on: the flights and
+ * minutes of logs flown while it was fitted. Two queries, however many parts.
+ */
+export async function lifeOfParts(parts: readonly LifeLimits[]): Promise<Map<string, LifeUsed>> {
+  const installs = await db.installation.findMany({ where: { partId: { in: parts.map((p) => p.id) } } });
+  const logs = await db.flightLog.findMany({
+    where: { airframeId: { in: [...new Set(installs.map((i) => i.airframeId))] } },
+    select: { airframeId: true, flownAt: true, durationS: true },
+  });
+  const life = new Map<string, LifeUsed>();
+  for (const part of parts) {
+    let flights = 0;
+    let minutes = 0;
+    for (const i of installs) {
+      if (i.partId !== part.id) continue;
+      for (const l of logs) {
+        if (l.airframeId !== i.airframeId || l.flownAt < i.fromAt || (i.toAt && l.flownAt > i.toAt)) continue;
+        flights++;
+        minutes += (l.durationS ?? 0) / 60;
+      }
+    }
+    life.set(part.id, { flights, minutes, fraction: lifeFraction({ flights, minutes }, part) });
   }
-  return { flights, minutes, fraction: lifeFraction({ flights, minutes }, part) };
+  return life;
 }
+
+const NO_LIFE: LifeUsed = { flights: 0, minutes: 0, fraction: null };
 
 /** Parts on an airframe now, by position, with life used. */
 export async function installedParts(actor: Actor, airframeId: string) {
@@ -120,7 +129,8 @@ export async function installedParts(actor: Actor, airframeId: string) {
     return i < 0 ? STANDARD_POSITIONS.length : i;
   };
   installs.sort((a, b) => order(a.position) - order(b.position) || a.position.localeCompare(b.position));
-  return Promise.all(installs.map(async (i) => ({ ...i, life: await partLife(i.partId, i.part) })));
+  const life = await lifeOfParts(installs.map((i) => i.part));
+  return installs.map((i) => ({ ...i, life: life.get(i.partId) ?? NO_LIFE }));
 }
 
 /** Stock grouped by kind and model, with counts by status; low when fewer than `lowAt` in stock. */
@@ -140,5 +150,5 @@ export async function stockSummary(actor: Actor, lowAt = 2) {
 export async function partHistory(actor: Actor, partId: string) {
   const part = await partOfTeam(actor, partId);
   const installs = await db.installation.findMany({ where: { partId: part.id }, include: { airframe: { select: { name: true } } }, orderBy: { fromAt: "desc" } });
-  return { part, installs, life: await partLife(part.id, part) };
+  return { part, installs, life: (await lifeOfParts([part])).get(part.id) ?? NO_LIFE };
 }

@@ -4,7 +4,7 @@ import { rankQueue, type AirframeFacts, type QueueEntry } from "@/lib/health/que
 import type { Status } from "@/lib/health/thresholds";
 import type { Actor } from "@/lib/roles";
 import { db } from "./db";
-import { lifeFraction } from "./parts";
+import { lifeOfParts } from "./parts";
 
 /** The next heat of the team that has not started more than an hour ago, with its airframes. */
 export async function nextHeat(actor: Actor) {
@@ -29,6 +29,9 @@ export async function inspectionQueue(actor: Actor, options: { onlyNextHeat?: bo
       logs: { orderBy: { flownAt: "desc" }, take: 1, select: { flownAt: true } },
     },
   });
+  // Life is counted over each part's whole history, as on the parts screens, in one go for the fleet.
+  const limited = airframes.flatMap((a) => a.installations.filter((i) => i.part.lifeFlights || i.part.lifeMinutes));
+  const life = await lifeOfParts(limited.map((i) => i.part));
   const facts: AirframeFacts[] = [];
   for (const a of airframes) {
     const lastInspection = a.inspections[0]?.at ?? new Date(0);
@@ -40,14 +43,10 @@ export async function inspectionQueue(actor: Actor, options: { onlyNextHeat?: bo
           include: { log: { select: { flownAt: true } } },
         })
       : null;
-    const partsPastLife = [];
-    for (const i of a.installations) {
-      if (!i.part.lifeFlights && !i.part.lifeMinutes) continue;
-      const logs = await db.flightLog.findMany({ where: { airframeId: a.id, flownAt: { gte: i.fromAt } }, select: { durationS: true } });
-      const used = { flights: logs.length, minutes: logs.reduce((s, l) => s + (l.durationS ?? 0), 0) / 60 };
-      const fraction = lifeFraction(used, i.part) ?? 0;
-      if (fraction >= 1) partsPastLife.push({ position: i.position, what: `${i.part.kind} ${i.part.model}`, fraction });
-    }
+    const partsPastLife = a.installations.flatMap((i) => {
+      const fraction = life.get(i.partId)?.fraction ?? 0;
+      return fraction >= 1 ? [{ position: i.position, what: `${i.part.model} (${i.part.kind})`, fraction }] : [];
+    });
     const lastLog = a.logs[0]?.flownAt ?? new Date(0);
     const lastWork = [
       ...a.inspections.map((x) => ({ what: "inspection", at: x.at })),
