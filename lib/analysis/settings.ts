@@ -69,3 +69,8 @@ export function welchOptionsOf(settings: AnalysisSettings, nperseg: number): Wel
     average: settings.average,
   };
 }
+
+/** A throttle band as people read it: "25–38 %" (throttle 0..1 shown in percent). */
+export function throttleBandLabel(lo: number, hi: number): string {
+  return `${Math.round(lo * 100)}–${Math.round(hi * 100)} %`;
+}

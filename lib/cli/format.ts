@@ -1,3 +1,4 @@
+import { throttleBandLabel } from "../analysis/settings";
 import type { LogAnalysis } from "../analysis/types";
 import type { Assessment } from "../health/compare";
 import { DECISION_AID_NOTE } from "../health/safety";
@@ -56,7 +57,7 @@ export function formatAnalysis(file: string, a: LogAnalysis): string {
   out.push("");
   out.push("Time by throttle");
   const used = a.throttleBands.filter((b) => b.seconds > 0);
-  out.push(table(["throttle", "seconds", "segments", "mean"], used.map((b) => [`${b.lo.toFixed(2)}–${b.hi.toFixed(2)}`, n1(b.seconds), b.segments, n2(b.meanThrottle)]), [false, true, true, true]));
+  out.push(table(["throttle", "seconds", "segments", "mean"], used.map((b) => [throttleBandLabel(b.lo, b.hi), n1(b.seconds), b.segments, n2(b.meanThrottle)]), [false, true, true, true]));
   if (a.motors.length > 0) {
     out.push("");
     out.push("Motors");

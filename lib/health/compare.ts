@@ -1,4 +1,4 @@
-import { DEFAULT_ANALYSIS } from "../analysis/settings";
+import { DEFAULT_ANALYSIS, throttleBandLabel } from "../analysis/settings";
 import type { LogAnalysis, ThrottleBandResult } from "../analysis/types";
 import { AXES, type Axis } from "../logs/columns";
 import { median, round, weightedMean } from "../signal/stats";
@@ -47,7 +47,7 @@ export interface Assessment {
   status: Status;
   findings: Finding[];
   notCompared: NotCompared[];
-  /** Throttle bands compared, as "0.38–0.50". */
+  /** Throttle bands compared, as "38–50 %". */
   comparedBands: string[];
 }
 
@@ -83,7 +83,7 @@ export function compareWithBaseline(log: LogAnalysis, baseline: Baseline, option
 
   const matched: MatchedBand[] = [];
   for (const band of log.throttleBands) {
-    const label = bandLabel(band.lo, band.hi);
+    const label = throttleBandLabel(band.lo, band.hi);
     const base = baseline.throttleBands.find((b) => b.index === band.index);
     if (band.segments < minSegments) {
       if (band.segments > 0 && base) notCompared.push({ what: `throttle ${label}`, reason: `only ${band.seconds.toFixed(1)} s in this log` });
@@ -125,10 +125,6 @@ export function compareWithBaseline(log: LogAnalysis, baseline: Baseline, option
   let status = statusForScore(score, h);
   for (const f of findings) status = worstStatus(status, f.severity);
   return { score, status, findings, notCompared, comparedBands: matched.map((m) => m.label) };
-}
-
-export function bandLabel(lo: number, hi: number): string {
-  return `${lo.toFixed(2)}–${hi.toFixed(2)}`;
 }
 
 /**

@@ -39,7 +39,7 @@ export function rankQueue(fleet: readonly AirframeFacts[]): QueueEntry[] {
     const reasons: string[] = [];
     let status: Status = a.latest?.status ?? "ok";
     if (a.state === "grounded") {
-      reasons.push("grounded by the crew until an inspection returns it to service");
+      reasons.push("grounded until an inspection returns it to service");
       status = worstStatus(status, "ground");
     }
     for (const c of a.openCrashes) {

@@ -11,6 +11,7 @@ import { requireMember } from "@/lib/server/guard";
 import { LogsTable } from "./_components/logs-table";
 import { WorkForms } from "./_components/work-forms";
 import { WHEN } from "@/app/_components/dates";
+import { DEFAULT_ANALYSIS, throttleBandLabel } from "@/lib/analysis/settings";
 
 export const dynamic = "force-dynamic";
 
@@ -116,7 +117,7 @@ export default async function AirframePage({ params, searchParams }: { params: P
       <div className="card">
         {analysis ? (
           <ThrottleHeatmap
-            rows={analysis.throttleBands.map((b) => ({ label: `${Math.round(b.lo * 100)}–${Math.round(b.hi * 100)} %`, seconds: b.segments >= 4 ? b.seconds : 0, db: b.axes[heatAxis].psdDb }))}
+            rows={analysis.throttleBands.map((b) => ({ label: throttleBandLabel(b.lo, b.hi), seconds: b.segments >= DEFAULT_ANALYSIS.minBandSegments ? b.seconds : 0, db: b.axes[heatAxis].psdDb }))}
             binHz={analysis.settings.binHz}
             fromHz={analysis.settings.minFreqHz}
             toHz={analysis.settings.maxFreqHz}
