@@ -54,8 +54,8 @@ describe("quadratic interpolation (J. O. Smith, Spectral Audio Signal Processing
     expect(v.value).toBeCloseTo(5, 12);
   });
   it("refines a Hann-windowed tone between bins to within 0.1 bin on the dB spectrum", () => {
-    // A Gaussian-like main lobe in dB is close to a parabola; Smith quotes errors of a few
-    // hundredths of a bin for Hann. We allow 0.1 bin.
+    // A Hann main lobe in dB is close to a parabola (J. O. Smith, quadratic interpolation of
+    // spectral peaks); its error for Hann is a few hundredths of a bin (from memory). We allow 0.1 bin.
     const n = 256;
     const k0 = 40.3;
     const db = new Float64Array(n / 2 + 1);

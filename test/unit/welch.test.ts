@@ -1,7 +1,7 @@
 import { readFileSync } from "node:fs";
 import { describe, expect, it } from "vitest";
 import { RealPowerSpectrum } from "@/lib/signal/fft";
-import { defaultNperseg, medianBias, welch, type WelchOptions } from "@/lib/signal/welch";
+import { defaultNperseg, medianBias, segmentStarts, welch, type WelchOptions } from "@/lib/signal/welch";
 import { enbwBins, makeWindow, windowSums, type WindowName } from "@/lib/signal/windows";
 import { mulberry32, gaussian } from "@/lib/demo/random";
 
@@ -165,7 +165,9 @@ describe("Welch options and errors", () => {
       { start: 0, end: 400 },
       { start: 400, end: 1000 },
     ]);
-    // 400 → 1 segment (0..256; 128..384), 600 → segments at 400,528,656 → 3 + run1: 0,128 → 2
-    expect(r.segments).toBe(2 + 3);
+    // Run 0..400 holds segments at 0 and 128; run 400..1000 at 400, 528 and 656: 5 in all. One
+    // run over the whole signal would give 6 (0, 128, …, 640), one of them across sample 400.
+    expect(r.segments).toBe(5);
+    expect(segmentStarts([{ start: 0, end: 400 }, { start: 400, end: 1000 }], 256, 128)).toEqual([0, 128, 400, 528, 656]);
   });
 });
