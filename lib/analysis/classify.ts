@@ -24,7 +24,7 @@ export function classifyPeaks(
 ): LabelledPeak[] {
   return peaks.map((p) => {
     const tolerance = Math.max(SAME_PEAK_FRACTION * p.freqHz, 2 * binHz);
-    const sightings: { band: ThrottleBandResult; freqHz: number }[] = [];
+    const sightings: Sighting[] = [];
     for (const band of bands) {
       let best: SpectralPeak | undefined;
       for (const q of band.axes[axis].peaks) {
@@ -38,26 +38,23 @@ export function classifyPeaks(
   });
 }
 
-function kindOf(p: SpectralPeak, sightings: { band: ThrottleBandResult; freqHz: number }[]): PeakKind {
-  const onOrder = sightings.some(({ band, freqHz }) =>
-    band.motors.some((m) => m.orders.some((o) => Math.abs(o.freqHz - freqHz) <= ORDER_MATCH_FRACTION * freqHz)),
-  );
-  if (sightings.length >= 2) {
-    const freqs = sightings.map((s) => s.freqHz);
-    const spread = (Math.max(...freqs) - Math.min(...freqs)) / p.freqHz;
-    if (spread <= STRUCTURAL_SPREAD) {
-      // Orders move with throttle: a peak on an order in every band where it shows is the order.
-      const allOnOrder = sightings.every(({ band, freqHz }) =>
-        band.motors.some((m) => m.orders.some((o) => Math.abs(o.freqHz - freqHz) <= ORDER_MATCH_FRACTION * freqHz)),
-      );
-      return allOnOrder && sightings[0]?.band.motors.length ? "motor" : "structural";
-    }
-    return climbsWithThrottle(sightings) ? "motor" : "unclassified";
-  }
-  return onOrder ? "motor" : "unclassified";
+type Sighting = { band: ThrottleBandResult; freqHz: number };
+
+/** Whether a sighting sits on one of that band's motor orders. */
+function onAnOrder({ band, freqHz }: Sighting): boolean {
+  return band.motors.some((m) => m.orders.some((o) => Math.abs(o.freqHz - freqHz) <= ORDER_MATCH_FRACTION * freqHz));
 }
 
-function climbsWithThrottle(sightings: { band: ThrottleBandResult; freqHz: number }[]): boolean {
+function kindOf(p: SpectralPeak, sightings: Sighting[]): PeakKind {
+  if (sightings.length < 2) return sightings.some(onAnOrder) ? "motor" : "unclassified";
+  const freqs = sightings.map((s) => s.freqHz);
+  const spread = (Math.max(...freqs) - Math.min(...freqs)) / p.freqHz;
+  if (spread > STRUCTURAL_SPREAD) return climbsWithThrottle(sightings) ? "motor" : "unclassified";
+  // Orders move with throttle: a peak on an order in every band where it shows is the order.
+  return sightings.every(onAnOrder) ? "motor" : "structural";
+}
+
+function climbsWithThrottle(sightings: Sighting[]): boolean {
   const sorted = [...sightings].sort((a, b) => a.band.meanThrottle - b.band.meanThrottle);
   for (let i = 1; i < sorted.length; i++) {
     if ((sorted[i]?.freqHz ?? 0) <= (sorted[i - 1]?.freqHz ?? 0)) return false;

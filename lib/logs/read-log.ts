@@ -171,6 +171,8 @@ class LogParser {
   private droppedLines: number[] = [];
   private gaps: Gap[] = [];
   private dataRows = 0;
+  /** Time of the last row handed on, to see a gap between two blocks. */
+  private prevEnd = 0;
 
   // Output block (converted), reused.
   private out: SampleBlock | null = null;
@@ -251,15 +253,11 @@ class LogParser {
     };
   }
 
+  /** A line that never ends is not a CSV log (binary data, or a file with no newlines). */
   private checkCarry(): void {
-    if (!this.layout && this.carry && this.carry.length > MAX_PREAMBLE_LINE) {
-      throw new LogFormatError(
-        `line ${this.line + 1} is longer than ${MAX_PREAMBLE_LINE / 1024} KiB before any header: this does not look like a CSV log`,
-      );
-    }
-    if (this.layout && this.carry && this.carry.length > MAX_PREAMBLE_LINE) {
-      throw new LogFormatError(`line ${this.line + 1} is longer than ${MAX_PREAMBLE_LINE / 1024} KiB: this is not a row of numbers`);
-    }
+    if (!this.carry || this.carry.length <= MAX_PREAMBLE_LINE) return;
+    const what = this.layout ? "this is not a row of numbers" : "this does not look like a CSV log";
+    throw new LogFormatError(`line ${this.line + 1} is longer than ${MAX_PREAMBLE_LINE / 1024} KiB: ${what}`);
   }
 
   /** Complete lines in bytes[start, end); bytes[end-1] is a newline. */
@@ -570,8 +568,6 @@ class LogParser {
     this.prevEnd = time[n - 1] ?? 0;
     this.rawCount = 0;
   }
-
-  private prevEnd = 0;
 
   private emitGap(before: number, after: number, line: number): void {
     const gap: Gap = { line, atS: round(before, 6), lengthS: round(after - before, 6) };
