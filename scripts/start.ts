@@ -111,7 +111,7 @@ async function main(): Promise<void> {
   // The seed analyses its demo logs on the worker threads, so the worker comes before the seed.
   const workerBundle = join(root, "generated", "worker", "analysis-worker.mjs");
   if (stale(workerBundle, ["lib"])) {
-    await step("analysis worker build", npx, ["tsx", "scripts/build-worker.ts"], env,
+    await step("analysis worker build", npx, ["tsx", "scripts/build-bundles.ts", "worker"], env,
       "the analysis worker could not be built; run `npm install` again, then `npm start`.");
   }
 

@@ -58,6 +58,7 @@ describe("a fresh clone", () => {
     expect(ranked).toHaveLength(8);
     // The demo story puts a damaged quad first, not a healthy one: the top row needs pulling.
     expect(html).toMatch(/class="queue-row (ground|inspect)"/);
-    console.log(`fresh clone → inspection queue visible: ${(startMs / 1000).toFixed(0)} s (npm install, migrate, worker, seed ∥ build, start)`);
+    const steps = app.output().split("\n").filter((l) => /^heatcheck: .* done in /.test(l));
+    console.log(`fresh clone → inspection queue visible: ${(startMs / 1000).toFixed(0)} s\n${steps.join("\n")}`);
   }, 960_000);
 });
