@@ -1,5 +1,8 @@
-import type { Axis } from "../logs/columns";
+import { DEFAULT_ANALYSIS } from "../analysis/settings";
+import type { LogAnalysis } from "../analysis/types";
+import { AXES, type Axis } from "../logs/columns";
 import { median } from "../signal/stats";
+import type { Baseline } from "./baseline";
 import { DEFAULT_THRESHOLDS, stepOf, type HealthThresholds, type Status } from "./thresholds";
 
 /**
@@ -258,4 +261,28 @@ export function judgeAgainstFleet(reference: FleetReference, subject: FleetMembe
     notes.push(...worstPerAxis.values());
   }
   return notes;
+}
+
+/** A fleet member from an airframe's active baseline: its structural modes and its band levels per throttle band. */
+export function memberFromBaseline(id: string, name: string, baseline: Baseline): FleetMember {
+  return {
+    id,
+    name,
+    modes: baseline.modes.map((m) => ({ axis: m.axis, freqHz: m.freqHz })),
+    levels: baseline.throttleBands.flatMap((tb) =>
+      AXES.flatMap((axis) => tb.axes[axis].bandDb.map((db, band) => ({ throttleBand: tb.index, axis, band, db }))),
+    ),
+  };
+}
+
+/** A subject from one log, for an airframe with no baseline: its structural peaks and well-flown throttle bands. */
+export function memberFromLog(id: string, name: string, analysis: LogAnalysis): FleetMember {
+  return {
+    id,
+    name,
+    modes: AXES.flatMap((axis) => analysis.axes[axis].peaks.filter((p) => p.kind === "structural").map((p) => ({ axis, freqHz: p.freqHz }))),
+    levels: analysis.throttleBands
+      .filter((tb) => tb.segments >= DEFAULT_ANALYSIS.minBandSegments)
+      .flatMap((tb) => AXES.flatMap((axis) => tb.axes[axis].bandDb.map((db, band) => ({ throttleBand: tb.index, axis, band, db })))),
+  };
 }
