@@ -42,6 +42,10 @@ export default async function AirframePage({ params, searchParams }: { params: P
             {airframe.serial ? ` · serial ${airframe.serial}` : ""} · {airframe.status === "grounded" ? "GROUNDED" : "ready"}
             {airframe.retired ? " · retired" : ""}
           </div>
+          <div className="small">
+            History: <a href={`/api/v1/airframes/${encodeURIComponent(airframe.name)}/history?format=csv`}>CSV</a> ·{" "}
+            <a href={`/api/v1/airframes/${encodeURIComponent(airframe.name)}/history?format=json`}>JSON</a>
+          </div>
         </div>
         <div style={{ textAlign: "right" }}>
           {latest?.assessment ? <StatusBadge status={status} /> : <span className="muted">no score yet</span>}
