@@ -40,7 +40,7 @@ export async function fleetTable(actor: Actor) {
 }
 
 /** Labels for the notes: analysis band i as "170–230 Hz", throttle band j as "25–38 %". */
-const BAND_WORDS = {
+export const BAND_WORDS = {
   bandLabel: (band: number) => {
     const e = DEFAULT_ANALYSIS.bandEdgesHz;
     return `${e[band] ?? "?"}–${e[band + 1] ?? "?"} Hz`;
