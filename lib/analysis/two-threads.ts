@@ -67,12 +67,6 @@ export async function analyzeLogInTwoThreads(
   source: AsyncIterable<Uint8Array>,
   options: TwoThreadOptions,
 ): Promise<{ analysis: LogAnalysis; summary: ReadSummary; stats: PipelineStats }> {
-  const entry = new URL(options.entryUrl);
-  // Under tsx the entry is TypeScript, and a worker does not inherit tsx's loader: register it
-  // in the worker first, then load the entry.
-  const worker = entry.pathname.endsWith(".ts")
-    ? new Worker(`import("tsx/esm/api").then((tsx) => { tsx.register(); return import(${JSON.stringify(entry.href)}); });`, { eval: true, workerData: { role: ROLE } })
-    : new Worker(entry, { workerData: { role: ROLE } });
   const stats: PipelineStats = { bufferSets: 0, maxInFlight: 0, batches: 0 };
   let inFlight = 0;
   let wake: (() => void) | null = null;
@@ -86,7 +80,20 @@ export async function analyzeLogInTwoThreads(
   // Failures are awaited below; until then the promise must not count as unhandled.
   done.catch(() => undefined);
   const free: SampleBlock[] = [];
-  worker.on("message", (m: FromWorker) => {
+  // The worker starts when the reader has a header and a sample rate, so a file refused early
+  // (not a CSV, no header, a bad cell in the first rows) costs no thread.
+  const thread: { worker: Worker | null } = { worker: null };
+  const startWorker = (): Worker => {
+    const entry = new URL(options.entryUrl);
+    // Under tsx the entry is TypeScript, and a worker does not inherit tsx's loader: register it
+    // in the worker first, then load the entry.
+    const w = entry.pathname.endsWith(".ts")
+      ? new Worker(`import("tsx/esm/api").then((tsx) => { tsx.register(); return import(${JSON.stringify(entry.href)}); });`, { eval: true, workerData: { role: ROLE } })
+      : new Worker(entry, { workerData: { role: ROLE } });
+    listen(w);
+    return w;
+  };
+  const listen = (w: Worker) => w.on("message", (m: FromWorker) => {
     if (m.type === "ack") {
       inFlight--;
       free.push(m.block);
@@ -98,13 +105,15 @@ export async function analyzeLogInTwoThreads(
       rejectDone(failure);
       wake?.();
     }
-  });
-  worker.on("error", (e) => {
+  }).on("error", (e) => {
     failure = e;
     rejectDone(e);
     wake?.();
   });
-  const post = (m: ToWorker, transfer: ArrayBuffer[] = []) => worker.postMessage(m, transfer);
+  const post = (m: ToWorker, transfer: ArrayBuffer[] = []) => {
+    thread.worker ??= startWorker();
+    thread.worker.postMessage(m, transfer);
+  };
   const settings = options.settings ?? {};
 
   let current: Batch | null = null;
@@ -182,7 +191,7 @@ export async function analyzeLogInTwoThreads(
     post({ type: "finish", summary });
     return { analysis: await done, summary, stats };
   } finally {
-    await worker.terminate();
+    await thread.worker?.terminate();
   }
 }
 

@@ -390,7 +390,7 @@ export class LogReader {
       );
     }
     throw new LogFormatError(
-      `${this.dropped} of ${this.dataRows} rows are incomplete or have the wrong number of cells (first at line ${this.droppedLines[0] ?? "?"}); the file looks damaged`,
+      `${this.dropped} of ${this.dataRows} rows were dropped as damaged (an empty or missing cell, a cell count other than the header's, or a repeated time stamp; first at line ${this.droppedLines[0] ?? "?"}); the file looks damaged`,
     );
   }
 
