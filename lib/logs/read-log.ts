@@ -346,7 +346,8 @@ export class LogReader {
     if (!this.head) throw this.longLine(this.line + 1);
   }
 
-  finish(): ReadSummary {
+  /** The end of the input: held bytes are read, and a last line without a line ending too. */
+  private endOfInput(): void {
     if (!this.started) this.hold(new Uint8Array(0), true);
     if (this.carryLen > 0 && !this.head) {
       const last = new Uint8Array(this.carryLen + 1);
@@ -355,6 +356,18 @@ export class LogReader {
       this.carryLen = 0;
       this.lines(last, 0, last.length);
     }
+  }
+
+  /** In head mode, at the end of the input: the head, or the reader's error for a file without one. */
+  finishHead(): HeadFound {
+    this.endOfInput();
+    if (this.head) return this.head;
+    this.finish();
+    throw new LogFormatError("no header row was found: after the # metadata lines, the first line must name the columns");
+  }
+
+  finish(): ReadSummary {
+    this.endOfInput();
     if (this.bytes === 0) throw new LogFormatError("the file is empty");
     if (!this.layout) {
       throw new LogFormatError(
@@ -866,13 +879,6 @@ function makeLayout(headers: string[], map: ColumnMap, line: number): Layout {
     if (column < 0) {
       throw new LogFormatError(
         `the map names a column "${binding.header}" for ${channelKey(binding.channel)}, but the header has no such column`,
-        { line },
-      );
-    }
-    if ((slotOfColumn[column] ?? -1) >= 0) {
-      const first = ordered.find((b) => b.header === binding.header);
-      throw new LogFormatError(
-        `the map binds the column "${binding.header}" twice (to ${first ? channelKey(first.channel) : "another key"} and to ${channelKey(binding.channel)}); give each key its own column`,
         { line },
       );
     }

@@ -1,4 +1,3 @@
-import { LogFormatError } from "../errors";
 import { canonicalMap, proposeColumnMap, type MapProposal } from "./columns";
 import { LogReader, nextChunk, type LogSink } from "./read-log";
 
@@ -43,10 +42,8 @@ export async function readLogHead(source: AsyncIterable<Uint8Array>, options: { 
 }
 
 function headOf(reader: LogReader): LogHead {
-  if (!reader.head) reader.finish(); // throws the reader's own sentence for a file without a header
-  const head = reader.head;
-  if (!head) throw new LogFormatError("no header row was found: after the # metadata lines, the first line must name the columns");
-  const { metadata, headers, line } = head;
+  // At the end of the input this throws the reader's own sentence for a file without a header.
+  const { metadata, headers, line } = reader.head ?? reader.finishHead();
   return { metadata, headers, line, proposal: proposeColumnMap(headers), canonical: canonicalMap(headers) !== undefined };
 }
 

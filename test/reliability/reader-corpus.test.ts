@@ -165,3 +165,33 @@ function npmCli(args: string[]): Promise<CliRun> {
     });
   });
 }
+
+describe("the head reader of the upload path follows the same rules", () => {
+  it("readLogHead refuses exactly the cases the reader refuses before or at the header, with the same sentence", async () => {
+    const { readLogHead } = await import("@/lib/logs/sniff");
+    const { chunked } = await import("./run-case");
+    for (const c of cases) {
+      if (c.expect.outcome === "rejected" && c.expect.stage === "map") continue;
+      const full = await runCaseInProcess(c);
+      let head: { line: number; proposal: { missing: string[] } } | null = null;
+      let error: Error | null = null;
+      try {
+        head = await readLogHead(chunked(c.bytes, () => 64 * 1024), { maxBytes: (c.maxMb ?? 512) * 1024 * 1024 });
+      } catch (e) {
+        error = e as Error;
+      }
+      if (error) {
+        // Refused in the head: the whole reader refuses the file with the very same message.
+        expect(full.outcome === "rejected" ? full.message : "accepted", c.id).toBe(error.message);
+      } else {
+        expect(head, c.id).not.toBeNull();
+        // A head was found: the reader got past it, or refused the header's columns, which the head
+        // reports as missing (or the case's map does not fit them); other refusals are about later lines.
+        if (full.outcome === "rejected" && full.line !== undefined) {
+          expect(full.line, c.id).toBeGreaterThanOrEqual(head?.line ?? 0);
+          if (full.line === head?.line) expect((head.proposal.missing.length > 0 || c.map !== undefined) && /no column for|the map/.test(full.message), c.id).toBe(true);
+        }
+      }
+    }
+  });
+});
