@@ -55,7 +55,8 @@ export function rankQueue(fleet: readonly AirframeFacts[]): QueueEntry[] {
       reasons.push(`${p.what} at ${p.position} has used ${Math.round(p.fraction * 100)} % of its life limit: replace it`);
       status = worstStatus(status, "watch");
     }
-    if (a.noLogSince) {
+    // A stale baseline already says "fly one log"; the plain no-log reason would say it twice.
+    if (a.noLogSince && !a.staleBaseline) {
       reasons.push(`no log flown since the ${a.noLogSince.what} on ${DAY.format(a.noLogSince.at)} UTC: fly a short check and upload it`);
       status = worstStatus(status, "watch");
     }

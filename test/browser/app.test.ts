@@ -67,7 +67,7 @@ describe("the crew at work (owner)", () => {
 
   it("the queue shows the demo ranking with reasons in words", async () => {
     const rows = page.locator("[data-testid=queue] > li");
-    await expect.poll(() => rows.count(), { timeout: 15_000 }).toBe(8);
+    await expect.poll(() => rows.count(), { timeout: 15_000 }).toBe(9);
     const names = await rows.evaluateAll((els) => els.map((e) => e.getAttribute("data-airframe")));
     // The crashed, uninspected quad first; then the three damaged ones; healthy ones last.
     expect(names[0]).toBe("HV-07");
@@ -194,7 +194,7 @@ describe("the crew at work (owner)", () => {
     expect(await page.locator("[data-testid=upload-list]").innerText()).toMatch(/matched by file name/);
     await page.fill('[data-testid=map-step] input[placeholder="logger model"]', "other logger");
     await page.click('[data-testid=map-step] button:has-text("Save profile")');
-    await expect.poll(() => page.locator("[data-testid=map-step] .form-message").innerText()).toMatch(/Import profile "other logger" saved/);
+    await expect.poll(() => page.locator("[data-testid=profile-note]").innerText()).toMatch(/Import profile "other logger" saved/);
     await page.click("[data-testid=import-all]");
     await expect.poll(async () => page.locator('[data-testid=upload-list] tr[data-phase="done"]').count(), { timeout: 60_000 }).toBe(1);
     await page.goto(`${app.url}/team`);

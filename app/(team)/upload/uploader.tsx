@@ -254,7 +254,7 @@ export function Uploader({ airframes, profiles }: UploaderProps) {
               </div>
             </div>
           ))}
-          {profileNote ? <p className="form-message">{profileNote}</p> : null}
+          {profileNote ? <p className="form-message" data-testid="profile-note">{profileNote}</p> : null}
         </section>
       ) : null}
 
