@@ -217,7 +217,7 @@ export function Uploader({ airframes, profiles }: UploaderProps) {
                   </ul>
                 </details>
               ) : null}
-              <ColumnMapTable fileName={i.file.name} headers={i.headers} rows={i.rows} mapText={i.mapText} onChange={(mapText) => update(i.key, { mapText })} />
+              <ColumnMapTable fileName={i.file.name} headers={i.headers} rows={i.rows} mapText={i.mapText} onChange={(mapText) => update(i.key, { mapText, message: mapComplete(mapText) ? "" : "the column map is not complete yet" })} />
               <div className="row">
                 <details style={{ flex: "3 1 400px" }}>
                   <summary className="small">The same map as text (for the command line and import profiles)</summary>
