@@ -75,21 +75,22 @@ export interface FleetPlacement {
 export async function fleetPlacement(actor: Actor): Promise<FleetPlacement> {
   // The placement parses every active baseline of the team: keep the last one per team and
   // reuse it while nothing it rests on has changed (the queue asks for it on every refresh).
-  const fingerprint = await placementFingerprint(actor);
+  const sources = await placementSources(actor);
+  const fingerprint = sources.map((r) => [r.id, r.name, r.frameDesign, r.status, r.baselines[0]?.id ?? "", r.logs[0]?.id ?? ""].join("|")).join(";");
   const cached = placementCache.get(actor.teamId);
   if (cached && cached.fingerprint === fingerprint) return cached.value;
-  const value = await computePlacement(actor);
+  const value = await computePlacement(sources);
   placementCache.set(actor.teamId, { fingerprint, value });
   return value;
 }
 
 const placementCache = ((globalThis as unknown as { heatcheckFleetCache?: Map<string, { fingerprint: string; value: FleetPlacement }> }).heatcheckFleetCache ??= new Map());
 
-/** What the placement depends on, read cheaply: airframes, their state and design, active baselines, latest analysed logs. */
-async function placementFingerprint(actor: Actor): Promise<string> {
-  const rows = await db.airframe.findMany({
+/** What the placement rests on, read cheaply: airframes, their state and design, active baseline, latest analysed log. */
+function placementSources(actor: Actor) {
+  return db.airframe.findMany({
     where: { teamId: actor.teamId, retired: false },
-    orderBy: { id: "asc" },
+    orderBy: { name: "asc" },
     select: {
       id: true,
       name: true,
@@ -99,30 +100,26 @@ async function placementFingerprint(actor: Actor): Promise<string> {
       logs: { where: { status: "analysed" }, orderBy: { flownAt: "desc" }, take: 1, select: { id: true } },
     },
   });
-  return rows.map((r) => [r.id, r.name, r.frameDesign, r.status, r.baselines[0]?.id ?? "", r.logs[0]?.id ?? ""].join("|")).join(";");
 }
 
-async function computePlacement(actor: Actor): Promise<FleetPlacement> {
-  const airframes = await db.airframe.findMany({
-    where: { teamId: actor.teamId, retired: false },
-    orderBy: { name: "asc" },
-    select: {
-      id: true,
-      name: true,
-      frameDesign: true,
-      status: true,
-      baselines: { where: { active: true }, orderBy: { createdAt: "desc" }, take: 1, select: { json: true } },
-      logs: { where: { status: "analysed" }, orderBy: { flownAt: "desc" }, take: 1, select: { id: true, analysis: { select: { json: true } } } },
-    },
-  });
+async function computePlacement(airframes: Awaited<ReturnType<typeof placementSources>>): Promise<FleetPlacement> {
+  const baselineIds = airframes.flatMap((a) => a.baselines.map((b) => b.id));
+  const logIds = airframes.filter((a) => a.baselines.length === 0).flatMap((a) => a.logs.map((l) => l.id));
+  const [baselineRows, analysisRows] = await Promise.all([
+    db.baseline.findMany({ where: { id: { in: baselineIds } }, select: { id: true, json: true } }),
+    db.analysis.findMany({ where: { logId: { in: logIds } }, select: { logId: true, json: true } }),
+  ]);
+  const baselineJson = new Map(baselineRows.map((b) => [b.id, b.json]));
+  const analysisJson = new Map(analysisRows.map((a) => [a.logId, a.json]));
   const members = new Map<string, FleetMember[]>();
   const subjects = airframes.map((a) => {
-    const baselineJson = a.baselines[0]?.json;
-    const analysisJson = a.logs[0]?.analysis?.json;
-    const fromBaseline = baselineJson ? memberFromBaseline(a.id, a.name, JSON.parse(baselineJson) as Baseline) : null;
+    const bJson = baselineJson.get(a.baselines[0]?.id ?? "");
+    const logId = a.logs[0]?.id ?? null;
+    const aJson = logId ? analysisJson.get(logId) : undefined;
+    const fromBaseline = bJson ? memberFromBaseline(a.id, a.name, JSON.parse(bJson) as Baseline) : null;
     if (fromBaseline && a.status !== "grounded") members.set(a.frameDesign, [...(members.get(a.frameDesign) ?? []), fromBaseline]);
-    const fromLog = !fromBaseline && analysisJson ? memberFromLog(a.id, a.name, JSON.parse(analysisJson) as LogAnalysis) : null;
-    return { airframe: a, fromBaseline, fromLog, logId: a.logs[0]?.id ?? null };
+    const fromLog = !fromBaseline && aJson ? memberFromLog(a.id, a.name, JSON.parse(aJson) as LogAnalysis) : null;
+    return { airframe: a, fromBaseline, fromLog, logId };
   });
   const placements = subjects.map(({ airframe, fromBaseline, fromLog, logId }) => {
     const reference = buildFleetReference(airframe.frameDesign, members.get(airframe.frameDesign) ?? [], airframe.id);
