@@ -18,9 +18,12 @@ export interface MultipartFile {
  * Every failure reaches `handle` through its body stream or ends this promise: a request cut off
  * mid-body destroys the file stream with an error (so the handler removes its temporary file), and
  * no stream is left without an error listener (a dropped client never becomes an uncaught
- * exception). When the handler refuses the file early, the rest of the body is read and dropped so
- * that the client receives the answer.
+ * exception). When the handler refuses the file early, the rest of the body is read and dropped
+ * before the answer goes out (for at most DRAIN_MS): a browser or a script still sending would
+ * otherwise see a reset connection instead of the reason.
  */
+const DRAIN_MS = 30_000;
+
 export function readMultipartFile<T>(request: Request, handle: (file: MultipartFile) => Promise<T>): Promise<T> {
   const type = request.headers.get("content-type") ?? "";
   if (!type.toLowerCase().startsWith("multipart/form-data") || !request.body) {
@@ -45,6 +48,16 @@ export function readMultipartFile<T>(request: Request, handle: (file: MultipartF
       return;
     }
     const source = Readable.fromWeb(body as unknown as NodeWebStream<Uint8Array>);
+    const drained = new Promise<void>((done) => {
+      const timer = setTimeout(done, DRAIN_MS);
+      const end = () => {
+        clearTimeout(timer);
+        done();
+      };
+      source.once("end", end);
+      source.once("error", end);
+      source.once("close", end);
+    });
     const cutOff = () => new InputError("The upload was cut off or is not valid multipart data; nothing was kept.");
     let fileStream: Readable | null = null;
     source.on("error", () => {
@@ -63,12 +76,14 @@ export function readMultipartFile<T>(request: Request, handle: (file: MultipartF
         return;
       }
       fileStream = stream;
-      handled = handle({ fields: { ...fields }, fileName: info.filename || "upload.csv", body: stream });
+      // Not destroyed when the consumer stops early, so that the rest can be drained (see above).
+      const bytes: AsyncIterable<Uint8Array> = { [Symbol.asyncIterator]: () => stream.iterator({ destroyOnReturn: false }) };
+      handled = handle({ fields: { ...fields }, fileName: info.filename || "upload.csv", body: bytes });
       handled.then(
         (v) => finish(true, v),
         (e: unknown) => {
           if (!stream.destroyed) stream.resume();
-          finish(false, e);
+          void drained.then(() => finish(false, e));
         },
       );
     });
