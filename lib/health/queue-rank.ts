@@ -13,6 +13,8 @@ export interface AirframeFacts {
   state: string;
   latest: { status: Status; score: number | null; findings: Finding[]; flownAt: Date } | null;
   hasBaseline: boolean;
+  /** Set when parts that change the spectrum were fitted after the baseline's flights. */
+  staleBaseline?: { reason: string } | null;
   openCrashes: { at: Date; severity: string; positions: string[] }[];
   partsPastLife: { position: string; what: string; fraction: number }[];
   /** The last crash repair, inspection or swap, when no log has been flown since. */
@@ -53,6 +55,11 @@ export function rankQueue(fleet: readonly AirframeFacts[]): QueueEntry[] {
     }
     if (a.noLogSince) {
       reasons.push(`no log flown since the ${a.noLogSince.what} on ${DAY.format(a.noLogSince.at)} UTC: fly a short check and upload it`);
+      status = worstStatus(status, "watch");
+    }
+    if (a.staleBaseline) {
+      // The baseline no longer describes the airframe: at least watch until a new one is confirmed.
+      reasons.push(a.staleBaseline.reason);
       status = worstStatus(status, "watch");
     }
     if (!a.hasBaseline) {

@@ -112,13 +112,19 @@ export function formatColumnMap(map: ColumnMap): string {
   return map.map((b) => `${channelKey(b.channel)}=${b.header}|${b.channel.unit}`).join(",");
 }
 
-/** Rejects a map that binds one channel twice or lacks time or a gyro axis. */
+/** Rejects a map that binds one channel twice, one column to two keys, or lacks time or a gyro axis. */
 export function checkMap(map: ColumnMap): ColumnMap {
   const seen = new Set<string>();
+  const keyOfHeader = new Map<string, string>();
   for (const b of map) {
     const key = channelKey(b.channel);
     if (seen.has(key)) throw new InputError(`the map binds ${key} twice`, "map");
     seen.add(key);
+    const other = keyOfHeader.get(b.header);
+    if (other !== undefined) {
+      throw new InputError(`the map binds the column "${b.header}" twice (to ${other} and to ${key}); give each key its own column`, "map");
+    }
+    keyOfHeader.set(b.header, key);
   }
   const missing = ["time", ...AXES].filter((k) => !seen.has(k));
   if (missing.length > 0) {
