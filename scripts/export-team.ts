@@ -2,10 +2,13 @@
 // team as a documented archive (see README "Team export"). Exit 0 done, 1 failed, 2 usage.
 import { createWriteStream } from "node:fs";
 import { rm } from "node:fs/promises";
-import { resolve } from "node:path";
+import { join, resolve } from "node:path";
 import { createGzip } from "node:zlib";
-import { db } from "../lib/server/db";
-import { writeTeamExport } from "../lib/server/team-export";
+
+// The same defaults as npm start: the database in the data folder unless DATABASE_URL says otherwise.
+process.env.DATABASE_URL ??= `file:${join(resolve(process.env.HEATCHECK_DATA_DIR ?? "data"), "heatcheck.db")}`;
+const { db } = await import("../lib/server/db");
+const { writeTeamExport } = await import("../lib/server/team-export");
 
 async function main(): Promise<number> {
   const [which, target] = process.argv.slice(2);

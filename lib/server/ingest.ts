@@ -35,8 +35,11 @@ export interface IngestResult {
   matchedBy: "chosen" | "metadata" | "file name";
 }
 
-/** `# flown_at:` must fall in this range; outside it the date is a typo or a wrong clock. */
-export const EARLIEST_FLOWN_AT = new Date("2000-01-01T00:00:00Z");
+/**
+ * `# flown_at:` must fall in this range; outside it the date is a typo. The Unix epoch is allowed:
+ * it is what a logger without a set clock writes.
+ */
+export const EARLIEST_FLOWN_AT = new Date("1970-01-01T00:00:00Z");
 /** How far ahead of the server's clock a flight may be dated (a pit laptop's clock may be off). */
 export const FLOWN_AT_LEEWAY_MS = 2 * 24 * 3600_000;
 
@@ -68,10 +71,14 @@ async function ingest(actor: Actor, req: IngestRequest): Promise<IngestResult> {
   let stored: string | null = null;
   try {
     const check = new UploadCheck();
+    const bytes = spool.tee(req.body, limit);
     let summary: ReadSummary;
     try {
-      summary = await readLog(spool.tee(req.body, limit), check, { map, maxBytes: limit });
+      summary = await readLog(bytes, check, { map, maxBytes: limit });
     } catch (e) {
+      // The reader stopped early: end the tee too, so the request's stream is released (and can
+      // be drained by the multipart reader) instead of staying attached to a suspended loop.
+      await bytes.return(undefined).catch(() => undefined);
       throw spool.failure ?? e;
     }
     await spool.close().catch(rethrowStorage);

@@ -82,6 +82,9 @@ export function readMultipartFile<T>(request: Request, handle: (file: MultipartF
       handled.then(
         (v) => finish(true, v),
         (e: unknown) => {
+          // A consumer that stopped early may still hold a 'readable' listener, which keeps
+          // resume() from flowing: drop it, then read and discard the rest.
+          stream.removeAllListeners("readable");
           if (!stream.destroyed) stream.resume();
           void drained.then(() => finish(false, e));
         },

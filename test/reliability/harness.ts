@@ -1,15 +1,15 @@
-import { execFileSync, spawn, type ChildProcess } from "node:child_process";
+import { execFileSync } from "node:child_process";
 import { createHash, randomBytes } from "node:crypto";
 import { cpSync, existsSync, mkdtempSync, readFileSync, readdirSync, renameSync, rmSync } from "node:fs";
 import { request as httpRequest } from "node:http";
-import { createServer } from "node:net";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
+import { startApp } from "../support/app-server";
 import { openSqlite } from "../support/sqlite";
 
 /**
- * The app started the way `npm start` starts it (scripts/start.ts: migrate, seed the demo team,
- * build when sources changed, next start) on a free loopback port with its own data folder, plus
+ * The app started the way `npm start` starts it (test/support/app-server.ts runs npm start: migrate,
+ * seed the demo team, build when sources changed, next start) with its own data folder, plus
  * the raw HTTP tools the reliability checks need: multipart bodies sent at any pace, cut off at any
  * byte, and an API token written straight into the database.
  */
@@ -25,18 +25,6 @@ export interface RunningApp {
   stop: (timeoutMs?: number) => Promise<boolean>;
   /** SIGKILL to the whole process group, no cleanup of any kind. */
   kill: () => Promise<void>;
-}
-
-export async function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const s = createServer();
-    s.listen(0, "127.0.0.1", () => {
-      const address = s.address();
-      const port = typeof address === "object" && address ? address.port : 0;
-      s.close(() => resolve(port));
-    });
-    s.on("error", reject);
-  });
 }
 
 export function newDataDir(label: string): string {
@@ -77,73 +65,34 @@ export function seededDataDir(label: string): string {
   return dir;
 }
 
-/** Starts scripts/start.ts (build skipped when .next is fresh, as npm start does). */
+/**
+ * Starts the app with `startApp` (npm start, its own process group) on `dataDir`; `port` keeps the
+ * address of a previous run (restarts after a kill).
+ */
 export async function startThroughScript(dataDir: string, extraEnv: Record<string, string> = {}, port?: number): Promise<RunningApp> {
-  const p = port ?? (await freePort());
-  const url = `http://127.0.0.1:${p}`;
-  const env: NodeJS.ProcessEnv = {
-    ...process.env,
-
-    PORT: String(p),
-    HEATCHECK_DATA_DIR: dataDir,
-    DATABASE_URL: `file:${join(dataDir, "heatcheck.db")}`,
-    NEXTAUTH_URL: url,
-    NEXTAUTH_SECRET: process.env.NEXTAUTH_SECRET ?? randomBytes(24).toString("hex"),
-    HEATCHECK_WORKERS: "1",
-    ...extraEnv,
-  };
-  Object.assign(env, { NODE_ENV: "production" });
-  const child: ChildProcess = spawn("npx", ["tsx", "scripts/start.ts"], { env, stdio: "pipe", detached: true });
-  let output = "";
-  child.stdout?.on("data", (d: Buffer) => (output += d.toString()));
-  child.stderr?.on("data", (d: Buffer) => (output += d.toString()));
-  let exited = false;
-  child.on("exit", () => (exited = true));
-  const deadline = Date.now() + 240_000;
-  for (;;) {
-    try {
-      const r = await fetch(`${url}/signin`);
-      if (r.ok) break;
-    } catch {
-      // not listening yet
-    }
-    if (exited || Date.now() > deadline) throw new Error(`the app did not start:\n${output}`);
-    await new Promise((r) => setTimeout(r, 250));
-  }
-  const waitExit = (timeoutMs: number) =>
-    new Promise<boolean>((resolve) => {
-      if (exited) return resolve(true);
-      const t = setTimeout(() => resolve(false), timeoutMs);
-      child.once("exit", () => {
-        clearTimeout(t);
-        resolve(true);
-      });
-    });
-  const signalGroup = (sig: NodeJS.Signals) => {
-    try {
-      if (child.pid) process.kill(-child.pid, sig);
-    } catch {
-      // already gone
-    }
-  };
+  const app = await startApp({ dataDir, port, env: { HEATCHECK_MAX_UPLOAD_MB: undefined, ...extraEnv } });
+  const url = new URL(app.url);
   return {
-    url,
-    port: p,
-    pid: child.pid ?? 0,
+    url: app.url,
+    port: Number(url.port),
+    pid: app.pid,
     dataDir,
-    env,
-    output: () => output,
+    env: app.env,
+    output: app.output,
     stop: async (timeoutMs = 20_000) => {
-      signalGroup("SIGTERM");
-      const ok = await waitExit(timeoutMs);
-      if (!ok) signalGroup("SIGKILL");
+      try {
+        process.kill(-app.pid, "SIGTERM");
+      } catch {
+        // already gone
+      }
+      const ok = await app.exited(timeoutMs);
+      if (!ok) await app.kill();
       // The group leader exits first; give next-server a moment to follow.
       await new Promise((r) => setTimeout(r, 300));
       return ok;
     },
     kill: async () => {
-      signalGroup("SIGKILL");
-      await waitExit(10_000);
+      await app.kill();
       await new Promise((r) => setTimeout(r, 200));
     },
   };

@@ -35,7 +35,8 @@ export function seeded(seed: number): () => number {
 
 export function integrity(dataDir: string, answeredIds: ReadonlySet<string>): { problems: string[]; lost: number; pending: number } {
   const problems: string[] = [];
-  const db = openSqlite(join(dataDir, "heatcheck.db"), true);
+  // Read-write, as the server's next start opens it: a hot journal left by the kill is rolled back.
+  const db = openSqlite(join(dataDir, "heatcheck.db"));
   try {
     const check = db.pragma("integrity_check", { simple: true });
     if (check !== "ok") problems.push(`integrity_check: ${String(check)}`);

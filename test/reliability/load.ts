@@ -2,6 +2,7 @@ import { readFileSync, readdirSync } from "node:fs";
 import { request as httpRequest } from "node:http";
 import { join } from "node:path";
 import { demoCsv } from "@/lib/demo/demo-csv";
+import { HttpSession } from "../support/http-session";
 import { openSqlite } from "../support/sqlite";
 import { addToken, upload, type RunningApp } from "./harness";
 
@@ -48,36 +49,13 @@ export function stats(values: readonly number[]): Stats {
   return { count: s.length, p50: at(0.5), p95: at(0.95), p99: at(0.99), max: s[s.length - 1] ?? Number.NaN };
 }
 
-/** Signs in through next-auth's credentials endpoint and returns the Cookie header for the session. */
-export async function signIn(baseUrl: string, email: string, password: string): Promise<string> {
-  const csrf = await fetch(new URL("/api/auth/csrf", baseUrl));
-  const jar = new Map<string, string>();
-  const keep = (r: Response) => {
-    for (const c of r.headers.getSetCookie()) {
-      const [pair] = c.split(";");
-      const eq = pair?.indexOf("=") ?? -1;
-      if (pair && eq > 0) jar.set(pair.slice(0, eq), pair.slice(eq + 1));
-    }
-  };
-  keep(csrf);
-  const { csrfToken } = (await csrf.json()) as { csrfToken: string };
-  const cookie = () => [...jar].map(([k, v]) => `${k}=${v}`).join("; ");
-  const r = await fetch(new URL("/api/auth/callback/credentials", baseUrl), {
-    method: "POST",
-    redirect: "manual",
-    headers: { "content-type": "application/x-www-form-urlencoded", cookie: cookie() },
-    body: new URLSearchParams({ csrfToken, email, password, json: "true" }),
-  });
-  keep(r);
-  if (![...jar.keys()].some((k) => k.includes("session-token"))) throw new Error(`sign-in as ${email} failed (${r.status})`);
-  return cookie();
-}
-
 function get(baseUrl: string, path: string, headers: Record<string, string>): Promise<{ status: number; ms: number }> {
   const url = new URL(path, baseUrl);
   const t0 = performance.now();
   return new Promise((resolve) => {
-    const req = httpRequest({ host: url.hostname, port: url.port, path: url.pathname + url.search, headers }, (res) => {
+    // A new connection per request (no keep-alive): a reused socket the server is just closing
+    // would count as an error of the client's making.
+    const req = httpRequest({ host: url.hostname, port: url.port, path: url.pathname + url.search, headers, agent: false }, (res) => {
       res.resume();
       res.on("end", () => resolve({ status: res.statusCode ?? 0, ms: performance.now() - t0 }));
       res.on("error", () => resolve({ status: 0, ms: performance.now() - t0 }));
@@ -106,7 +84,9 @@ export function maxRssOfGroup(groupPid: number): number {
 
 export async function runLoad(app: RunningApp, groupPid: number, o: LoadOptions): Promise<LoadReport> {
   const readToken = addToken(app.dataDir, "owner@heatcheck.test", "load readers");
-  const cookie = await signIn(app.url, "viewer@heatcheck.test", "pitwall-viewer-2026");
+  const session = new HttpSession(app.url);
+  if (!(await session.signIn("viewer@heatcheck.test", "pitwall-viewer-2026"))) throw new Error("the demo viewer could not sign in");
+  const cookie = session.cookieHeader;
   const base = Buffer.from(
     demoCsv({ seed: 5150, durationS: Math.max(3, (o.uploadMb * 1e6) / (4000 * 64)), sampleRateHz: 4000 }, { airframe: "HV-06", flownAt: "2026-11-30T11:00:00Z" }),
   );

@@ -119,8 +119,12 @@ describe("aborted and excess uploads", () => {
   it("a fifth upload at once from one token is refused with 429 and Retry-After; the others go through", async () => {
     const bytes = [41, 42, 43, 44, 45].map((s) => good(s));
     // Four slow uploads hold their slots (the body trickles in), the fifth arrives meanwhile.
-    const slow = bytes.slice(0, 4).map((b) => upload(app.url, b, { token, fileName: "hv-05-slow.csv", chunkBytes: 32 * 1024, pauseMs: 60 }));
-    await new Promise((r) => setTimeout(r, 700));
+    const slow = bytes.slice(0, 4).map((b) => upload(app.url, b, { token, fileName: "hv-05-slow.csv", chunkBytes: 16 * 1024, pauseMs: 100 }));
+    // Each running upload has its temporary file: wait until all four are streaming.
+    const deadline = Date.now() + 20_000;
+    while (filesUnder(join(app.dataDir, "uploads")).filter((f) => f.includes("incoming-")).length < 4 && Date.now() < deadline) {
+      await new Promise((r) => setTimeout(r, 50));
+    }
     const fifth = await upload(app.url, bytes[4] ?? Buffer.alloc(0), { token, fileName: "hv-05-fifth.csv" });
     expect(fifth.status).toBe(429);
     expect(Number(fifth.headers["retry-after"])).toBeGreaterThan(0);
