@@ -1,7 +1,7 @@
-// Runs once when the server starts: picks up analyses left pending by a stop.
+// Runs once when the server starts: the data folder made private and swept, pending analyses
+// re-queued, a bounded shutdown armed (lib/server/startup.ts).
 export async function register(): Promise<void> {
   if (process.env.NEXT_RUNTIME !== "nodejs") return;
-  const { resumePendingAnalyses } = await import("@/lib/server/analysis-jobs");
-  const n = await resumePendingAnalyses();
-  if (n > 0) console.log(`heatcheck: resumed ${n} pending analyses`);
+  const { startServer } = await import("@/lib/server/startup");
+  await startServer();
 }

@@ -12,7 +12,9 @@ export type ErrorCode =
   | "unauthenticated"
   | "forbidden"
   | "limit-exceeded"
-  | "conflict";
+  | "conflict"
+  | "too-many-requests"
+  | "insufficient-storage";
 
 export abstract class DomainError extends Error {
   abstract readonly code: ErrorCode;
@@ -113,6 +115,28 @@ export class ConflictError extends DomainError {
   constructor(message: string) {
     super(message);
     this.name = "ConflictError";
+  }
+}
+
+/** Too many uploads or queued analyses at once; `retryAfterSeconds` goes out as Retry-After. */
+export class TooManyRequestsError extends DomainError {
+  readonly code = "too-many-requests" as const;
+  readonly httpStatus = 429;
+  readonly retryAfterSeconds: number;
+  constructor(message: string, retryAfterSeconds: number) {
+    super(message);
+    this.name = "TooManyRequestsError";
+    this.retryAfterSeconds = retryAfterSeconds;
+  }
+}
+
+/** The server's disk is full: nothing was kept (507 Insufficient Storage, RFC 4918). */
+export class InsufficientStorageError extends DomainError {
+  readonly code = "insufficient-storage" as const;
+  readonly httpStatus = 507;
+  constructor(message = "The server's disk is full, so nothing was kept; free some space on the server and try again.") {
+    super(message);
+    this.name = "InsufficientStorageError";
   }
 }
 

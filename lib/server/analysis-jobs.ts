@@ -3,8 +3,10 @@ import type { LogAnalysis } from "@/lib/analysis/types";
 import type { Baseline } from "@/lib/health/baseline";
 import { analysisPool } from "./analysis-pool";
 import { storeAssessment } from "./assessments";
+import { storedFileOf } from "./data-folder";
 import { db } from "./db";
 import { maxUploadBytes } from "./limits";
+import { isDiskFull } from "./storage-errors";
 
 /**
  * Runs the analysis of stored logs off the request thread and records the verdict: the Analysis
@@ -14,12 +16,18 @@ import { maxUploadBytes } from "./limits";
 
 // Kept on globalThis: route handlers and server actions may load their own copy of this module,
 // and the upload screen's progress must come from the one running the job.
-const state = globalThis as unknown as { heatcheckJobs?: { progress: Map<string, number>; running: Map<string, Promise<void>> } };
-state.heatcheckJobs ??= { progress: new Map(), running: new Map() };
-const { progress, running } = state.heatcheckJobs;
+const state = globalThis as unknown as { heatcheckJobs?: { progress: Map<string, number>; running: Map<string, Promise<void>>; notes?: Map<string, string> } };
+state.heatcheckJobs ??= { progress: new Map(), running: new Map(), notes: new Map() };
+state.heatcheckJobs.notes ??= new Map();
+const { progress, running, notes } = state.heatcheckJobs;
 
 export function analysisProgress(logId: string): number | undefined {
   return progress.get(logId);
+}
+
+/** Why a pending job is waiting, when it is (its result could not be stored yet). */
+export function analysisNote(logId: string): string | undefined {
+  return notes.get(logId);
 }
 
 /** Queues a log's analysis; the promise settles when its verdict is stored. */
@@ -38,6 +46,7 @@ export function enqueueAnalysis(logId: string): Promise<void> {
     .finally(() => {
       running.delete(logId);
       progress.delete(logId);
+      notes.delete(logId);
     });
   running.set(logId, job);
   return job;
@@ -52,27 +61,54 @@ async function run(logId: string): Promise<void> {
   const log = await db.flightLog.findUnique({ where: { id: logId } });
   if (!log) return;
   const result = await analysisPool.run(
-    { jobId: logId, path: log.storedPath, mapText: log.mapText, maxBytes: maxUploadBytes() },
+    { jobId: logId, path: storedFileOf(log.storedPath), mapText: log.mapText, maxBytes: maxUploadBytes() },
     (f) => progress.set(logId, f),
   );
   if (!result.ok || !result.analysisJson) {
-    await db.flightLog.update({
-      where: { id: logId },
-      data: { status: "failed", error: result.badInput ? result.message : `analysis failed: ${result.message ?? "unknown error"}` },
-    });
+    const error = result.badInput ? result.message : `analysis failed: ${result.message ?? "unknown error"}`;
+    await withRetries(logId, () => db.flightLog.update({ where: { id: logId }, data: { status: "failed", error } }));
     if (!result.badInput) console.error(`analysis of log ${logId} failed`, result.message);
     return;
   }
   const analysisJson = result.analysisJson;
   const analysis = JSON.parse(analysisJson) as LogAnalysis;
+  await withRetries(logId, () => storeResult(logId, log.airframeId, analysisJson, analysis));
+}
+
+/** Waits before each new try of a result write that failed (a full disk, a busy database). */
+const RETRY_DELAYS_MS = [500, 2_000, 5_000, 15_000, 30_000];
+
+/**
+ * Writes a job's outcome, trying again a few times over about a minute when the write fails (a
+ * full disk may be freed). When it still fails, the error goes to the catch in enqueueAnalysis,
+ * which marks the log failed if that write can be done; otherwise the log stays pending and is
+ * re-run at the next start. Meanwhile the status API says why the job waits.
+ */
+async function withRetries(logId: string, write: () => Promise<unknown>): Promise<void> {
+  for (let attempt = 0; ; attempt++) {
+    try {
+      await write();
+      notes.delete(logId);
+      return;
+    } catch (e) {
+      const delay = RETRY_DELAYS_MS[attempt];
+      if (delay === undefined) throw e;
+      notes.set(logId, isDiskFull(e) ? "the server's disk is full: the result waits to be stored" : "the result could not be stored yet: trying again");
+      console.error(`storing the analysis of log ${logId} failed (try ${attempt + 1}); trying again in ${delay} ms`, e);
+      await new Promise((r) => setTimeout(r, delay));
+    }
+  }
+}
+
+async function storeResult(logId: string, airframeId: string | null, analysisJson: string, analysis: LogAnalysis): Promise<void> {
   await db.$transaction(async (tx) => {
     await tx.analysis.upsert({ where: { logId }, create: { logId, json: analysisJson }, update: { json: analysisJson } });
     await tx.flightLog.update({
       where: { id: logId },
       data: { status: "analysed", error: null, sampleRateHz: analysis.sampleRateHz, durationS: analysis.durationS },
     });
-    if (log.airframeId) {
-      const baseline = await tx.baseline.findFirst({ where: { airframeId: log.airframeId, active: true }, orderBy: { createdAt: "desc" } });
+    if (airframeId) {
+      const baseline = await tx.baseline.findFirst({ where: { airframeId, active: true }, orderBy: { createdAt: "desc" } });
       if (baseline) await storeAssessment(tx, logId, analysis, baseline.id, JSON.parse(baseline.json) as Baseline);
     }
   });

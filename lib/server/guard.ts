@@ -55,7 +55,10 @@ export async function requireToken(request: Request, minimum: Role = "viewer"): 
   if (!m?.[1]) throw new UnauthenticatedError("Send an API token as: Authorization: Bearer <token>.");
   const token = await db.apiToken.findUnique({ where: { tokenHash: hashToken(m[1]) } });
   if (!token || token.revokedAt) throw new UnauthenticatedError("That API token is not valid or has been revoked.");
-  await db.apiToken.update({ where: { id: token.id }, data: { lastUsedAt: new Date() } });
+  // Best effort and at most once a minute: a read must not depend on a write (a full disk).
+  if (!token.lastUsedAt || Date.now() - token.lastUsedAt.getTime() > 60_000) {
+    void db.apiToken.update({ where: { id: token.id }, data: { lastUsedAt: new Date() } }).catch(() => undefined);
+  }
   const actor: Actor = { teamId: token.teamId, role: "pilot", userId: null, name: `token ${token.name}`, via: "token" };
   assertRole(actor, minimum);
   return actor;

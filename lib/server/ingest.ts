@@ -1,18 +1,22 @@
 import "server-only";
-import { createHash, randomUUID } from "node:crypto";
-import { createWriteStream } from "node:fs";
-import { mkdir, open, rename, rm } from "node:fs/promises";
+import { createHash, randomUUID, type Hash } from "node:crypto";
+import { open, rename, rm, type FileHandle } from "node:fs/promises";
 import { join } from "node:path";
-import { InputError, LimitExceededError } from "@/lib/errors";
-import { checkMap, parseColumnMap } from "@/lib/logs/columns";
-import { formatBytes } from "@/lib/logs/read-log";
-import { matchAirframe, sniffLogHead } from "@/lib/logs/sniff";
+import { DEFAULT_ANALYSIS } from "@/lib/analysis/settings";
+import { InputError, InsufficientStorageError, LimitExceededError, LogFormatError } from "@/lib/errors";
+import { parseColumnMap } from "@/lib/logs/columns";
+import { formatBytes, readLog, type LogSink, type ReadSummary } from "@/lib/logs/read-log";
+import { matchAirframe } from "@/lib/logs/sniff";
+import { defaultNperseg } from "@/lib/signal/welch";
 import type { Actor } from "@/lib/roles";
 import { enqueueAnalysis } from "./analysis-jobs";
 import { audit } from "./audit";
 import { db } from "./db";
 import { assertRole } from "./authorize";
+import { INCOMING_PREFIX, PRIVATE_FILE_MODE, ensurePrivateDir, storedPathOf } from "./data-folder";
 import { maxUploadBytes, uploadDir } from "./limits";
+import { isDiskFull } from "./storage-errors";
+import { takeUploadSlot } from "./upload-slots";
 
 export interface IngestRequest {
   fileName: string;
@@ -32,92 +36,228 @@ export interface IngestResult {
 }
 
 /**
- * Takes an uploaded log: streams it to disk while hashing it and counting bytes (over the limit,
- * the upload stops and nothing is kept), recognises a re-upload by its content hash, matches it to
- * an airframe, checks its columns, records it as pending and queues the analysis. A rejected file
- * leaves no file and no row behind.
+ * `# flown_at:` must fall in this range; outside it the date is a typo. The Unix epoch is allowed:
+ * it is what a logger without a set clock writes.
+ */
+export const EARLIEST_FLOWN_AT = new Date("1970-01-01T00:00:00Z");
+/** How far ahead of the server's clock a flight may be dated (a pit laptop's clock may be off). */
+export const FLOWN_AT_LEEWAY_MS = 2 * 24 * 3600_000;
+
+/**
+ * Takes an uploaded log. While the bytes stream in they are hashed, written to a private
+ * temporary file and read by the same log reader the analysis uses, so a file that cannot be read
+ * is refused before anything is recorded (422 with line, column and the reason), a file over the
+ * limit stops at the limit (413), a full disk answers 507. Only a file that passed every check is
+ * renamed into place and recorded as pending; every other path removes the temporary. A re-upload
+ * of the same bytes (even at the same moment) gets the existing log, marked duplicate.
  */
 export async function ingestLog(actor: Actor, req: IngestRequest): Promise<IngestResult> {
   assertRole(actor, "pilot");
-  const dir = uploadDir();
-  await mkdir(dir, { recursive: true });
-  const tmp = join(dir, `incoming-${randomUUID()}.part`);
+  const release = await takeUploadSlot(actor);
+  try {
+    return await ingest(actor, req);
+  } finally {
+    release();
+  }
+}
+
+async function ingest(actor: Actor, req: IngestRequest): Promise<IngestResult> {
+  const mapText = req.mapText?.trim() || undefined;
+  const map = mapText ? parseColumnMap(mapText) : undefined;
+  const teamDir = join(uploadDir(), actor.teamId);
+  const tmp = join(teamDir, `${INCOMING_PREFIX}${randomUUID()}.part`);
   const limit = maxUploadBytes();
-  let kept = false;
+  const spool = await Spool.create(teamDir, tmp).catch(rethrowStorage);
+  let stored: string | null = null;
   try {
-    const { hash, bytes } = await streamToFile(req.body, tmp, limit);
-    if (bytes === 0) throw new InputError(`${req.fileName} is empty.`);
-    const existing = await db.flightLog.findUnique({ where: { teamId_contentHash: { teamId: actor.teamId, contentHash: hash } }, include: { airframe: true } });
-    if (existing) {
-      return { logId: existing.id, airframe: existing.airframe?.name ?? "", duplicate: true, matchedBy: "chosen" };
+    const check = new UploadCheck();
+    const bytes = spool.tee(req.body, limit);
+    let summary: ReadSummary;
+    try {
+      summary = await readLog(bytes, check, { map, maxBytes: limit });
+    } catch (e) {
+      // The reader stopped early: end the tee too, so the request's stream is released (and can
+      // be drained by the multipart reader) instead of staying attached to a suspended loop.
+      await bytes.return(undefined).catch(() => undefined);
+      throw spool.failure ?? e;
     }
-    const head = sniffLogHead(await readHead(tmp));
-    if (!head) throw new InputError(`${req.fileName} has no header row; it does not look like a CSV flight log.`);
-    const mapText = req.mapText?.trim() || undefined;
-    if (mapText) {
-      parseColumnMap(mapText);
-    } else if (head.proposal.missing.length > 0) {
-      throw new InputError(
-        `${req.fileName}: no column for ${head.proposal.missing.join(", ")}. Give a column map (or choose an import profile) for its headers: ${head.headers.slice(0, 12).join(", ")}`,
-        "mapText",
-      );
-    } else {
-      checkMap(head.proposal.map);
-    }
-    const { airframe, matchedBy } = await resolveAirframe(actor, req, head.metadata.airframe);
-    const flownAt = parseFlownAt(head.metadata.flown_at);
-    const stored = join(dir, `${hash}.csv`);
-    await rename(tmp, stored);
-    kept = true;
-    const log = await db.$transaction(async (tx) => {
-      const created = await tx.flightLog.create({
-        data: {
-          teamId: actor.teamId,
-          airframeId: airframe.id,
-          fileName: req.fileName.slice(0, 200),
-          storedPath: stored,
-          sizeBytes: bytes,
-          contentHash: hash,
-          flownAt,
-          mapText: mapText ?? null,
-          uploadedById: actor.userId ?? "token",
-        },
-      });
-      await audit(tx, actor, "upload log", "airframe", airframe.id, `${req.fileName} (${formatBytes(bytes)})`);
-      return created;
+    await spool.close().catch(rethrowStorage);
+    check.requireOneSegment(summary);
+    const hash = spool.digest();
+    const flownAt = parseFlownAt(summary.info.metadata.flown_at);
+    const existing = await findExisting(actor, hash);
+    if (existing) return existing;
+    const { airframe, matchedBy } = await resolveAirframe(actor, req, summary.info.metadata.airframe);
+    return await oneAtATime(`${actor.teamId}:${hash}`, async () => {
+      const again = await findExisting(actor, hash);
+      if (again) return again;
+      const target = join(teamDir, `${hash}.csv`);
+      await rename(tmp, target).catch(rethrowStorage);
+      stored = target;
+      try {
+        const log = await db.$transaction(async (tx) => {
+          const created = await tx.flightLog.create({
+            data: {
+              teamId: actor.teamId,
+              airframeId: airframe.id,
+              fileName: req.fileName.slice(0, 200),
+              storedPath: storedPathOf(target),
+              sizeBytes: spool.bytes,
+              contentHash: hash,
+              flownAt,
+              mapText: mapText ?? null,
+              uploadedById: actor.userId ?? "token",
+            },
+          });
+          await audit(tx, actor, "upload log", "airframe", airframe.id, `${req.fileName} (${formatBytes(spool.bytes)})`);
+          return created;
+        });
+        stored = null;
+        void enqueueAnalysis(log.id);
+        return { logId: log.id, airframe: airframe.name, duplicate: false, matchedBy };
+      } catch (e) {
+        // Another process recorded the same bytes first: that record owns the file now.
+        const raced = await findExisting(actor, hash);
+        if (raced) {
+          stored = null;
+          return raced;
+        }
+        throw e;
+      }
     });
-    void enqueueAnalysis(log.id);
-    return { logId: log.id, airframe: airframe.name, duplicate: false, matchedBy };
+  } catch (e) {
+    throw isDiskFull(e) ? new InsufficientStorageError() : e;
   } finally {
-    if (!kept) await rm(tmp, { force: true });
+    await spool.discard();
+    if (stored) await rm(stored, { force: true });
   }
 }
 
-async function streamToFile(body: AsyncIterable<Uint8Array>, path: string, limit: number): Promise<{ hash: string; bytes: number }> {
-  const hash = createHash("sha256");
-  const out = createWriteStream(path);
-  let bytes = 0;
+function rethrowStorage(e: unknown): never {
+  throw isDiskFull(e) ? new InsufficientStorageError() : e;
+}
+
+async function findExisting(actor: Actor, hash: string): Promise<IngestResult | null> {
+  const existing = await db.flightLog.findUnique({
+    where: { teamId_contentHash: { teamId: actor.teamId, contentHash: hash } },
+    include: { airframe: { select: { name: true } } },
+  });
+  return existing ? { logId: existing.id, airframe: existing.airframe?.name ?? "", duplicate: true, matchedBy: "chosen" } : null;
+}
+
+// Recording one content hash for one team happens one request at a time in this process, so
+// parallel uploads of the same bytes all end on the one record.
+const locks = ((globalThis as unknown as { heatcheckIngestLocks?: Map<string, Promise<unknown>> }).heatcheckIngestLocks ??= new Map());
+
+async function oneAtATime<T>(key: string, run: () => Promise<T>): Promise<T> {
+  const before = locks.get(key) ?? Promise.resolve();
+  const mine = before.catch(() => undefined).then(run);
+  locks.set(key, mine);
   try {
+    return await mine;
+  } finally {
+    if (locks.get(key) === mine) locks.delete(key);
+  }
+}
+
+/**
+ * The temporary file of one upload: bytes are hashed, counted and written as they pass to the
+ * reader. Writes go through a FileHandle (errors are rejections, never stray events) in batches.
+ */
+class Spool {
+  bytes = 0;
+  /** The first storage or size failure, kept so the reader's wrapping does not hide it. */
+  failure: Error | null = null;
+  private readonly hash: Hash = createHash("sha256");
+  private pending: Uint8Array[] = [];
+  private pendingBytes = 0;
+  private closed = false;
+
+  private constructor(
+    private readonly path: string,
+    private readonly fh: FileHandle,
+  ) {}
+
+  static async create(dir: string, path: string): Promise<Spool> {
+    await ensurePrivateDir(dir);
+    return new Spool(path, await open(path, "wx", PRIVATE_FILE_MODE));
+  }
+
+  async *tee(body: AsyncIterable<Uint8Array>, limit: number): AsyncGenerator<Uint8Array> {
     for await (const chunk of body) {
-      bytes += chunk.length;
-      if (bytes > limit) throw new LimitExceededError(`The file is larger than the ${formatBytes(limit)} upload limit.`);
-      hash.update(chunk);
-      if (!out.write(chunk)) await new Promise<void>((resolve) => out.once("drain", resolve));
+      this.bytes += chunk.length;
+      if (this.bytes > limit) {
+        this.failure = new LimitExceededError(`The file is larger than the ${formatBytes(limit)} upload limit.`);
+        throw this.failure;
+      }
+      this.hash.update(chunk);
+      this.pending.push(chunk);
+      this.pendingBytes += chunk.length;
+      if (this.pendingBytes >= 1 << 20) await this.flush();
+      yield chunk;
     }
-  } finally {
-    await new Promise<void>((resolve) => out.end(resolve));
+    await this.flush();
   }
-  return { hash: hash.digest("hex"), bytes };
+
+  private async flush(): Promise<void> {
+    if (this.pendingBytes === 0) return;
+    const batch = this.pending;
+    this.pending = [];
+    this.pendingBytes = 0;
+    try {
+      await this.fh.writev(batch);
+    } catch (e) {
+      this.failure = isDiskFull(e) ? new InsufficientStorageError() : e instanceof Error ? e : new Error(String(e));
+      throw this.failure;
+    }
+  }
+
+  digest(): string {
+    return this.hash.digest("hex");
+  }
+
+  async close(): Promise<void> {
+    if (this.closed) return;
+    this.closed = true;
+    await this.fh.sync();
+    await this.fh.close();
+  }
+
+  /** Closes the handle if still open and removes the temporary (a no-op once renamed). */
+  async discard(): Promise<void> {
+    if (!this.closed) {
+      this.closed = true;
+      await this.fh.close().catch(() => undefined);
+    }
+    await rm(this.path, { force: true }).catch(() => undefined);
+  }
 }
 
-async function readHead(path: string): Promise<string> {
-  const fh = await open(path, "r");
-  try {
-    const buf = Buffer.alloc(64 * 1024);
-    const { bytesRead } = await fh.read(buf, 0, buf.length, 0);
-    return buf.subarray(0, bytesRead).toString("utf8");
-  } finally {
-    await fh.close();
+/**
+ * What the analysis needs beyond a readable file, checked at upload: at least one analysis
+ * segment in one stretch without a gap (the analyser's default segment length at this rate).
+ */
+class UploadCheck implements LogSink {
+  private rate = 0;
+  private run = 0;
+  private longest = 0;
+  begin(info: { sampleRateHz: number }): void {
+    this.rate = info.sampleRateHz;
+  }
+  block(block: { length: number }): void {
+    this.run += block.length;
+    if (this.run > this.longest) this.longest = this.run;
+  }
+  gap(): void {
+    this.run = 0;
+  }
+  requireOneSegment(summary: ReadSummary): void {
+    const nperseg = DEFAULT_ANALYSIS.nperseg ?? defaultNperseg(this.rate);
+    if (this.longest >= nperseg) return;
+    const stretch = summary.gaps.length > 0 ? " in one stretch without a gap" : "";
+    throw new LogFormatError(
+      `the log has ${summary.samples} samples at ${Math.round(this.rate)} Hz; one analysis segment needs ${nperseg} samples (${(nperseg / this.rate).toFixed(2)} s)${stretch}`,
+    );
   }
 }
 
@@ -144,10 +284,21 @@ async function resolveAirframe(actor: Actor, req: IngestRequest, metadataAirfram
   return { airframe: a, matchedBy: match.how };
 }
 
-function parseFlownAt(text: string | undefined): Date {
-  if (!text) return new Date();
-  const d = new Date(text);
-  return Number.isNaN(d.getTime()) ? new Date() : d;
+/** `# flown_at:` as a date; absent means now. A date that does not parse or is out of range is refused. */
+export function parseFlownAt(text: string | undefined, now = new Date()): Date {
+  if (text === undefined || text.trim() === "") return now;
+  const trimmed = text.trim();
+  // ISO 8601 date with optional time; Date.parse alone also takes "10000-01-01" or "March 3".
+  const iso = /^\d{4}-\d{2}-\d{2}([T ]\d{2}:\d{2}(:\d{2}(\.\d+)?)?(Z|[+-]\d{2}:?\d{2})?)?$/.test(trimmed);
+  const d = new Date(trimmed);
+  const latest = new Date(now.getTime() + FLOWN_AT_LEEWAY_MS);
+  if (!iso || Number.isNaN(d.getTime()) || d < EARLIEST_FLOWN_AT || d > latest) {
+    throw new LogFormatError(
+      `# flown_at: "${trimmed.slice(0, 40)}" is not a date between ${EARLIEST_FLOWN_AT.toISOString().slice(0, 10)} and ${latest.toISOString().slice(0, 10)}; write it as ISO 8601, e.g. 2026-11-28T14:05:00Z`,
+      { columnName: "flown_at" },
+    );
+  }
+  return d;
 }
 
 /** Queues a stored log's analysis again (after a map fix or an engine update). */

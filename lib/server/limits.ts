@@ -1,5 +1,5 @@
 import "server-only";
-import { join } from "node:path";
+import { uploadsDir } from "./data-folder";
 
 /** Upload size limit: HEATCHECK_MAX_UPLOAD_MB, default 512 MB. */
 export function maxUploadBytes(): number {
@@ -9,5 +9,20 @@ export function maxUploadBytes(): number {
 
 /** Where original log files are kept: HEATCHECK_DATA_DIR/uploads (default ./data/uploads). */
 export function uploadDir(): string {
-  return join(process.env.HEATCHECK_DATA_DIR ?? join(process.cwd(), "data"), "uploads");
+  return uploadsDir();
+}
+
+function positiveInt(name: string, fallback: number): number {
+  const v = Number(process.env[name]);
+  return Number.isInteger(v) && v > 0 ? v : fallback;
+}
+
+/** Uploads one member or one API token may stream at once: HEATCHECK_UPLOADS_PER_CALLER, default 4. */
+export function uploadsPerCaller(): number {
+  return positiveInt("HEATCHECK_UPLOADS_PER_CALLER", 4);
+}
+
+/** Analyses one team may have waiting or running: HEATCHECK_QUEUED_PER_TEAM, default 200. */
+export function queuedAnalysesPerTeam(): number {
+  return positiveInt("HEATCHECK_QUEUED_PER_TEAM", 200);
 }

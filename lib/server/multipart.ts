@@ -1,52 +1,102 @@
 import "server-only";
 import { Readable } from "node:stream";
+import type { ReadableStream as NodeWebStream } from "node:stream/web";
 import busboy from "busboy";
 import { InputError } from "@/lib/errors";
 
 export interface MultipartFile {
   fields: Record<string, string>;
   fileName: string;
-  /** The file's bytes as they arrive; must be consumed. */
+  /** The file's bytes as they arrive; must be consumed. Fails when the upload is cut off. */
   body: AsyncIterable<Uint8Array>;
 }
 
 /**
  * Streams a multipart/form-data request: text fields sent before the `file` part are read, then
  * the file is handed over as a stream without being held in memory. Exactly one file part.
+ *
+ * Every failure reaches `handle` through its body stream or ends this promise: a request cut off
+ * mid-body destroys the file stream with an error (so the handler removes its temporary file), and
+ * no stream is left without an error listener (a dropped client never becomes an uncaught
+ * exception). When the handler refuses the file early, the rest of the body is read and dropped
+ * before the answer goes out (for at most DRAIN_MS): a browser or a script still sending would
+ * otherwise see a reset connection instead of the reason.
  */
-export function readMultipartFile(request: Request, handle: (file: MultipartFile) => Promise<unknown>): Promise<unknown> {
+const DRAIN_MS = 30_000;
+
+export function readMultipartFile<T>(request: Request, handle: (file: MultipartFile) => Promise<T>): Promise<T> {
   const type = request.headers.get("content-type") ?? "";
   if (!type.toLowerCase().startsWith("multipart/form-data") || !request.body) {
     return Promise.reject(new InputError("Send the log as multipart/form-data with a part named file."));
   }
-  return new Promise((resolve, reject) => {
+  const body = request.body;
+  return new Promise<T>((resolve, reject) => {
     const fields: Record<string, string> = {};
-    let handled: Promise<unknown> | null = null;
+    let handled: Promise<T> | null = null;
+    let settled = false;
+    const finish = (ok: boolean, value: unknown) => {
+      if (settled) return;
+      settled = true;
+      if (ok) resolve(value as T);
+      else reject(value);
+    };
     let bb: busboy.Busboy;
     try {
       bb = busboy({ headers: { "content-type": type }, limits: { files: 1, fields: 20, fieldSize: 16 * 1024 } });
     } catch {
-      reject(new InputError("The multipart body could not be read."));
+      finish(false, new InputError("The multipart body could not be read."));
       return;
     }
+    const source = Readable.fromWeb(body as unknown as NodeWebStream<Uint8Array>);
+    const drained = new Promise<void>((done) => {
+      const timer = setTimeout(done, DRAIN_MS);
+      const end = () => {
+        clearTimeout(timer);
+        done();
+      };
+      source.once("end", end);
+      source.once("error", end);
+      source.once("close", end);
+    });
+    const cutOff = () => new InputError("The upload was cut off or is not valid multipart data; nothing was kept.");
+    let fileStream: Readable | null = null;
+    source.on("error", () => {
+      // The client went away: fail the file stream so its consumer cleans up, and this request.
+      fileStream?.destroy(cutOff());
+      bb.destroy();
+      if (!handled) finish(false, cutOff());
+    });
     bb.on("field", (name, value) => {
       fields[name] = value;
     });
     bb.on("file", (name, stream, info) => {
+      stream.on("error", () => undefined); // reported to the handler through its iterator
       if (name !== "file" || handled) {
         stream.resume();
         return;
       }
-      handled = handle({ fields: { ...fields }, fileName: info.filename || "upload.csv", body: stream });
-      handled.then(resolve, (e: unknown) => {
-        stream.resume();
-        reject(e);
-      });
+      fileStream = stream;
+      // Not destroyed when the consumer stops early, so that the rest can be drained (see above).
+      const bytes: AsyncIterable<Uint8Array> = { [Symbol.asyncIterator]: () => stream.iterator({ destroyOnReturn: false }) };
+      handled = handle({ fields: { ...fields }, fileName: info.filename || "upload.csv", body: bytes });
+      handled.then(
+        (v) => finish(true, v),
+        (e: unknown) => {
+          // A consumer that stopped early may still hold a 'readable' listener, which keeps
+          // resume() from flowing: drop it, then read and discard the rest.
+          stream.removeAllListeners("readable");
+          if (!stream.destroyed) stream.resume();
+          void drained.then(() => finish(false, e));
+        },
+      );
     });
-    bb.on("error", () => reject(new InputError("The upload was cut off or is not valid multipart data.")));
+    bb.on("error", () => {
+      fileStream?.destroy(cutOff());
+      if (!handled) finish(false, cutOff());
+    });
     bb.on("close", () => {
-      if (!handled) reject(new InputError("No part named file was sent."));
+      if (!handled) finish(false, new InputError("No part named file was sent."));
     });
-    Readable.fromWeb(request.body as import("node:stream/web").ReadableStream).pipe(bb);
+    source.pipe(bb);
   });
 }

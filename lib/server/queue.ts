@@ -17,8 +17,43 @@ export async function nextHeat(actor: Actor) {
   });
 }
 
+type Heat = Awaited<ReturnType<typeof nextHeat>>;
+interface Ranked {
+  entries: QueueEntry[];
+  heat: Heat;
+}
+
+/** A ranking is reused for this long at most, because "next heat" moves with the clock. */
+const QUEUE_MAX_AGE_MS = 10_000;
+
+// The queue is read by every pit screen every few seconds and written rarely. SQLite work runs on
+// the event loop, so recomputing it per request starved uploads under 50 readers. A team's ranking
+// is computed once per change of the database (SQLite's change counter of this connection, and
+// data_version for commits by another process such as a seed) and shared by concurrent readers.
+const cache = ((globalThis as unknown as { heatcheckQueueCache?: Map<string, { version: string; at: number; ranked: Promise<Ranked> }> }).heatcheckQueueCache ??= new Map());
+
+async function databaseVersion(): Promise<string> {
+  const [row] = await db.$queryRaw<{ c: bigint | number; d: bigint | number }[]>`SELECT total_changes() AS c, (SELECT data_version FROM pragma_data_version) AS d`;
+  return `${String(row?.c)}:${String(row?.d)}`;
+}
+
 /** Every active airframe of the team, ranked for inspection before the next heat. */
-export async function inspectionQueue(actor: Actor, options: { onlyNextHeat?: boolean } = {}): Promise<{ entries: QueueEntry[]; heat: Awaited<ReturnType<typeof nextHeat>> }> {
+export async function inspectionQueue(actor: Actor, options: { onlyNextHeat?: boolean } = {}): Promise<Ranked> {
+  const version = await databaseVersion();
+  let hit = cache.get(actor.teamId);
+  if (!hit || hit.version !== version || Date.now() - hit.at > QUEUE_MAX_AGE_MS) {
+    hit = { version, at: Date.now(), ranked: rankTeam(actor) };
+    cache.set(actor.teamId, hit);
+    const mine = hit;
+    mine.ranked.catch(() => {
+      if (cache.get(actor.teamId) === mine) cache.delete(actor.teamId);
+    });
+  }
+  const { entries, heat } = await hit.ranked;
+  return { entries: options.onlyNextHeat && heat ? entries.filter((e: QueueEntry) => e.inNextHeat) : entries, heat };
+}
+
+async function rankTeam(actor: Actor): Promise<Ranked> {
   const heat = await nextHeat(actor);
   const inHeat = new Set(heat?.entries.map((e) => e.airframeId) ?? []);
   const airframes = await db.airframe.findMany({
@@ -85,6 +120,5 @@ export async function inspectionQueue(actor: Actor, options: { onlyNextHeat?: bo
       inNextHeat: inHeat.has(a.id),
     });
   }
-  const entries = rankQueue(facts);
-  return { entries: options.onlyNextHeat && heat ? entries.filter((e) => e.inNextHeat) : entries, heat };
+  return { entries: rankQueue(facts), heat };
 }

@@ -16,6 +16,7 @@ const { createParts, swapPart } = await import("@/lib/server/parts");
 const { logCrash, recordInspection } = await import("@/lib/server/crashes");
 const { ingestLog } = await import("@/lib/server/ingest");
 const { analysesSettled } = await import("@/lib/server/analysis-jobs");
+const { storedFileOf } = await import("@/lib/server/data-folder");
 const { setBaseline } = await import("@/lib/server/baselines");
 const { inspectionQueue } = await import("@/lib/server/queue");
 const { createToken, revokeToken, addMember } = await import("@/lib/server/team");
@@ -91,23 +92,26 @@ describe("uploads", () => {
     const noGyro = Readable.from([Buffer.from("time_us,speed\n0,1\n")]);
     await expect(ingestLog(actors.pilot, { fileName: "kite-1-bad.csv", body: noGyro })).rejects.toThrow(/no column for roll/);
     expect(await db.flightLog.count()).toBe(before);
-    expect(readdirSync(join(dir, "uploads")).filter((f) => f.startsWith("incoming-"))).toEqual([]);
+    expect(readdirSync(join(dir, "uploads"), { recursive: true }).map(String).filter((f) => f.includes("incoming-"))).toEqual([]);
   });
 
-  it("stores the original, recognises a re-upload, and marks a damaged log failed with the reason", async () => {
+  it("stores the original, recognises a re-upload, and refuses a log too short to analyse at upload", async () => {
     const r1 = await ingestLog(actors.pilot, { fileName: "kite.csv", body: csvBody({ seed: 3 }, "Kite-1", "2026-11-03T10:00:00Z") });
     expect(r1.matchedBy).toBe("metadata");
     const r2 = await ingestLog(actors.pilot, { fileName: "again.csv", body: csvBody({ seed: 3 }, "Kite-1", "2026-11-03T10:00:00Z") });
     expect(r2).toMatchObject({ logId: r1.logId, duplicate: true });
     const cut = demoCsv({ seed: 4, durationS: 16, sampleRateHz: 2000 }, { airframe: "Kite-1" }).slice(0, 600);
-    const r3 = await ingestLog(actors.pilot, { fileName: "cut.csv", body: Readable.from([Buffer.from(cut)]) });
+    const before = await db.flightLog.count();
+    // Validated while it streams: refused with the reader's sentence (422), nothing recorded or kept.
+    await expect(ingestLog(actors.pilot, { fileName: "cut.csv", body: Readable.from([Buffer.from(cut)]) })).rejects.toThrow(
+      /one analysis segment needs/,
+    );
+    expect(await db.flightLog.count()).toBe(before);
     await analysesSettled();
     const log1 = await db.flightLog.findUnique({ where: { id: r1.logId } });
     expect(log1?.status).toBe("analysed");
-    expect(existsSync(log1?.storedPath ?? "")).toBe(true);
-    const log3 = await db.flightLog.findUnique({ where: { id: r3.logId } });
-    expect(log3?.status).toBe("failed");
-    expect(log3?.error).toMatch(/one analysis segment needs/);
+    expect(existsSync(storedFileOf(log1?.storedPath ?? "missing"))).toBe(true);
+    expect(log1?.storedPath).toBe(`uploads/${actors.pilot.teamId}/${log1?.contentHash ?? ""}.csv`);
   });
 });
 

@@ -18,6 +18,12 @@ export interface AppServer {
   /** Everything the start script and the server printed so far. */
   output: () => string;
   stop: () => Promise<void>;
+  /** The process group of npm start and everything it started (the reliability suite's kill -9). */
+  pid: number;
+  /** SIGKILL to the whole group: no handler runs, as when a laptop loses power. */
+  kill: () => Promise<void>;
+  /** Resolves true when the start script has exited within `ms`. */
+  exited: (ms: number) => Promise<boolean>;
 }
 
 export async function freePort(): Promise<number> {
@@ -43,11 +49,13 @@ export interface StartOptions {
   dataDir?: string | null;
   /** How long to wait for the sign-in page. */
   timeoutMs?: number;
+  /** Listen on this port (a restart after a kill keeps its address); default a free one. */
+  port?: number;
 }
 
 /** Spawns a shell command in its own process group and waits until /signin answers. */
 export async function startApp(options: StartOptions = {}): Promise<AppServer> {
-  const port = await freePort();
+  const port = options.port ?? (await freePort());
   const url = `http://127.0.0.1:${port}`;
   const dataDir = options.dataDir === undefined ? mkdtempSync(join(tmpdir(), "heatcheck-app-")) : options.dataDir;
   const env: NodeJS.ProcessEnv = {
@@ -104,5 +112,18 @@ export async function startApp(options: StartOptions = {}): Promise<AppServer> {
     }
     await new Promise((r) => setTimeout(r, 300));
   }
-  return { url, dataDir: dataDir ?? join(options.cwd ?? process.cwd(), "data"), env, output: () => output, stop };
+  const exitedWithin = async (ms: number) => {
+    const until = Date.now() + ms;
+    while (exited === undefined && Date.now() < until) await new Promise((r) => setTimeout(r, 50));
+    return exited !== undefined;
+  };
+  const kill = async () => {
+    try {
+      if (child.pid) process.kill(-child.pid, "SIGKILL");
+    } catch {
+      // already gone
+    }
+    await exitedWithin(10_000);
+  };
+  return { url, dataDir: dataDir ?? join(options.cwd ?? process.cwd(), "data"), env, output: () => output, stop, pid: child.pid ?? 0, kill, exited: exitedWithin };
 }

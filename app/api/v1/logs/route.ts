@@ -11,7 +11,7 @@ export const dynamic = "force-dynamic";
  * Answers at once with { logId, airframe, duplicate, matchedBy }; the analysis runs in the background.
  */
 export async function POST(request: Request) {
-  return jsonRoute("POST /api/v1/logs", async () => {
+  const response = await jsonRoute("POST /api/v1/logs", async () => {
     const actor = await requireApiCaller(request, "pilot");
     return readMultipartFile(request, (file) =>
       ingestLog(actor, {
@@ -23,4 +23,8 @@ export async function POST(request: Request) {
       }),
     );
   });
+  // A refused upload may have been answered before its whole body was read: close the connection
+  // rather than let a client reuse a socket whose request the server did not finish reading.
+  if (response.status >= 400) response.headers.set("Connection", "close");
+  return response;
 }

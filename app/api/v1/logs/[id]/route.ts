@@ -1,5 +1,5 @@
 import { NotFoundError } from "@/lib/errors";
-import { analysisProgress } from "@/lib/server/analysis-jobs";
+import { analysisNote, analysisProgress } from "@/lib/server/analysis-jobs";
 import { db } from "@/lib/server/db";
 import { requireApiCaller } from "@/lib/server/guard";
 import { jsonRoute } from "@/lib/server/http";
@@ -24,6 +24,8 @@ export async function GET(request: Request, { params }: { params: Promise<{ id: 
       status: log.status,
       progress: log.status === "pending" ? (analysisProgress(log.id) ?? 0) : 1,
       error: log.error,
+      /** Why a pending analysis waits, when it does (e.g. its result cannot be stored yet). */
+      note: log.status === "pending" ? (analysisNote(log.id) ?? null) : null,
       sampleRateHz: log.sampleRateHz,
       durationS: log.durationS,
       verdict: a ? { score: a.score, status: a.status } : null,

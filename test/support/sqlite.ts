@@ -1,0 +1,1 @@
+export { openSqlite, type SqliteDatabase } from "@/lib/archive/sqlite-file";
