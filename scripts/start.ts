@@ -55,11 +55,17 @@ if (!existsSync(buildId) || statSync(buildId).mtimeMs < sources || !existsSync(j
   run("analysis worker build", npx, ["tsx", "scripts/build-worker.ts"]);
   run("app build (first start or changed sources)", npx, ["next", "build"]);
 }
+const demo = process.env.HEATCHECK_DEMO !== "0";
 console.log(`
 heatcheck is starting on ${env.NEXTAUTH_URL}
   database: ${env.DATABASE_URL}
+${
+  demo
+    ? `  DEMO MODE (HEATCHECK_DEMO=0 turns it off for a shared server)
   demo sign-in — owner: owner@heatcheck.test / pitwall-owner-2026
-                 viewer: viewer@heatcheck.test / pitwall-viewer-2026
+                 viewer: viewer@heatcheck.test / pitwall-viewer-2026`
+    : "  demo off; first owner of an empty server: npm run accounts -- first-owner"
+}
   The score is a decision aid, not an airworthiness certificate.
 `);
 const server = spawn(npx, ["next", "start", "-p", port], { stdio: "inherit", env });

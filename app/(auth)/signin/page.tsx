@@ -1,11 +1,11 @@
-import { db } from "@/lib/server/db";
+import { demoAccountsExist, demoMode } from "@/lib/server/demo-mode";
 import { SignInForm } from "./sign-in-form";
 
 export const dynamic = "force-dynamic";
 
-/** Sign-in. While the invented demo team's accounts exist, their sign-in is shown here. */
+/** Sign-in. In demo mode, while the invented demo team's accounts exist, their sign-in is shown here. */
 export default async function SignInPage() {
-  const demo = await db.user.findUnique({ where: { email: "owner@heatcheck.test" } });
+  const demo = demoMode() && (await demoAccountsExist());
   return (
     <main className="signin">
       <div className="card">

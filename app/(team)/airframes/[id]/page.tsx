@@ -8,6 +8,7 @@ import { roleAtLeast } from "@/lib/roles";
 import { airframeView } from "@/lib/server/airframe-view";
 import { db } from "@/lib/server/db";
 import { requireMember } from "@/lib/server/guard";
+import { orNotFound } from "@/lib/server/pages";
 import { LogsTable } from "./_components/logs-table";
 import { WorkForms } from "./_components/work-forms";
 import { WHEN } from "@/app/_components/dates";
@@ -20,7 +21,7 @@ export default async function AirframePage({ params, searchParams }: { params: P
   const { id } = await params;
   const wanted = (await searchParams).axis;
   const heatAxis: Axis = AXES.find((a) => a === wanted) ?? "pitch";
-  const view = await airframeView(actor, id);
+  const view = await orNotFound(airframeView(actor, id));
   const { airframe, latest, analysis, baseline } = view;
   const canPilot = roleAtLeast(actor.role, "pilot");
   const canTech = roleAtLeast(actor.role, "tech");
