@@ -95,12 +95,13 @@ describe("access matrix: every page, route handler and server action of the buil
     const leaks: string[] = [];
     let allowed = 0;
     let denied = 0;
-    const check = (kind: string, name: string, rule: AccessRule, who: Principal, outcome: Outcome, body: string) => {
+    const check = (kind: string, name: string, rule: AccessRule, who: Principal, outcome: Outcome, body: string, asked = "") => {
       const expected = expectedAllowed(rule, who) ? "allowed" : "denied";
       if (outcome !== expected) wrong.push(`${kind} ${name} × ${who}: expected ${expected}, got ${outcome}`);
       if (outcome === "allowed") allowed++;
       else denied++;
-      for (const m of foreignMarkers(who)) if (body.includes(m)) leaks.push(`${kind} ${name} × ${who}: answer contains "${m}"`);
+      // A "not found" may repeat what the caller asked for (an airframe's name): that is no leak.
+      for (const m of foreignMarkers(who)) if (body.includes(m) && !asked.includes(m)) leaks.push(`${kind} ${name} × ${who}: answer contains "${m}"`);
     };
     const actions = builtActions(process.cwd());
     for (const who of PRINCIPALS) {
@@ -111,7 +112,7 @@ describe("access matrix: every page, route handler and server action of the buil
       }
       for (const [key, rule] of Object.entries(ROUTES)) {
         const { outcome, body } = await classifyRoute(c, key);
-        check("route", key, rule, who, outcome, body);
+        check("route", key, rule, who, outcome, body, fill(key));
       }
       for (const action of actions) {
         const rule = ACTIONS[action.name];
@@ -173,7 +174,7 @@ describe("stored XSS (ASVS 4.0 §5.3.3): payloads in every stored text field, fi
     const event = await s.createEvent(tech, { name: payload("eventName"), venue: payload("venue"), startsAt: new Date(Date.now() + 86_400_000) });
     const heat = await s.createHeat(tech, { eventId: event.id, name: payload("heatName"), startsAt: new Date(Date.now() + 86_400_000) });
     await s.setHeatEntries(tech, heat.id, [af.id]);
-    await s.saveProfile(f.alpha.pilot, payload("profileName"), "time_us=t, gyro_roll=gx, gyro_pitch=gy, gyro_yaw=gz");
+    await s.saveProfile(f.alpha.pilot, payload("profileName"), "time=t, roll=gx, pitch=gy, yaw=gz");
     await s.createToken(owner, payload("tokenName"));
     await s.inviteMember(owner, { email: "xss-invitee@example.test", name: payload("inviteeName"), role: "viewer", password: "gravel-pit-lantern-9" });
     // A log whose file name and metadata carry payloads, uploaded as a pilot's script would.
