@@ -5,6 +5,7 @@ import { createReadStream } from "node:fs";
 import { mkdtemp, rm, writeFile } from "node:fs/promises";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
+import { DEMO_ACCOUNTS } from "@/lib/demo/accounts";
 import { demoCsv } from "@/lib/demo/demo-csv";
 import type { DemoLogOptions } from "@/lib/demo/generator";
 import type { Actor } from "@/lib/roles";
@@ -19,13 +20,8 @@ import { createParts, swapPart } from "@/lib/server/parts";
 import { hashPassword } from "@/lib/server/passwords";
 import type { PartKind } from "@/lib/validations/part";
 
-export const DEMO_ACCOUNTS = [
-  { email: "owner@heatcheck.test", name: "Mara Quill", role: "owner", password: "pitwall-owner-2026" },
-  { email: "tech@heatcheck.test", name: "Jonas Ferrow", role: "tech", password: "pitwall-tech-2026" },
-  { email: "pilot@heatcheck.test", name: "Edda Lorne", role: "pilot", password: "pitwall-pilot-2026" },
-  { email: "viewer@heatcheck.test", name: "Pit screen", role: "viewer", password: "pitwall-viewer-2026" },
-] as const;
 
+const DEMO_TEAM = "Harrow Vale Quad Club";
 const FRAME = "Harrow Five (house design)";
 const HOUR = 3600_000;
 const DAY = 24 * HOUR;
@@ -42,12 +38,12 @@ const POSITIONS: { position: string; kind: PartKind; model: string; lifeFlights?
   { position: "motor 3 (rear-right)", kind: "motor", model: "Stator 2207 1850 kv", lifeFlights: 60 },
   { position: "motor 4 (rear-left)", kind: "motor", model: "Stator 2207 1850 kv", lifeFlights: 60 },
   { position: "props", kind: "prop-set", model: "Tri-blade 5.1 in", lifeFlights: 8 },
-  { position: "flight controller", kind: "flight-controller", model: "FC 30x30 F7-class" },
+  { position: "flight controller", kind: "flight-controller", model: "Flight controller 30×30 mm" },
   { position: "ESC", kind: "esc", model: "4-in-1 45 A" },
   { position: "camera", kind: "camera", model: "Micro camera 1.8 mm" },
   { position: "video transmitter", kind: "video-transmitter", model: "VTX 25–400 mW" },
   { position: "receiver", kind: "receiver", model: "2.4 GHz nano receiver" },
-  { position: "antenna", kind: "antenna", model: "Pagoda-style RHCP" },
+  { position: "antenna", kind: "antenna", model: "5.8 GHz circular-polarised antenna" },
 ];
 
 async function main(): Promise<void> {
@@ -59,9 +55,32 @@ async function main(): Promise<void> {
     console.log("seed: the database already has a team; nothing to do");
     return;
   }
-  process.env.HEATCHECK_WORKERS ??= "0";
   const started = Date.now();
-  const team = await db.team.create({ data: { name: "Harrow Vale Quad Club" } });
+  const team = await db.team.create({ data: { name: DEMO_TEAM } });
+  try {
+    await seedTeam(team.id);
+  } catch (e) {
+    await undoSeed(team.id);
+    throw e;
+  }
+  const logs = await db.flightLog.groupBy({ by: ["status"], _count: true });
+  console.log(`seed: demo team created in ${((Date.now() - started) / 1000).toFixed(1)} s (${logs.map((l) => `${l._count} ${l.status}`).join(", ")} logs)`);
+}
+
+/**
+ * A failed seed leaves nothing behind — no half team that later starts would take for a seeded
+ * database — so the next `npm start` simply tries again.
+ */
+async function undoSeed(teamId: string): Promise<void> {
+  await analysesSettled().catch(() => undefined);
+  const stored = await db.flightLog.findMany({ where: { teamId }, select: { storedPath: true } });
+  for (const s of stored) await rm(s.storedPath, { force: true }).catch(() => undefined);
+  await db.team.delete({ where: { id: teamId } });
+  await db.user.deleteMany({ where: { email: { in: DEMO_ACCOUNTS.map((a) => a.email) }, memberships: { none: {} } } });
+}
+
+async function seedTeam(teamId: string): Promise<void> {
+  const team = { id: teamId };
   const users: Record<string, Actor> = {};
   for (const a of DEMO_ACCOUNTS) {
     const user = await db.user.create({ data: { email: a.email, name: a.name, passwordHash: await hashPassword(a.password) } });
@@ -88,8 +107,8 @@ async function main(): Promise<void> {
 
   // Spares on the shelf
   await createParts(tech, { kind: "arm", model: "Harrow arm 6 mm", label: "spare-arm", supplier: "Vale Carbon Works", cost: 9, acquiredAt: new Date(autumn), lifeFlights: null, lifeMinutes: null, quantity: 3, notes: "" });
-  await createParts(tech, { kind: "motor", model: "Stator 2207 1850 kv", label: "spare-motor", supplier: "Coilhouse", cost: 21, acquiredAt: new Date(autumn), lifeFlights: 60, lifeMinutes: null, quantity: 2, notes: "" });
-  await createParts(tech, { kind: "prop-set", model: "Tri-blade 5.1 in", label: "props", supplier: "Coilhouse", cost: 3, acquiredAt: new Date(autumn), lifeFlights: 8, lifeMinutes: null, quantity: 6, notes: "" });
+  await createParts(tech, { kind: "motor", model: "Stator 2207 1850 kv", label: "spare-motor", supplier: "Brackenford Spares", cost: 21, acquiredAt: new Date(autumn), lifeFlights: 60, lifeMinutes: null, quantity: 2, notes: "" });
+  await createParts(tech, { kind: "prop-set", model: "Tri-blade 5.1 in", label: "props", supplier: "Brackenford Spares", cost: 3, acquiredAt: new Date(autumn), lifeFlights: 8, lifeMinutes: null, quantity: 6, notes: "" });
   await createParts(tech, { kind: "camera", model: "Micro camera 1.8 mm", label: "spare-cam", supplier: "Lenslane", cost: 28, acquiredAt: new Date(autumn), lifeFlights: null, lifeMinutes: null, quantity: 1, notes: "" });
 
   const names = Array.from({ length: 8 }, (_, i) => `HV-0${i + 1}`);
@@ -163,8 +182,10 @@ async function main(): Promise<void> {
 
   await analysesSettled();
   await rm(tmp, { recursive: true, force: true });
-  const logs = await db.flightLog.groupBy({ by: ["status"], _count: true });
-  console.log(`seed: demo team created in ${((Date.now() - started) / 1000).toFixed(1)} s (${logs.map((l) => `${l._count} ${l.status}`).join(", ")} logs)`);
+  const failed = await db.flightLog.findMany({ where: { teamId, status: { not: "analysed" } }, select: { fileName: true, error: true } });
+  if (failed.length > 0) {
+    throw new Error(`${failed.length} demo logs could not be analysed (first: ${failed[0]?.fileName}: ${failed[0]?.error ?? "no result"})`);
+  }
 }
 
 main()

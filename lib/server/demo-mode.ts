@@ -1,11 +1,12 @@
 import "server-only";
+import { DEMO_ACCOUNTS } from "@/lib/demo/accounts";
 import { db } from "./db";
 
 /**
- * The invented demo team's accounts. Their passwords are published (README, sign-in page in demo
- * mode), so while any of them exists every screen says this is a demo.
+ * The invented demo team's accounts (lib/demo/accounts.ts). Their passwords are published (README,
+ * sign-in page in demo mode), so while any of them exists every screen says this is a demo.
  */
-export const DEMO_EMAILS = ["owner@heatcheck.test", "tech@heatcheck.test", "pilot@heatcheck.test", "viewer@heatcheck.test"] as const;
+const DEMO_EMAILS = DEMO_ACCOUNTS.map((a) => a.email);
 
 /** Demo mode is on unless HEATCHECK_DEMO=0 (a shared server): it seeds and shows demo sign-ins. */
 export function demoMode(): boolean {
@@ -13,5 +14,5 @@ export function demoMode(): boolean {
 }
 
 export async function demoAccountsExist(): Promise<boolean> {
-  return (await db.user.count({ where: { email: { in: [...DEMO_EMAILS] }, disabledAt: null } })) > 0;
+  return (await db.user.count({ where: { email: { in: DEMO_EMAILS }, disabledAt: null } })) > 0;
 }

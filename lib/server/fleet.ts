@@ -1,4 +1,8 @@
 import "server-only";
+import { DEFAULT_ANALYSIS, throttleBandLabel } from "@/lib/analysis/settings";
+import type { LogAnalysis } from "@/lib/analysis/types";
+import type { Baseline } from "@/lib/health/baseline";
+import { buildFleetReference, judgeAgainstFleet, memberFromBaseline, memberFromLog, OUTLIER_Z, type FleetMember } from "@/lib/health/fleet-reference";
 import type { Status } from "@/lib/health/thresholds";
 import type { Actor } from "@/lib/roles";
 import { db } from "./db";
@@ -33,4 +37,86 @@ export async function fleetTable(actor: Actor) {
       flightsSinceBaseline: since === null ? null : a.logs.filter((l) => l.flownAt.getTime() > since).length,
     };
   });
+}
+
+/** Labels for the notes: analysis band i as "170–230 Hz", throttle band j as "25–38 %". */
+export const BAND_WORDS = {
+  bandLabel: (band: number) => {
+    const e = DEFAULT_ANALYSIS.bandEdgesHz;
+    return `${e[band] ?? "?"}–${e[band + 1] ?? "?"} Hz`;
+  },
+  throttleLabel: (tb: number) => throttleBandLabel(tb / DEFAULT_ANALYSIS.throttleBands, (tb + 1) / DEFAULT_ANALYSIS.throttleBands),
+};
+
+/**
+ * Each active airframe's place in its design's fleet: an airframe with a baseline has that baseline
+ * questioned when it sits off its sisters; one without a baseline has its latest analysed log judged
+ * against them. The reference each is judged by leaves it out. Grounded airframes do not count
+ * towards a reference (they are known not to be healthy).
+ */
+export async function fleetPlacement(actor: Actor) {
+  const airframes = await db.airframe.findMany({
+    where: { teamId: actor.teamId, retired: false },
+    orderBy: { name: "asc" },
+    select: {
+      id: true,
+      name: true,
+      frameDesign: true,
+      status: true,
+      baselines: { where: { active: true }, orderBy: { createdAt: "desc" }, take: 1, select: { json: true } },
+      logs: { where: { status: "analysed" }, orderBy: { flownAt: "desc" }, take: 1, select: { id: true, analysis: { select: { json: true } } } },
+    },
+  });
+  const members = new Map<string, FleetMember[]>();
+  const subjects = airframes.map((a) => {
+    const baselineJson = a.baselines[0]?.json;
+    const analysisJson = a.logs[0]?.analysis?.json;
+    const fromBaseline = baselineJson ? memberFromBaseline(a.id, a.name, JSON.parse(baselineJson) as Baseline) : null;
+    if (fromBaseline && a.status !== "grounded") members.set(a.frameDesign, [...(members.get(a.frameDesign) ?? []), fromBaseline]);
+    const fromLog = !fromBaseline && analysisJson ? memberFromLog(a.id, a.name, JSON.parse(analysisJson) as LogAnalysis) : null;
+    return { airframe: a, fromBaseline, fromLog, logId: a.logs[0]?.id ?? null };
+  });
+  const placements = subjects.map(({ airframe, fromBaseline, fromLog, logId }) => {
+    const reference = buildFleetReference(airframe.frameDesign, members.get(airframe.frameDesign) ?? [], airframe.id);
+    const subject = fromBaseline ?? fromLog;
+    const notes = subject ? judgeAgainstFleet(reference, subject, { what: fromBaseline ? "baseline" : "log", ...BAND_WORDS }) : [];
+    return { airframeId: airframe.id, name: airframe.name, design: airframe.frameDesign, judged: fromBaseline ? ("baseline" as const) : fromLog ? ("log" as const) : null, logId, reference, notes };
+  });
+  const designs = [...new Set(airframes.map((a) => a.frameDesign))].map((design) => buildFleetReference(design, members.get(design) ?? []));
+  return { placements, designs };
+}
+
+export interface ModeStrip {
+  axis: string;
+  medianHz: number;
+  /** The band drawn shaded: median ± 3.5 robust σ (floored as the judgement floors it). */
+  loHz: number;
+  hiHz: number;
+  dots: { name: string; freqHz: number; outlier: boolean }[];
+}
+
+/** The fleet screen's view of each design: one strip per fleet mode with every airframe's baseline frequency. */
+export async function fleetDesignView(actor: Actor) {
+  const { designs, placements } = await fleetPlacement(actor);
+  const nameOf = new Map(placements.map((p) => [p.airframeId, p.name]));
+  return designs.map((ref) => ({
+    design: ref.design,
+    airframes: ref.airframes,
+    enough: ref.enough,
+    strips: ref.modes.map((m): ModeStrip => {
+      const sigma = Math.max(m.sigmaHz, 0.01 * m.medianHz);
+      return {
+        axis: m.axis,
+        medianHz: m.medianHz,
+        loHz: m.medianHz - OUTLIER_Z * sigma,
+        hiHz: m.medianHz + OUTLIER_Z * sigma,
+        dots: m.members.map((x) => {
+          const placement = placements.find((p) => p.airframeId === x.id);
+          return { name: nameOf.get(x.id) ?? "?", freqHz: x.freqHz, outlier: placement?.notes.some((n) => n.kind === "mode-off-fleet" && n.axis === m.axis) ?? false };
+        }),
+      };
+    }),
+    // Airframes judged against the fleet because they have no baseline, with what the fleet says.
+    withoutBaseline: placements.filter((p) => p.design === ref.design && p.judged === "log").map((p) => ({ name: p.name, notes: p.notes.map((n) => n.text) })),
+  }));
 }

@@ -110,6 +110,51 @@ describe("the crew at work (owner)", () => {
     await shot(page, "airframe");
   });
 
+  it("the log screen shows one log against its baseline, the fleet, and each motor's orders", async () => {
+    await page.goto(await airframeUrl(page, "HV-05"));
+    const href = await page.locator("a:has-text('Open the latest log')").getAttribute("href");
+    expect(href).toMatch(/^\/logs\//);
+    await page.goto(`${app.url}${href ?? ""}`);
+    await page.waitForSelector("[data-testid=spectrum-roll] svg path.recharts-curve");
+    await page.waitForSelector("[data-testid=motor-orders] svg path.recharts-curve");
+    expect(await page.locator("[data-testid=motor-orders] path.recharts-curve").count()).toBe(4);
+    expect(await page.locator("[data-testid=fleet-view]").innerText()).toMatch(/sister airframes|fleet/);
+    expect(await page.locator("body").innerText()).toMatch(/motor 3 \(rear-right\) vibrates \d+ dB more/);
+    await shot(page, "log");
+    await page.setViewportSize({ width: 390, height: 844 });
+    await shot(page, "log-phone");
+    await page.setViewportSize({ width: 1440, height: 900 });
+    const missing = await page.goto(`${app.url}/logs/not-a-log-id`);
+    expect(missing?.status()).toBe(404);
+  });
+
+  it("the fleet screen shows each design's modes side by side", async () => {
+    await page.goto(`${app.url}/fleet`);
+    const strips = page.locator("[data-testid=mode-strips]");
+    await expect.poll(() => strips.count()).toBe(1);
+    // The demo's eight airframes share at least one mode per axis.
+    expect(await strips.locator("circle, rect[transform]").count()).toBeGreaterThanOrEqual(3 * 7);
+    await page.setViewportSize({ width: 1366, height: 900 });
+    await shot(page, "fleet-design");
+    await page.setViewportSize({ width: 1440, height: 900 });
+  });
+
+  it("the queue and the airframe screen fit a 390 px phone", async () => {
+    await page.setViewportSize({ width: 390, height: 844 });
+    await page.goto(`${app.url}/`);
+    const row = page.locator("[data-testid=queue] > li").first();
+    const reasons = row.locator("ul");
+    // The reasons get (nearly) the row's whole width, not a squeezed column.
+    const [rowBox, reasonsBox] = [await row.boundingBox(), await reasons.boundingBox()];
+    expect((reasonsBox?.width ?? 0) / (rowBox?.width ?? 1)).toBeGreaterThan(0.8);
+    const overflow = await page.evaluate(() => document.documentElement.scrollWidth - window.innerWidth);
+    expect(overflow).toBeLessThanOrEqual(1);
+    await shot(page, "queue-phone");
+    await page.goto(await airframeUrl(page, "HV-03"));
+    await shot(page, "airframe-phone");
+    await page.setViewportSize({ width: 1440, height: 900 });
+  });
+
   it("uploading two logs through the upload screen, both analysed", async () => {
     const dir = join(app.dataDir, "to-upload");
     mkdirSync(dir, { recursive: true });

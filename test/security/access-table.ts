@@ -23,6 +23,7 @@ export const PAGES: Record<string, AccessRule> = {
   "/": { minimum: "viewer", token: false, what: "inspection queue" },
   "/fleet": { minimum: "viewer", token: false, what: "fleet" },
   "/airframes/[id]": { minimum: "viewer", token: false, teamResource: true, what: "airframe screen" },
+  "/logs/[id]": { minimum: "viewer", token: false, teamResource: true, what: "log screen" },
   "/upload": { minimum: "viewer", token: false, what: "upload screen (uploading needs pilot)" },
   "/parts": { minimum: "viewer", token: false, what: "parts" },
   "/events": { minimum: "viewer", token: false, what: "events and heats" },
@@ -35,6 +36,7 @@ export const ROUTES: Record<string, AccessRule> = {
   "GET /api/auth/[...nextauth]": { minimum: "public", token: false, what: "sign-in machinery (next-auth)" },
   "GET /api/v1/queue": { minimum: "viewer", token: true, what: "API: inspection queue" },
   "GET /api/v1/airframes/[name]": { minimum: "viewer", token: true, teamResource: true, what: "API: one airframe's record" },
+  "GET /api/v1/airframes/[name]/history": { minimum: "viewer", token: true, teamResource: true, what: "API: one airframe's history export" },
   "POST /api/v1/logs": { minimum: "pilot", token: true, what: "API: upload a log" },
   "GET /api/v1/logs/[id]": { minimum: "viewer", token: true, teamResource: true, what: "API: one log's status" },
 };

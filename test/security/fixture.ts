@@ -1,7 +1,8 @@
 import { demoCsv } from "@/lib/demo/demo-csv";
 import type { Actor, Role } from "@/lib/roles";
 import { startApp, type AppServer } from "../support/app-server";
-import { Client, freshBuild, signedIn } from "./http";
+import { join } from "node:path";
+import { Client, signedIn } from "./http";
 
 /**
  * The built app on a free loopback port with HEATCHECK_DEMO=0 (no demo team), and two invented
@@ -37,13 +38,11 @@ async function loadServices() {
 }
 
 export async function startWithTwoTeams(label: string): Promise<Fixture> {
-  const root = process.cwd();
-  process.env.HEATCHECK_DEMO = "0";
-  if (freshBuild(root)) process.env.HEATCHECK_SKIP_BUILD = "1";
-  const app = await startApp();
+  // Through `npm start` (scripts/start.ts), which reuses a fresh build, with the demo off.
+  const app = await startApp({ env: { HEATCHECK_DEMO: "0" } });
   // The test process writes into the app's own SQLite file through the same services.
-  process.env.DATABASE_URL = app.env.DATABASE_URL;
-  process.env.HEATCHECK_DATA_DIR = app.env.HEATCHECK_DATA_DIR;
+  process.env.DATABASE_URL = `file:${join(app.dataDir, "heatcheck.db")}`;
+  process.env.HEATCHECK_DATA_DIR = app.dataDir;
   process.env.HEATCHECK_WORKERS = "0";
   const s = await loadServices();
 

@@ -1,4 +1,4 @@
-import { existsSync, readdirSync, readFileSync, statSync } from "node:fs";
+import { readFileSync } from "node:fs";
 import { createRequire } from "node:module";
 import { join } from "node:path";
 
@@ -131,18 +131,3 @@ export async function callAction(client: Client, action: BuiltAction, fields: Re
 
 /** The sentences with which the guard refuses (lib/server/guard.ts, lib/server/authorize.ts, lib/server/sessions.ts). */
 export const REFUSALS = [/Sign in first\./, /Your session has ended/, /This needs the \w+ role or higher/, /came from another site/, /not a member of any team/];
-
-/** Whether a build newer than every source exists, so the suite need not build again. */
-export function freshBuild(root: string): boolean {
-  const id = join(root, ".next", "BUILD_ID");
-  if (!existsSync(id)) return false;
-  const newest = (p: string): number => {
-    const st = statSync(p);
-    if (!st.isDirectory()) return st.mtimeMs;
-    let n = 0;
-    for (const e of readdirSync(p)) if (e !== "node_modules" && !e.startsWith(".")) n = Math.max(n, newest(join(p, e)));
-    return n;
-  };
-  const sources = ["app", "lib", "prisma", "public", "proxy.ts", "next.config.ts", "instrumentation.ts", "package.json"].map((s) => join(root, s)).filter(existsSync);
-  return statSync(id).mtimeMs > Math.max(...sources.map(newest));
-}

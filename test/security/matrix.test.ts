@@ -46,7 +46,8 @@ function foreignMarkers(who: Principal): string[] {
 }
 
 function fill(path: string): string {
-  return path.replace("[id]", f.alpha.airframeId).replace("[name]", encodeURIComponent(ALPHA.airframe));
+  const id = path.startsWith("/logs/") ? f.alpha.logId : f.alpha.airframeId;
+  return path.replace("[id]", id).replace("[name]", encodeURIComponent(ALPHA.airframe));
 }
 
 type Outcome = "allowed" | "denied" | `broken: ${string}`;
@@ -184,8 +185,9 @@ describe("stored XSS (ASVS 4.0 §5.3.3): payloads in every stored text field, fi
     form.set("file", new Blob([csv]), `${payload("fileName")}.csv`);
     const up = await fetch(`${f.app.url}/api/v1/logs`, { method: "POST", headers: { authorization: `Bearer ${f.alpha.token}` }, body: form });
     expect(up.status).toBe(200);
+    const { logId } = (await up.json()) as { logId: string };
 
-    const pages = ["/", "/fleet", `/airframes/${af.id}`, "/parts", `/parts?part=${part?.id ?? ""}`, "/parts?fitted=1", "/events", "/team", "/upload"];
+    const pages = ["/", "/fleet", `/airframes/${af.id}`, `/logs/${logId}`, "/parts", `/parts?part=${part?.id ?? ""}`, "/parts?fitted=1", "/events", "/team", "/upload"];
     let all = "";
     for (const p of pages) {
       const r = await f.sessions.owner.fetch(p);
