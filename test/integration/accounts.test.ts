@@ -176,3 +176,24 @@ describe("members and tokens (issue 7 item 7)", () => {
     expect(forViewer.some((e) => e.detail.includes("New Comer"))).toBe(true);
   });
 });
+
+describe("the first owner of a server without the demo (npm run accounts -- first-owner)", () => {
+  it("creates the team and its owner once, with a password that passes the rules, and refuses a second time", async () => {
+    const { execFileSync } = await import("node:child_process");
+    const { mkdtempSync } = await import("node:fs");
+    const { tmpdir } = await import("node:os");
+    const { join } = await import("node:path");
+    // An empty server of its own: migrated, no accounts.
+    const url = `file:${join(mkdtempSync(join(tmpdir(), "heatcheck-owner-")), "h.db")}`;
+    execFileSync("npx", ["prisma", "migrate", "deploy"], { env: { ...process.env, DATABASE_URL: url }, stdio: "pipe" });
+    const run = (pw: string) =>
+      execFileSync("npx", ["tsx", "--conditions=react-server", "scripts/accounts.ts", "first-owner", "lead@club.example.test", "Lead Person", "Club Team"], {
+        env: { ...process.env, DATABASE_URL: url, HEATCHECK_OWNER_PASSWORD: pw },
+        encoding: "utf8",
+        stdio: "pipe",
+      });
+    expect(() => run("password1234")).toThrow(/common passwords/);
+    expect(run("gravel-pit-lantern-9")).toMatch(/is the owner of "Club Team"/);
+    expect(() => run("gravel-pit-lantern-10")).toThrow(/already has accounts/);
+  }, 60_000);
+});

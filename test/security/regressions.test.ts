@@ -1,3 +1,4 @@
+import { execFileSync } from "node:child_process";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { demoCsv } from "@/lib/demo/demo-csv";
 import { startWithTwoTeams, password, type Fixture } from "./fixture";
@@ -132,6 +133,18 @@ describe("issue 7", () => {
     expect(r.text).toContain("at least one owner");
     expect(await f.services.db.membership.findUnique({ where: { id: own.id } })).not.toBeNull();
   });
+
+  it("7: the operator's script disables an account: its session ends and it cannot sign in until enabled", async () => {
+    const email = f.emails.bravoOwner;
+    const c = await signedIn(f.app.url, email, password("bravo-owner"));
+    const env = { ...process.env, DATABASE_URL: process.env.DATABASE_URL };
+    const run = (cmd: string) => execFileSync("npx", ["tsx", "--conditions=react-server", "scripts/accounts.ts", cmd, email], { env, encoding: "utf8" });
+    expect(run("disable")).toMatch(/disabled; [1-9]\d* open session\(s\) ended/);
+    expect((await c.fetch("/api/v1/queue")).status).toBe(401);
+    expect((await signIn(new Client(f.app.url), email, password("bravo-owner"))).ok).toBe(false);
+    run("enable");
+    expect((await signIn(new Client(f.app.url), email, password("bravo-owner"))).ok).toBe(true);
+  }, 60_000);
 
   it("9: passwords over 72 bytes never sign in by their first 72; short and common new passwords are refused", async () => {
     const email = f.emails.alpha.tech;
