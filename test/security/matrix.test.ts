@@ -179,7 +179,7 @@ describe("stored XSS (ASVS 4.0 §5.3.3): payloads in every stored text field, fi
     await s.createToken(owner, payload("tokenName"));
     await s.inviteMember(owner, { email: "xss-invitee@example.test", name: payload("inviteeName"), role: "viewer", password: "gravel-pit-lantern-9" });
     // A log whose file name and metadata carry payloads, uploaded as a pilot's script would.
-    const csv = demoCsv({ seed: 11, durationS: 4, airframeSeed: 3 }, { airframe: "XSS-1", flownAt: "2026-11-21T10:00:00Z", note: payload("logNote") }).replace("# note:", `# ${"x".repeat(3)}_extra: ${payload("logMetaKey")}\n# note:`);
+    const csv = demoCsv({ seed: 11, durationS: 4, airframeSeed: 3 }, { airframe: "XSS-1", flownAt: "2026-11-21T10:00:00Z", note: payload("logNote") }).replace("# note:", `# rig_extra: ${payload("logMetaKey")}\n# note:`);
     const form = new FormData();
     form.set("airframe", "XSS-1");
     form.set("file", new Blob([csv]), `${payload("fileName")}.csv`);
