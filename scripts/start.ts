@@ -123,7 +123,7 @@ async function main(): Promise<void> {
       "the demo team could not be seeded (see the lines above); nothing was kept, so the next `npm start` tries again."),
     needsBuild
       ? step("app build (first start or changed sources)", npx, ["next", "build"], env,
-          "the app could not be built (see the lines above); run `npm install` again, then `npm start`.")
+          "the app could not be built (see the lines above): if you changed the sources, fix what it names; otherwise run `npm install` again, then `npm start`.")
       : Promise.resolve(),
   ]);
 

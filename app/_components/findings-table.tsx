@@ -5,7 +5,7 @@ import type { Finding, NotCompared } from "@/lib/health/compare";
 export interface FindingsCardProps {
   title: string;
   /** null: the log was not judged (no baseline); the sentence says why. */
-  assessment: { findings: Finding[]; notCompared: NotCompared[] } | null;
+  assessment: { findings: (Finding & { repair?: string })[]; notCompared: NotCompared[] } | null;
   notJudged: string;
   fileName?: string;
 }
@@ -32,9 +32,7 @@ export function FindingsCard({ title, assessment, notJudged, fileName }: Finding
           <tbody>
             {assessment.findings.map((f) => (
               <tr key={`${f.kind}-${f.axis}-${f.freqHz}`}>
-                <td>
-                  <StatusBadge status={f.severity} />
-                </td>
+                <td>{f.repair ? <span className="tag">after repair</span> : <StatusBadge status={f.severity} />}</td>
                 <td className="num">−{Math.round(f.points)}</td>
                 <td>{f.axis}</td>
                 <td>{f.text}</td>

@@ -9,10 +9,11 @@ import type { SpectrumPoint } from "@/lib/server/spectrum-view";
 export interface SpectraGridProps {
   analysis: LogAnalysis | null;
   spectra: Record<Axis, SpectrumPoint[]>;
+  currentLabel?: string;
 }
 
 /** One spectrum chart per axis (log against baseline at matched throttle), with the settings in words. */
-export function SpectraGrid({ analysis, spectra }: SpectraGridProps) {
+export function SpectraGrid({ analysis, spectra, currentLabel }: SpectraGridProps) {
   return (
     <>
       <p className="muted small">
@@ -24,7 +25,7 @@ export function SpectraGrid({ analysis, spectra }: SpectraGridProps) {
         {AXES.map((axis) => (
           <div className="card" key={axis}>
             <h3 style={{ marginTop: 0 }}>{axis}</h3>
-            <SpectrumChart axis={axis} points={spectra[axis]} peaks={(analysis?.axes[axis].peaks ?? []).map((p) => ({ freqHz: Math.round(p.freqHz * 10) / 10, levelDb: p.levelDb, kind: p.kind }))} />
+            <SpectrumChart axis={axis} currentLabel={currentLabel} points={spectra[axis]} peaks={(analysis?.axes[axis].peaks ?? []).map((p) => ({ freqHz: Math.round(p.freqHz * 10) / 10, levelDb: p.levelDb, kind: p.kind }))} />
           </div>
         ))}
       </div>

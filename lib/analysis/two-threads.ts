@@ -8,8 +8,15 @@ import type { LogAnalysis } from "./types";
 
 /**
  * The analysis split over two threads: this thread reads and parses the CSV, a worker thread runs
- * the analyser on the blocks it is sent. On a 2-core pit laptop parsing and spectra then overlap.
- * At most MAX_IN_FLIGHT blocks wait in the worker, so memory stays bounded however long the log.
+ * the analyser on what it is sent. On a 2-core pit laptop parsing and spectra then overlap.
+ *
+ * Memory stays flat however long the log and however many gaps it has: rows are copied into
+ * batches of BATCH_ROWS rows whose buffers travel to the worker and back (transferred, not cloned),
+ * and a batch also carries the gaps between its rows, so a log where every step is a gap still
+ * makes one message per BATCH_ROWS rows. The file is fed to the reader in pieces of at most
+ * PIECE_BYTES, and no next piece is read while more than MAX_IN_FLIGHT batches wait in the worker.
+ * A piece holds at most PIECE_BYTES / 8 rows (a row is at least "t,r,p,y\n"), so it fills at most
+ * two batches: at most MAX_IN_FLIGHT + 3 buffer sets ever exist.
  *
  * The worker is the calling program's own entry module started again with a marker in workerData
  * (see {@link runAnalysisThreadIfWorker}), so the same file serves as TypeScript under tsx and as
@@ -18,18 +25,29 @@ import type { LogAnalysis } from "./types";
 
 const ROLE = "heatcheck-analysis-thread";
 const MAX_IN_FLIGHT = 4;
+const BATCH_ROWS = 8192;
+/** Gaps a batch may carry before it is sent, full or not. */
+const BATCH_GAPS = 4096;
+const PIECE_BYTES = 64 * 1024;
+
+/** Rows of several reader blocks, with the gaps that fell between them. */
+interface Batch {
+  block: SampleBlock;
+  /** gaps[k] fell before row gapRows[k] of the batch. */
+  gapRows: number[];
+  gaps: Gap[];
+}
 
 type ToWorker =
   | { type: "begin"; info: LogInfo; settings: Partial<AnalysisSettings> }
-  | { type: "block"; block: SampleBlock }
-  | { type: "gap"; gap: Gap }
+  | { type: "batch"; batch: Batch }
   | { type: "finish"; summary: ReadSummary };
 
-/** The ack hands the block's buffers back, so the two threads pass a few buffer sets to and fro. */
+/** The ack hands the batch's buffers back, so the two threads pass a few buffer sets to and fro. */
 type FromWorker = { type: "ack"; block: SampleBlock } | { type: "done"; analysis: LogAnalysis } | { type: "failed"; message: string; badInput: boolean };
 
 function buffersOf(b: SampleBlock): ArrayBuffer[] {
-  return [b.timeS, ...b.gyro, ...(b.throttle ? [b.throttle] : []), ...b.rpm].map((a) => a.buffer as ArrayBuffer);
+  return [b.timeS, ...b.gyro, ...(b.throttle ? [b.throttle] : []), ...b.rpm, ...(b.setpoint ?? [])].map((a) => a.buffer as ArrayBuffer);
 }
 
 export interface TwoThreadOptions extends ReadOptions {
@@ -38,13 +56,18 @@ export interface TwoThreadOptions extends ReadOptions {
   entryUrl: URL | string;
 }
 
-export async function analyzeLogInTwoThreads(source: AsyncIterable<Uint8Array>, options: TwoThreadOptions): Promise<{ analysis: LogAnalysis; summary: ReadSummary }> {
-  const entry = new URL(options.entryUrl);
-  // Under tsx the entry is TypeScript, and a worker does not inherit tsx's loader: register it
-  // in the worker first, then load the entry.
-  const worker = entry.pathname.endsWith(".ts")
-    ? new Worker(`import("tsx/esm/api").then((tsx) => { tsx.register(); return import(${JSON.stringify(entry.href)}); });`, { eval: true, workerData: { role: ROLE } })
-    : new Worker(entry, { workerData: { role: ROLE } });
+/** Counters for tests and the bench: how many buffer sets were made and the most batches in flight. */
+export interface PipelineStats {
+  bufferSets: number;
+  maxInFlight: number;
+  batches: number;
+}
+
+export async function analyzeLogInTwoThreads(
+  source: AsyncIterable<Uint8Array>,
+  options: TwoThreadOptions,
+): Promise<{ analysis: LogAnalysis; summary: ReadSummary; stats: PipelineStats }> {
+  const stats: PipelineStats = { bufferSets: 0, maxInFlight: 0, batches: 0 };
   let inFlight = 0;
   let wake: (() => void) | null = null;
   let failure: Error | null = null;
@@ -56,7 +79,21 @@ export async function analyzeLogInTwoThreads(source: AsyncIterable<Uint8Array>, 
   });
   // Failures are awaited below; until then the promise must not count as unhandled.
   done.catch(() => undefined);
-  worker.on("message", (m: FromWorker) => {
+  const free: SampleBlock[] = [];
+  // The worker starts when the reader has a header and a sample rate, so a file refused early
+  // (not a CSV, no header, a bad cell in the first rows) costs no thread.
+  const thread: { worker: Worker | null } = { worker: null };
+  const startWorker = (): Worker => {
+    const entry = new URL(options.entryUrl);
+    // Under tsx the entry is TypeScript, and a worker does not inherit tsx's loader: register it
+    // in the worker first, then load the entry.
+    const w = entry.pathname.endsWith(".ts")
+      ? new Worker(`import("tsx/esm/api").then((tsx) => { tsx.register(); return import(${JSON.stringify(entry.href)}); });`, { eval: true, workerData: { role: ROLE } })
+      : new Worker(entry, { workerData: { role: ROLE } });
+    listen(w);
+    return w;
+  };
+  const listen = (w: Worker) => w.on("message", (m: FromWorker) => {
     if (m.type === "ack") {
       inFlight--;
       free.push(m.block);
@@ -68,55 +105,93 @@ export async function analyzeLogInTwoThreads(source: AsyncIterable<Uint8Array>, 
       rejectDone(failure);
       wake?.();
     }
-  });
-  worker.on("error", (e) => {
+  }).on("error", (e) => {
     failure = e;
     rejectDone(e);
     wake?.();
   });
-  const post = (m: ToWorker, transfer: ArrayBuffer[] = []) => worker.postMessage(m, transfer);
-  const free: SampleBlock[] = [];
+  const post = (m: ToWorker, transfer: ArrayBuffer[] = []) => {
+    thread.worker ??= startWorker();
+    thread.worker.postMessage(m, transfer);
+  };
   const settings = options.settings ?? {};
-  const sink: LogSink = {
-    begin: (info) => post({ type: "begin", info, settings }),
-    gap: (gap) => post({ type: "gap", gap }),
-    block: (b) => {
-      // The reader reuses its arrays: copy them into a buffer set of our own and hand its memory
-      // over (no cloning); the worker hands it back with the ack.
-      const make = () => new Float64Array(b.timeS.length);
-      const block: SampleBlock = free.pop() ?? {
+
+  let current: Batch | null = null;
+  const newBatch = (like: SampleBlock): Batch => {
+    let block = free.pop();
+    if (!block) {
+      const make = () => new Float64Array(BATCH_ROWS);
+      block = {
         length: 0,
         timeS: make(),
         gyro: [make(), make(), make()],
-        throttle: b.throttle ? make() : null,
-        rpm: b.rpm.map(make),
-        setpoint: null,
+        throttle: like.throttle ? make() : null,
+        rpm: like.rpm.map(make),
+        setpoint: like.setpoint ? [make(), make(), make()] : null,
       };
-      const n = b.length;
-      block.length = n;
-      block.timeS.set(b.timeS.subarray(0, n));
-      b.gyro.forEach((g, a) => block.gyro[a]?.set(g.subarray(0, n)));
-      if (b.throttle) block.throttle?.set(b.throttle.subarray(0, n));
-      b.rpm.forEach((r, m) => block.rpm[m]?.set(r.subarray(0, n)));
-      inFlight++;
-      post({ type: "block", block }, buffersOf(block));
+      stats.bufferSets++;
+    }
+    block.length = 0;
+    return { block, gapRows: [], gaps: [] };
+  };
+  const send = () => {
+    if (!current || (current.block.length === 0 && current.gaps.length === 0)) return;
+    inFlight++;
+    stats.batches++;
+    stats.maxInFlight = Math.max(stats.maxInFlight, inFlight);
+    post({ type: "batch", batch: current }, buffersOf(current.block));
+    current = null;
+  };
+  let pendingGaps: Gap[] = [];
+  const sink: LogSink = {
+    begin: (info) => post({ type: "begin", info, settings }),
+    // A gap always comes between two blocks: it is kept until the next block says which batch it joins.
+    gap: (gap) => {
+      pendingGaps.push(gap);
+    },
+    block: (b) => {
+      let from = 0;
+      while (from < b.length) {
+        current ??= newBatch(b);
+        const into = current.block;
+        if (pendingGaps.length > 0) {
+          for (const g of pendingGaps) {
+            current.gapRows.push(into.length);
+            current.gaps.push(g);
+          }
+          pendingGaps = [];
+        }
+        const n = Math.min(b.length - from, BATCH_ROWS - into.length);
+        const at = into.length;
+        into.timeS.set(b.timeS.subarray(from, from + n), at);
+        b.gyro.forEach((g, a) => into.gyro[a]?.set(g.subarray(from, from + n), at));
+        if (b.throttle) into.throttle?.set(b.throttle.subarray(from, from + n), at);
+        b.rpm.forEach((r, m) => into.rpm[m]?.set(r.subarray(from, from + n), at));
+        if (b.setpoint) b.setpoint.forEach((s, a) => into.setpoint?.[a]?.set(s.subarray(from, from + n), at));
+        into.length += n;
+        from += n;
+        if (into.length === BATCH_ROWS || current.gaps.length >= BATCH_GAPS) send();
+      }
     },
   };
-  // Hold the next chunk back while the worker is behind.
+  // The file in pieces; the next piece waits while the worker is behind.
   async function* paced(): AsyncGenerator<Uint8Array> {
     for await (const chunk of source) {
-      while (inFlight > MAX_IN_FLIGHT && !failure) await new Promise<void>((resolve) => (wake = resolve));
-      if (failure) return;
-      yield chunk;
+      for (let at = 0; at < chunk.length; at += PIECE_BYTES) {
+        while (inFlight > MAX_IN_FLIGHT && !failure) await new Promise<void>((resolve) => (wake = resolve));
+        if (failure) return;
+        yield chunk.subarray(at, Math.min(chunk.length, at + PIECE_BYTES));
+      }
     }
   }
   try {
     const summary = await readLog(paced(), sink, options);
     if (failure) throw failure;
+    send();
     post({ type: "finish", summary });
-    return { analysis: await done, summary };
+    return { analysis: await done, summary, stats };
   } finally {
-    await worker.terminate();
+    await thread.worker?.terminate();
   }
 }
 
@@ -134,11 +209,9 @@ export function runAnalysisThreadIfWorker(): boolean {
       if (m.type === "begin") {
         analyzer = new LogAnalyzer(m.settings);
         analyzer.begin(m.info);
-      } else if (m.type === "block") {
-        analyzer?.block(m.block);
-        port.postMessage({ type: "ack", block: m.block } satisfies FromWorker, buffersOf(m.block));
-      } else if (m.type === "gap") {
-        analyzer?.gap(m.gap);
+      } else if (m.type === "batch") {
+        if (analyzer) replay(analyzer, m.batch);
+        port.postMessage({ type: "ack", block: m.batch.block } satisfies FromWorker, buffersOf(m.batch.block));
       } else if (analyzer) {
         port.postMessage({ type: "done", analysis: analyzer.finish(m.summary) } satisfies FromWorker);
       }
@@ -147,4 +220,29 @@ export function runAnalysisThreadIfWorker(): boolean {
     }
   });
   return true;
+}
+
+/** Hands a batch to the analyser as the reader handed it on: the runs between gaps, and the gaps. */
+function replay(analyzer: LogAnalyzer, batch: Batch): void {
+  const b = batch.block;
+  const run = (from: number, to: number) => {
+    if (to <= from) return;
+    const view = (a: Float64Array) => a.subarray(from, to);
+    analyzer.block({
+      length: to - from,
+      timeS: view(b.timeS),
+      gyro: [view(b.gyro[0]), view(b.gyro[1]), view(b.gyro[2])],
+      throttle: b.throttle ? view(b.throttle) : null,
+      rpm: b.rpm.map(view),
+      setpoint: b.setpoint ? [view(b.setpoint[0]), view(b.setpoint[1]), view(b.setpoint[2])] : null,
+    });
+  };
+  let from = 0;
+  batch.gaps.forEach((gap, k) => {
+    const at = batch.gapRows[k] ?? from;
+    run(from, at);
+    analyzer.gap(gap);
+    from = at;
+  });
+  run(from, b.length);
 }

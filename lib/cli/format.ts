@@ -23,14 +23,15 @@ export function table(headers: string[], rows: (string | number)[][], rightAlign
 const n1 = (v: number) => (Number.isFinite(v) ? v.toFixed(1) : "–");
 const n2 = (v: number) => (Number.isFinite(v) ? v.toFixed(2) : "–");
 
-export function formatAnalysis(file: string, a: LogAnalysis): string {
+/** `gapCount` counts every gap (the analysis lists only the first ones); default: the listed ones. */
+export function formatAnalysis(file: string, a: LogAnalysis, gapCount = a.gaps.length): string {
   const out: string[] = [];
   const meta = a.metadata;
   out.push(`${file}`);
   const who = [meta.airframe ? `airframe ${meta.airframe}` : "", meta.flown_at ? `flown ${meta.flown_at}` : ""].filter(Boolean).join(" · ");
   if (who) out.push(`  ${who}`);
   out.push(
-    `  ${Math.round(a.sampleRateHz)} Hz · ${a.durationS.toFixed(1)} s · ${a.samples} samples · ${a.gaps.length} gap${a.gaps.length === 1 ? "" : "s"} · ${a.droppedRows} dropped row${a.droppedRows === 1 ? "" : "s"}`,
+    `  ${Math.round(a.sampleRateHz)} Hz · ${a.durationS.toFixed(1)} s · ${a.samples} samples · ${gapCount} gap${gapCount === 1 ? "" : "s"} · ${a.droppedRows} dropped row${a.droppedRows === 1 ? "" : "s"}`,
   );
   const s = a.settings;
   out.push(

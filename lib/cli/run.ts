@@ -10,6 +10,7 @@ import { InputError, UsageError, isDomainError } from "../errors";
 import { buildBaseline } from "../health/baseline";
 import { compareWithBaseline } from "../health/compare";
 import { parseColumnMap } from "../logs/columns";
+import type { ReadSummary } from "../logs/read-log";
 import { WINDOW_NAMES } from "../signal/windows";
 import { choiceFlag, flag, hasSwitch, numberFlag, parseArgs, type ParsedArgs } from "./args";
 import { fileSource, userPath } from "./file-source";
@@ -98,11 +99,11 @@ function analyzeOptions(args: ParsedArgs): AnalyzeOptions {
   };
 }
 
-async function analyzeFile(path: string, options: AnalyzeOptions, cli: CliOptions): Promise<LogAnalysis> {
+async function analyzeFile(path: string, options: AnalyzeOptions, cli: CliOptions): Promise<{ analysis: LogAnalysis; summary: ReadSummary }> {
   const source = await fileSource(path);
   try {
     const run = cli.entryUrl ? analyzeLogInTwoThreads(source, { ...options, entryUrl: cli.entryUrl }) : analyzeLog(source, options);
-    return (await run).analysis;
+    return await run;
   } catch (e) {
     // Say which file, since compare reads several.
     if (isDomainError(e)) throw new InputError(`${path}: ${e.message}`);
@@ -117,8 +118,8 @@ function onePositional(args: ParsedArgs, what: string): string {
 
 async function analyzeCommand(args: ParsedArgs, io: CliIo, cli: CliOptions): Promise<number> {
   const path = onePositional(args, "log file");
-  const analysis = await analyzeFile(path, analyzeOptions(args), cli);
-  io.stdout(hasSwitch(args, "json") ? JSON.stringify(analyzeJson(analysis)) + "\n" : formatAnalysis(path, analysis));
+  const { analysis, summary } = await analyzeFile(path, analyzeOptions(args), cli);
+  io.stdout(hasSwitch(args, "json") ? JSON.stringify(analyzeJson(analysis)) + "\n" : formatAnalysis(path, analysis, summary.gapCount));
   return 0;
 }
 
@@ -128,8 +129,8 @@ async function compareCommand(args: ParsedArgs, io: CliIo, cli: CliOptions): Pro
   if (baselines.length === 0) throw new UsageError("compare needs at least one --baseline <known-good log>");
   const options = analyzeOptions(args);
   const good = [];
-  for (const b of baselines) good.push(await analyzeFile(b, options, cli));
-  const log = await analyzeFile(path, options, cli);
+  for (const b of baselines) good.push((await analyzeFile(b, options, cli)).analysis);
+  const log = (await analyzeFile(path, options, cli)).analysis;
   const assessment = compareWithBaseline(log, buildBaseline(good), { motorPositions: MOTOR_POSITIONS });
   io.stdout(hasSwitch(args, "json") ? JSON.stringify(compareJson(assessment)) + "\n" : formatAssessment(path, assessment));
   return 0;

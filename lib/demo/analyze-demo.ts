@@ -42,6 +42,7 @@ export function analyzeDemoLog(
     samples,
     durationS: samples / g.sampleRateHz,
     gaps: [],
+    gapCount: 0,
     droppedRows: 0,
     droppedLines: [],
     bytes: 0,

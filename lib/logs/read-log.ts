@@ -10,6 +10,7 @@ import {
 } from "./columns";
 import { round } from "../signal/stats";
 import { EMPTY_CELL, POW10, parseDecimal } from "./parse-number";
+import { MAX_LINE_BYTES, MAX_PREAMBLE_BYTES, metadataEntry, nonTextKind, separatorHint, splitHeader } from "./preamble";
 
 /**
  * Streaming reader for heatcheck's CSV log format:
@@ -28,10 +29,9 @@ export const MIN_SAMPLE_RATE_HZ = 100;
 export const MAX_SAMPLE_RATE_HZ = 50_000;
 /** A time step larger than this many median steps splits the log. */
 export const GAP_FACTOR = 2.5;
-/** Rows held before the sample rate is decided from their median time step. */
+/** Rows held before the sample rate is decided from a line fit of their time stamps. */
 const PROBE_ROWS = 4096;
 const DEFAULT_BLOCK_ROWS = 8192;
-const MAX_PREAMBLE_LINE = 64 * 1024;
 /** More incomplete rows than this fraction of all rows makes the file unreadable. */
 const MAX_DROPPED_FRACTION = 0.05;
 const DEG_PER_RAD = 180 / Math.PI;
@@ -93,8 +93,11 @@ export interface ReadSummary {
   info: LogInfo;
   samples: number;
   durationS: number;
+  /** The first MAX_LISTED_GAPS gaps. */
   gaps: Gap[];
-  /** Rows skipped as incomplete (a truncated last line, an empty cell, a repeated time stamp). */
+  /** All gaps, listed or not. */
+  gapCount: number;
+  /** Rows skipped as damaged (a truncated last line, an empty cell, a cell count other than the header's, a repeated time stamp). */
   droppedRows: number;
   /** Line numbers of the first few dropped rows. */
   droppedLines: number[];
@@ -107,21 +110,24 @@ export async function readLog(
   sink: LogSink,
   options: ReadOptions = {},
 ): Promise<ReadSummary> {
-  const parser = new LogParser(sink, options);
+  const reader = new LogReader(sink, options);
   const chunks = source[Symbol.asyncIterator]();
   for (;;) {
-    let next: IteratorResult<Uint8Array>;
-    try {
-      next = await chunks.next();
-    } catch (e) {
-      // The stream itself failed (a file removed mid-read, a dropped upload): the file is unreadable.
-      if (isDomainError(e)) throw e;
-      throw new LogFormatError(`the file could not be read (${e instanceof Error ? e.message : String(e)})`);
-    }
+    const next = await nextChunk(chunks);
     if (next.done) break;
-    parser.push(next.value);
+    reader.push(next.value);
   }
-  return parser.finish();
+  return reader.finish();
+}
+
+/** The next chunk of a byte stream; a stream that fails (a file removed mid-read, a dropped upload) is an unreadable file. */
+export async function nextChunk(chunks: AsyncIterator<Uint8Array>): Promise<IteratorResult<Uint8Array>> {
+  try {
+    return await chunks.next();
+  } catch (e) {
+    if (isDomainError(e)) throw e;
+    throw new LogFormatError(`the file could not be read (${e instanceof Error ? e.message : String(e)})`);
+  }
 }
 
 /** Column slots in a raw row. */
@@ -144,15 +150,46 @@ interface Layout {
   map: ColumnMap;
 }
 
-class LogParser {
+/** What the head of a log holds, as found by a reader in head mode (see sniff.ts). */
+export interface HeadFound {
+  metadata: Record<string, string>;
+  headers: string[];
+  /** 1-based line of the header row. */
+  line: number;
+}
+
+/** Gaps listed in a summary; more are counted (gapCount) but not listed, so memory stays flat. */
+export const MAX_LISTED_GAPS = 1000;
+/** Bytes looked at to tell what kind of file this is before reading it as lines. */
+const KIND_PROBE_BYTES = 512;
+
+/**
+ * The reader as a push parser: give it the file's bytes in chunks of any size with push(), then call
+ * finish(). The outcome (rows, gaps, errors and the line and column they name) does not depend on
+ * where the chunks are cut. With `headOnly`, it stops at the header row and keeps it in `head`.
+ */
+export class LogReader {
   private readonly sink: LogSink;
   private readonly options: ReadOptions;
   private readonly maxBytes: number;
   private readonly blockRows: number;
+  private readonly headOnly: boolean;
+  /** Set in head mode once the header row was read; later bytes are ignored. */
+  head: HeadFound | null = null;
 
   private bytes = 0;
   private line = 0;
-  private carry: Uint8Array | null = null;
+  // The first bytes, held until the file's kind and its line ending are known.
+  private started = false;
+  private startBuf: Uint8Array = new Uint8Array(0);
+  private startLen = 0;
+  private startScanned = 0;
+  /** Lines end in a lone CR (old Macintosh text): CRs are read as line feeds. */
+  private crOnly = false;
+  // The unfinished last line of the previous chunk, in a buffer that grows by doubling.
+  private carry: Uint8Array = new Uint8Array(0);
+  private carryLen = 0;
+  private preambleBytes = 0;
   private metadata: Record<string, string> = {};
   private layout: Layout | null = null;
   private guesses: string[] = [];
@@ -161,15 +198,24 @@ class LogParser {
   // Raw rows of the current block: slot-major, values already in seconds / deg/s / rpm.
   private raw: Float64Array[] = [];
   private rawLines = new Int32Array(0);
+  /** Before the rate is known: damaged rows just before each held row (missing samples for the fit). */
+  private rawMissed = new Int32Array(0);
   private rawCount = 0;
 
+  private rawFirstTime = Number.NaN;
   private lastTime = Number.NaN;
-  private firstTime = Number.NaN;
-  private medianStep = Number.NaN;
+  /** Sample period in seconds, from the fit of the first rows' time stamps. */
+  private period = Number.NaN;
   private samples = 0;
   private dropped = 0;
   private droppedLines: number[] = [];
+  /** Damaged rows (not repeated stamps) since the last row kept. */
+  private missedSince = 0;
+  /** Rows with more cells than the header names columns, and the first of them. */
+  private wideRows = 0;
+  private firstWide: { line: number; cells: number } | null = null;
   private gaps: Gap[] = [];
+  private gapCount = 0;
   private dataRows = 0;
   /** Time of the last row handed on, to see a gap between two blocks. */
   private prevEnd = 0;
@@ -177,55 +223,151 @@ class LogParser {
   // Output block (converted), reused.
   private out: SampleBlock | null = null;
 
-  constructor(sink: LogSink, options: ReadOptions) {
+  constructor(sink: LogSink, options: ReadOptions = {}, headOnly = false) {
     this.sink = sink;
     this.options = options;
     this.maxBytes = options.maxBytes ?? DEFAULT_MAX_LOG_BYTES;
     this.blockRows = options.blockRows ?? DEFAULT_BLOCK_ROWS;
+    this.headOnly = headOnly;
   }
 
   push(input: Uint8Array): void {
-    if (input.length === 0) return;
+    if (input.length === 0 || this.head) return;
     // Node hands Buffers, tests hand Uint8Arrays: one element type keeps the hot loop monomorphic.
-    const chunk = input.constructor === Uint8Array ? input : new Uint8Array(input.buffer, input.byteOffset, input.length);
+    let chunk = input.constructor === Uint8Array ? input : new Uint8Array(input.buffer, input.byteOffset, input.length);
+    // Bytes up to the limit are read first, so the limit is met at the same byte however the file is cut.
+    const over = this.bytes + chunk.length > this.maxBytes;
+    if (over) chunk = chunk.subarray(0, Math.max(0, this.maxBytes - this.bytes));
     this.bytes += chunk.length;
-    if (this.bytes > this.maxBytes) {
+    if (this.started) this.feed(chunk);
+    else this.hold(chunk, false);
+    if (over) {
       throw new LimitExceededError(
         `the file is larger than the ${formatBytes(this.maxBytes)} limit; split the log or raise the limit`,
       );
     }
+  }
+
+  /** Decides the file's kind from the bytes pushed so far (for a head that is only a slice of a file). */
+  settle(): void {
+    if (!this.started) this.hold(new Uint8Array(0), true);
+  }
+
+  /** Holds the first bytes until the file's kind and line ending can be told, then reads them. */
+  private hold(chunk: Uint8Array, final: boolean): void {
+    if (chunk.length > 0) {
+      this.startBuf = grow(this.startBuf, this.startLen, chunk.length);
+      this.startBuf.set(chunk, this.startLen);
+      this.startLen += chunk.length;
+    }
+    const b = this.startBuf;
+    const n = this.startLen;
+    let ending: "lf" | "cr" | "unknown" = "unknown";
+    let i = this.startScanned;
+    while (i < n && b[i] !== 10 && b[i] !== 13) i++;
+    this.startScanned = i;
+    if (i < n) {
+      if (b[i] === 10) ending = "lf";
+      else if (i + 1 < n) ending = b[i + 1] === 10 ? "lf" : "cr";
+      else if (final) ending = "lf";
+    }
+    const decided = final || n > MAX_LINE_BYTES + 1 || (n >= KIND_PROBE_BYTES && ending !== "unknown");
+    if (!decided) return;
+    const kind = nonTextKind(b.subarray(0, Math.min(n, KIND_PROBE_BYTES)));
+    if (kind) throw new LogFormatError(kind);
+    this.crOnly = ending === "cr";
+    this.started = true;
+    const held = b.subarray(0, n);
+    this.startBuf = new Uint8Array(0);
+    this.startLen = 0;
+    this.feed(held);
+  }
+
+  /** Frames bytes into lines: whole lines are read at once, the unfinished tail is carried. */
+  private feed(input: Uint8Array): void {
+    let chunk = input;
+    if (this.crOnly) {
+      chunk = new Uint8Array(input.length);
+      for (let i = 0; i < input.length; i++) {
+        const c = input[i] as number;
+        chunk[i] = c === 13 ? 10 : c;
+      }
+    }
     let pos = 0;
-    if (this.carry) {
+    if (this.carryLen > 0) {
       const nl = chunk.indexOf(10);
       if (nl < 0) {
-        this.carry = concat(this.carry, chunk);
-        this.checkCarry();
+        this.appendCarry(chunk);
         return;
       }
-      const joined = concat(this.carry, chunk.subarray(0, nl + 1));
-      this.carry = null;
-      this.lines(joined, 0, joined.length);
+      this.appendCarry(chunk.subarray(0, nl + 1));
+      const joined = this.carry.subarray(0, this.carryLen);
+      this.carryLen = 0;
+      this.checkedLines(joined, 0, joined.length);
+      if (this.head) return;
       pos = nl + 1;
     }
     const lastNl = chunk.lastIndexOf(10);
     if (lastNl < pos) {
-      this.carry = chunk.slice(pos);
-      this.checkCarry();
+      this.appendCarry(chunk.subarray(pos));
       return;
     }
-    this.lines(chunk, pos, lastNl + 1);
-    if (lastNl + 1 < chunk.length) {
-      this.carry = chunk.slice(lastNl + 1);
-      this.checkCarry();
+    this.checkedLines(chunk, pos, lastNl + 1);
+    if (lastNl + 1 < chunk.length && !this.head) this.appendCarry(chunk.subarray(lastNl + 1));
+  }
+
+  private appendCarry(part: Uint8Array): void {
+    this.carry = grow(this.carry, this.carryLen, part.length);
+    this.carry.set(part, this.carryLen);
+    this.carryLen += part.length;
+    // A line still open is too long once it holds more than the limit (a CR may belong to its CRLF).
+    const open = this.carry[this.carryLen - 1] === 10 ? this.carryLen - 1 : this.carryLen;
+    const body = open > 0 && this.carry[open - 1] === 13 ? open - 1 : open;
+    if (body > MAX_LINE_BYTES) throw this.longLine(this.line + 1);
+  }
+
+  /** A line that never ends is not a CSV log (binary data, or a file with no newlines). */
+  private longLine(line: number): LogFormatError {
+    const what = this.layout ? "this is not a row of numbers" : "this does not look like a CSV log";
+    return new LogFormatError(`the line is longer than ${MAX_LINE_BYTES / 1024} KiB: ${what}`, { line });
+  }
+
+  /**
+   * Complete lines in bytes[start, end): lines before the first one over the length limit are read,
+   * then that one is refused, so the outcome is the same as when the file arrives in small pieces.
+   */
+  private checkedLines(bytes: Uint8Array, start: number, end: number): void {
+    const long = end - start > MAX_LINE_BYTES ? firstLongLine(bytes, start, end) : -1;
+    if (long < 0) {
+      this.lines(bytes, start, end);
+      return;
+    }
+    this.lines(bytes, start, long);
+    if (!this.head) throw this.longLine(this.line + 1);
+  }
+
+  /** The end of the input: held bytes are read, and a last line without a line ending too. */
+  private endOfInput(): void {
+    if (!this.started) this.hold(new Uint8Array(0), true);
+    if (this.carryLen > 0 && !this.head) {
+      const last = new Uint8Array(this.carryLen + 1);
+      last.set(this.carry.subarray(0, this.carryLen));
+      last[this.carryLen] = 10;
+      this.carryLen = 0;
+      this.lines(last, 0, last.length);
     }
   }
 
+  /** In head mode, at the end of the input: the head, or the reader's error for a file without one. */
+  finishHead(): HeadFound {
+    this.endOfInput();
+    if (this.head) return this.head;
+    this.finish();
+    throw new LogFormatError("no header row was found: after the # metadata lines, the first line must name the columns");
+  }
+
   finish(): ReadSummary {
-    if (this.carry && this.carry.length > 0) {
-      const last = concat(this.carry, new Uint8Array([10]));
-      this.carry = null;
-      this.lines(last, 0, last.length);
-    }
+    this.endOfInput();
     if (this.bytes === 0) throw new LogFormatError("the file is empty");
     if (!this.layout) {
       throw new LogFormatError(
@@ -233,31 +375,36 @@ class LogParser {
       );
     }
     if (this.dataRows === 0) throw new LogFormatError("the header is there but no sample rows follow it");
+    this.checkDamage();
     if (!this.info) this.decideRate();
     this.flush();
     const info = this.info;
     if (!info) throw new LogFormatError("the header is there but no complete sample rows follow it");
-    if (this.dropped > MAX_DROPPED_FRACTION * this.dataRows && this.dropped > 1) {
-      throw new LogFormatError(
-        `${this.dropped} of ${this.dataRows} rows are incomplete (first at line ${this.droppedLines[0] ?? "?"}); the file looks damaged`,
-      );
-    }
     return {
       info,
       samples: this.samples,
       durationS: this.samples / info.sampleRateHz,
       gaps: this.gaps,
+      gapCount: this.gapCount,
       droppedRows: this.dropped,
       droppedLines: this.droppedLines,
       bytes: this.bytes,
     };
   }
 
-  /** A line that never ends is not a CSV log (binary data, or a file with no newlines). */
-  private checkCarry(): void {
-    if (!this.carry || this.carry.length <= MAX_PREAMBLE_LINE) return;
-    const what = this.layout ? "this is not a row of numbers" : "this does not look like a CSV log";
-    throw new LogFormatError(`line ${this.line + 1} is longer than ${MAX_PREAMBLE_LINE / 1024} KiB: ${what}`);
+  /** More than 5 % damaged rows rejects the file; rows with extra cells are told apart. */
+  private checkDamage(): void {
+    if (!(this.dropped > MAX_DROPPED_FRACTION * this.dataRows && this.dropped > 1)) return;
+    const header = this.layout?.headers.length ?? 0;
+    if (this.firstWide && this.wideRows * 2 >= this.dropped) {
+      throw new LogFormatError(
+        `this row has ${this.firstWide.cells} cells but the header names ${header} columns, and so do ${this.wideRows} of ${this.dataRows} rows: the numbers probably use decimal commas (12,5) or thousands separators (21,050); write them as 12.5 and 21050`,
+        { line: this.firstWide.line },
+      );
+    }
+    throw new LogFormatError(
+      `${this.dropped} of ${this.dataRows} rows were dropped as damaged (an empty or missing cell, a cell count other than the header's, or a repeated time stamp; first at line ${this.droppedLines[0] ?? "?"}); the file looks damaged`,
+    );
   }
 
   /** Complete lines in bytes[start, end); bytes[end-1] is a newline. */
@@ -267,13 +414,14 @@ class LogParser {
       this.line++;
       pos = this.row(bytes, pos, end);
     }
-    while (pos < end) {
+    while (pos < end && !this.head) {
       let eol = bytes.indexOf(10, pos);
       if (eol < 0 || eol >= end) eol = end;
       this.line++;
       let lineEnd = eol;
       if (lineEnd > pos && bytes[lineEnd - 1] === 13) lineEnd--;
       this.preambleLine(bytes, pos, lineEnd);
+      this.preambleBytes += eol + 1 - pos;
       pos = eol + 1;
       // The header was found: the rest are rows.
       while (pos < end && this.layout) {
@@ -284,6 +432,12 @@ class LogParser {
   }
 
   private preambleLine(bytes: Uint8Array, start: number, end: number): void {
+    if (this.preambleBytes >= MAX_PREAMBLE_BYTES) {
+      throw new LogFormatError(
+        `no header row in the first ${formatBytes(MAX_PREAMBLE_BYTES)}: after the # metadata lines, the first line must name the columns`,
+        { line: this.line },
+      );
+    }
     for (let i = start; i < end; i++) {
       const b = bytes[i] ?? 0;
       if (b === 0 || (b < 0x20 && b !== 0x09)) {
@@ -299,20 +453,24 @@ class LogParser {
     const trimmed = text.trim();
     if (trimmed === "") return;
     if (trimmed.startsWith("#")) {
-      const m = /^#\s*([A-Za-z0-9_.-]+)\s*:\s*(.*)$/.exec(trimmed);
-      if (m?.[1] !== undefined) this.metadata[m[1].toLowerCase()] = (m[2] ?? "").trim();
+      const entry = metadataEntry(trimmed);
+      if (entry) this.metadata[entry[0]] = entry[1];
       return;
     }
     this.header(text);
   }
 
   private header(text: string): void {
-    const headers = text.split(",").map((h) => h.trim().replace(/^"(.*)"$/, "$1"));
+    const headers = splitHeader(text);
     if (headers.every((h) => h !== "" && Number.isFinite(Number(h)))) {
       throw new LogFormatError(
         "the first line holds numbers, not column names: add a header row such as time_us,gyro_roll,gyro_pitch,gyro_yaw",
         { line: this.line },
       );
+    }
+    if (this.headOnly) {
+      this.head = { metadata: this.metadata, headers, line: this.line };
+      return;
     }
     let map = this.options.map;
     if (!map) {
@@ -322,7 +480,7 @@ class LogParser {
         if (proposal.missing.length > 0 || this.options.allowGuess === false) {
           const need = proposal.missing.length > 0 ? proposal.missing.join(", ") : "time, roll, pitch, yaw";
           throw new LogFormatError(
-            `no column for ${need}: name the columns time_us, gyro_roll, gyro_pitch, gyro_yaw, or give a column map`,
+            `no column for ${need}: name the columns time_us, gyro_roll, gyro_pitch, gyro_yaw, or give a column map${separatorHint(text)}`,
             { line: this.line },
           );
         }
@@ -333,12 +491,16 @@ class LogParser {
     checkMap(map);
     this.layout = makeLayout(headers, map, this.line);
     const slots = this.layout.slots;
-    this.raw = Array.from({ length: slots }, () => new Float64Array(Math.max(this.blockRows, PROBE_ROWS)));
-    this.rawLines = new Int32Array(Math.max(this.blockRows, PROBE_ROWS));
+    const size = Math.max(this.blockRows, PROBE_ROWS);
+    this.raw = Array.from({ length: slots }, () => new Float64Array(size));
+    this.rawLines = new Int32Array(size);
+    this.rawMissed = new Int32Array(size);
   }
 
-  private drop(line: number): void {
+  /** A damaged row: incomplete, an empty cell, or a cell count other than the header's. */
+  private drop(line: number, damaged: boolean): void {
     this.dropped++;
+    if (damaged) this.missedSince++;
     if (this.droppedLines.length < 10) this.droppedLines.push(line);
   }
 
@@ -415,28 +577,42 @@ class LogParser {
       b = bytes[++i] as number; // past the comma
     }
     const next = i + 1;
+    if (column !== columns) {
+      // Cells shifted: with more cells than columns, numbers were most likely written with commas.
+      if (column > columns) {
+        this.wideRows++;
+        this.firstWide ??= { line: this.line, cells: column };
+      }
+      this.drop(this.line, true);
+      return next;
+    }
     if (empty || filled < layout.slots) {
-      this.drop(this.line);
+      this.drop(this.line, true);
       return next;
     }
     const t = (raw[layout.time] as Float64Array)[r] ?? 0;
-    const time = t * layout.timeScale;
+    // The first stamp is subtracted before scaling: Unix-epoch µs stamps (≈ 1.8e15) stay exact
+    // integers that way, while scaled first they would lose the digits of the step.
+    if (Number.isNaN(this.rawFirstTime)) this.rawFirstTime = t;
+    const time = (t - this.rawFirstTime) * layout.timeScale;
     if (time < this.lastTime) {
+      const col = slotColumn(layout, layout.time) ?? 0;
       throw new LogFormatError(
         `time goes backwards (${formatSeconds(time)} after ${formatSeconds(this.lastTime)}); logs must be in time order`,
-        { line: this.line, column: (slotColumn(layout, layout.time) ?? 0) + 1, columnName: layout.headers[slotColumn(layout, layout.time) ?? 0] },
+        { line: this.line, column: col + 1, columnName: layout.headers[col] },
       );
     }
     if (time === this.lastTime) {
-      this.drop(this.line);
+      this.drop(this.line, false);
       return next;
     }
-    if (Number.isNaN(this.firstTime)) this.firstTime = time;
     this.lastTime = time;
-    (raw[layout.time] as Float64Array)[r] = time - this.firstTime;
+    (raw[layout.time] as Float64Array)[r] = time;
     this.rawLines[r] = this.line;
     this.rawCount++;
     if (!this.info) {
+      this.rawMissed[r] = this.missedSince;
+      this.missedSince = 0;
       if (this.rawCount >= PROBE_ROWS) {
         this.decideRate();
         this.flush();
@@ -460,17 +636,15 @@ class LogParser {
     );
   }
 
-  /** Median time step of the probe rows gives the sample rate; the throttle scale is read too. */
+  /** The sample rate from a line fit of the first rows' time stamps; the throttle scale is read too. */
   private decideRate(): void {
     const layout = this.layout as Layout;
     const n = this.rawCount;
     if (n < 2) throw new LogFormatError("fewer than two complete sample rows: no sample rate can be told");
-    const time = this.raw[layout.time] as Float64Array;
-    const steps = new Float64Array(n - 1);
-    for (let i = 1; i < n; i++) steps[i - 1] = (time[i] ?? 0) - (time[i - 1] ?? 0);
-    steps.sort();
-    const median = steps[(n - 1) >> 1] ?? 0;
-    const rate = 1 / median;
+    const time = (this.raw[layout.time] as Float64Array).subarray(0, n);
+    const period = fitSamplePeriod(time, this.rawMissed.subarray(0, n));
+    // Rounded to 9 significant digits, far finer than 4096 stamps resolve: exact rates stay exact.
+    const rate = Number((1 / period).toPrecision(9));
     if (!(rate >= MIN_SAMPLE_RATE_HZ && rate <= MAX_SAMPLE_RATE_HZ)) {
       const col = slotColumn(layout, layout.time) ?? 0;
       throw new LogFormatError(
@@ -478,7 +652,7 @@ class LogParser {
         { column: col + 1, columnName: layout.headers[col] },
       );
     }
-    this.medianStep = median;
+    this.period = 1 / rate;
     if (layout.throttle >= 0 && layout.throttleUnit === "auto") {
       const thr = (this.raw[layout.throttle] as Float64Array).subarray(0, n);
       let max = -Infinity;
@@ -523,7 +697,7 @@ class LogParser {
     const out = this.outputBlock(info);
     const raw = this.raw;
     const time = raw[layout.time] as Float64Array;
-    const limit = GAP_FACTOR * this.medianStep;
+    const limit = GAP_FACTOR * this.period;
     const throttleScale = throttleConversion(layout.throttleUnit);
     let start = 0;
     for (let i = 0; i <= n; i++) {
@@ -571,7 +745,8 @@ class LogParser {
 
   private emitGap(before: number, after: number, line: number): void {
     const gap: Gap = { line, atS: round(before, 6), lengthS: round(after - before, 6) };
-    this.gaps.push(gap);
+    this.gapCount++;
+    if (this.gaps.length < MAX_LISTED_GAPS) this.gaps.push(gap);
     this.sink.gap(gap);
   }
 
@@ -590,6 +765,89 @@ class LogParser {
     };
     return this.out;
   }
+}
+
+/**
+ * The sample period (s) from time stamps (s, from the first row), by least squares: the stamps are
+ * cut into runs at gaps (steps over GAP_FACTOR median steps), and one line slope is fitted to all
+ * runs at once, each run with its own intercept (the pooled within-run regression of time on sample
+ * number). A least-squares slope over n stamps averages their jitter down by about n^1.5, where the
+ * median step keeps the jitter and, on integer-µs stamps, the rounding of one step. Sample numbers
+ * advance by one per row, and also over damaged rows that left a hole (a step of about two periods).
+ */
+export function fitSamplePeriod(timeS: Float64Array, missedBefore: Int32Array): number {
+  const n = timeS.length;
+  const steps = new Float64Array(n - 1);
+  for (let i = 1; i < n; i++) steps[i - 1] = (timeS[i] ?? 0) - (timeS[i - 1] ?? 0);
+  steps.sort();
+  const median = steps[(n - 2) >> 1] ?? 0;
+  if (!(median > 0)) return median;
+  const limit = GAP_FACTOR * median;
+  let sxx = 0;
+  let sxy = 0;
+  // Per run: sums of x, y, x², xy relative to the run's first point, to keep the sums small.
+  let count = 0;
+  let sx = 0;
+  let sy = 0;
+  let sxxRun = 0;
+  let sxyRun = 0;
+  let x = 0;
+  let x0 = 0;
+  let y0 = 0;
+  const closeRun = () => {
+    if (count > 1) {
+      sxx += sxxRun - (sx * sx) / count;
+      sxy += sxyRun - (sx * sy) / count;
+    }
+  };
+  for (let i = 0; i < n; i++) {
+    const t = timeS[i] ?? 0;
+    const step = i > 0 ? t - (timeS[i - 1] ?? 0) : Infinity;
+    if (step > limit) {
+      closeRun();
+      count = 0;
+      sx = sy = sxxRun = sxyRun = 0;
+      x = 0;
+      x0 = 0;
+      y0 = t;
+    } else {
+      const holes = Math.min(missedBefore[i] ?? 0, Math.max(0, Math.round(step / median) - 1));
+      x += 1 + holes;
+    }
+    const dx = x - x0;
+    const dy = t - y0;
+    count++;
+    sx += dx;
+    sy += dy;
+    sxxRun += dx * dx;
+    sxyRun += dx * dy;
+  }
+  closeRun();
+  return sxx > 0 ? sxy / sxx : median;
+}
+
+/** Start of the first line in bytes[start, end) longer than MAX_LINE_BYTES (line ending excluded), or -1. */
+function firstLongLine(bytes: Uint8Array, start: number, end: number): number {
+  // Any line longer than the limit covers a whole window of half the limit aligned at multiples of
+  // it, so looking for a newline from each window start finds every candidate in a few searches.
+  const half = MAX_LINE_BYTES >> 1;
+  for (let w = start; w < end; w += half) {
+    const nl = bytes.indexOf(10, w);
+    const stop = nl < 0 || nl >= end ? end : nl;
+    if (stop - w < half) continue;
+    const lineStart = w === start ? start : Math.max(start, bytes.lastIndexOf(10, w - 1) + 1);
+    const body = stop > lineStart && bytes[stop - 1] === 13 ? stop - 1 - lineStart : stop - lineStart;
+    if (body > MAX_LINE_BYTES) return lineStart;
+  }
+  return -1;
+}
+
+/** A buffer with room for `more` bytes after its first `used`, grown by doubling. */
+function grow(buf: Uint8Array, used: number, more: number): Uint8Array {
+  if (used + more <= buf.length) return buf;
+  const out = new Uint8Array(Math.max(used + more, buf.length * 2, 4096));
+  out.set(buf.subarray(0, used));
+  return out;
 }
 
 function makeLayout(headers: string[], map: ColumnMap, line: number): Layout {

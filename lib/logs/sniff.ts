@@ -1,31 +1,65 @@
 import { canonicalMap, proposeColumnMap, type MapProposal } from "./columns";
+import { LogReader, nextChunk, type LogSink } from "./read-log";
 
 /**
- * What the first few kilobytes of a log say: its # metadata and its header. Used before an import
- * (in the browser and on the server) to match the file to an airframe and to check its columns.
+ * What the head of a log says: its # metadata and its header. Used before an import (in the browser
+ * and on the server) to match the file to an airframe and to check its columns. It is read by the
+ * log reader itself in head mode, so the rules are the reader's: what kind of file it is, line
+ * endings, the line-length limit and how far in the header may start (lib/logs/preamble.ts).
  */
 export interface LogHead {
   metadata: Record<string, string>;
   headers: string[];
+  /** 1-based line of the header row. */
+  line: number;
   /** The proposal for these headers (empty guesses for canonical files). */
   proposal: MapProposal;
   canonical: boolean;
 }
 
-export function sniffLogHead(text: string): LogHead | null {
-  const metadata: Record<string, string> = {};
-  for (const rawLine of text.replace(/^\uFEFF/, "").split(/\r?\n/)) {
-    const line = rawLine.trim();
-    if (line === "") continue;
-    if (line.startsWith("#")) {
-      const m = /^#\s*([A-Za-z0-9_.-]+)\s*:\s*(.*)$/.exec(line);
-      if (m?.[1] !== undefined) metadata[m[1].toLowerCase()] = (m[2] ?? "").trim();
-      continue;
+const NO_ROWS: LogSink = { begin: () => undefined, block: () => undefined, gap: () => undefined };
+
+/**
+ * Reads a log's head from a byte stream and stops at the header row (the rest of the stream is not
+ * read; the iterator is closed). Throws LogFormatError with the reader's sentence when there is no
+ * header (an empty file, only metadata, a compressed, binary or UTF-16 file, a line over the limit,
+ * no header within the first 4 MiB) and LimitExceededError over `maxBytes`.
+ */
+export async function readLogHead(source: AsyncIterable<Uint8Array>, options: { maxBytes?: number } = {}): Promise<LogHead> {
+  const reader = new LogReader(NO_ROWS, options, true);
+  const chunks = source[Symbol.asyncIterator]();
+  try {
+    for (;;) {
+      const next = await nextChunk(chunks);
+      if (next.done) break;
+      reader.push(next.value);
+      if (reader.head) break;
     }
-    const headers = line.split(",").map((h) => h.trim().replace(/^"(.*)"$/, "$1"));
-    return { metadata, headers, proposal: proposeColumnMap(headers), canonical: canonicalMap(headers) !== undefined };
+  } finally {
+    await chunks.return?.();
   }
-  return null;
+  return headOf(reader);
+}
+
+function headOf(reader: LogReader): LogHead {
+  // At the end of the input this throws the reader's own sentence for a file without a header.
+  const { metadata, headers, line } = reader.head ?? reader.finishHead();
+  return { metadata, headers, line, proposal: proposeColumnMap(headers), canonical: canonicalMap(headers) !== undefined };
+}
+
+/**
+ * The head of a log from its first bytes as text (a slice of a file in the browser), or null when
+ * the header row is not in this text or the text is not a readable log head.
+ */
+export function sniffLogHead(text: string): LogHead | null {
+  const reader = new LogReader(NO_ROWS, {}, true);
+  try {
+    reader.push(new TextEncoder().encode(text));
+    reader.settle();
+    return reader.head ? headOf(reader) : null;
+  } catch {
+    return null;
+  }
 }
 
 /**

@@ -2,7 +2,7 @@ import "server-only";
 import { DEFAULT_ANALYSIS, throttleBandLabel } from "@/lib/analysis/settings";
 import type { LogAnalysis } from "@/lib/analysis/types";
 import type { Baseline } from "@/lib/health/baseline";
-import { buildFleetReference, judgeAgainstFleet, memberFromBaseline, memberFromLog, OUTLIER_Z, type FleetMember } from "@/lib/health/fleet-reference";
+import { buildFleetReference, judgeAgainstFleet, memberFromBaseline, memberFromLog, OUTLIER_Z, type FleetMember, type FleetNote, type FleetReference } from "@/lib/health/fleet-reference";
 import type { Status } from "@/lib/health/thresholds";
 import type { Actor } from "@/lib/roles";
 import { db } from "./db";
@@ -54,7 +54,55 @@ export const BAND_WORDS = {
  * against them. The reference each is judged by leaves it out. Grounded airframes do not count
  * towards a reference (they are known not to be healthy).
  */
-export async function fleetPlacement(actor: Actor) {
+export interface AirframePlacement {
+  airframeId: string;
+  name: string;
+  design: string;
+  /** What was judged against the fleet: the airframe's baseline, its latest log (no baseline), or nothing. */
+  judged: "baseline" | "log" | null;
+  logId: string | null;
+  /** The design's reference without this airframe. */
+  reference: FleetReference;
+  notes: FleetNote[];
+}
+
+export interface FleetPlacement {
+  placements: AirframePlacement[];
+  /** Each design's reference over all its healthy airframes (for the fleet screen). */
+  designs: FleetReference[];
+}
+
+export async function fleetPlacement(actor: Actor): Promise<FleetPlacement> {
+  // The placement parses every active baseline of the team: keep the last one per team and
+  // reuse it while nothing it rests on has changed (the queue asks for it on every refresh).
+  const fingerprint = await placementFingerprint(actor);
+  const cached = placementCache.get(actor.teamId);
+  if (cached && cached.fingerprint === fingerprint) return cached.value;
+  const value = await computePlacement(actor);
+  placementCache.set(actor.teamId, { fingerprint, value });
+  return value;
+}
+
+const placementCache = ((globalThis as unknown as { heatcheckFleetCache?: Map<string, { fingerprint: string; value: FleetPlacement }> }).heatcheckFleetCache ??= new Map());
+
+/** What the placement depends on, read cheaply: airframes, their state and design, active baselines, latest analysed logs. */
+async function placementFingerprint(actor: Actor): Promise<string> {
+  const rows = await db.airframe.findMany({
+    where: { teamId: actor.teamId, retired: false },
+    orderBy: { id: "asc" },
+    select: {
+      id: true,
+      name: true,
+      frameDesign: true,
+      status: true,
+      baselines: { where: { active: true }, orderBy: { createdAt: "desc" }, take: 1, select: { id: true } },
+      logs: { where: { status: "analysed" }, orderBy: { flownAt: "desc" }, take: 1, select: { id: true } },
+    },
+  });
+  return rows.map((r) => [r.id, r.name, r.frameDesign, r.status, r.baselines[0]?.id ?? "", r.logs[0]?.id ?? ""].join("|")).join(";");
+}
+
+async function computePlacement(actor: Actor): Promise<FleetPlacement> {
   const airframes = await db.airframe.findMany({
     where: { teamId: actor.teamId, retired: false },
     orderBy: { name: "asc" },
@@ -80,7 +128,8 @@ export async function fleetPlacement(actor: Actor) {
     const reference = buildFleetReference(airframe.frameDesign, members.get(airframe.frameDesign) ?? [], airframe.id);
     const subject = fromBaseline ?? fromLog;
     const notes = subject ? judgeAgainstFleet(reference, subject, { what: fromBaseline ? "baseline" : "log", ...BAND_WORDS }) : [];
-    return { airframeId: airframe.id, name: airframe.name, design: airframe.frameDesign, judged: fromBaseline ? ("baseline" as const) : fromLog ? ("log" as const) : null, logId, reference, notes };
+    const placement: AirframePlacement = { airframeId: airframe.id, name: airframe.name, design: airframe.frameDesign, judged: fromBaseline ? "baseline" : fromLog && reference.enough ? "log" : null, logId, reference, notes };
+    return placement;
   });
   const designs = [...new Set(airframes.map((a) => a.frameDesign))].map((design) => buildFleetReference(design, members.get(design) ?? []));
   return { placements, designs };

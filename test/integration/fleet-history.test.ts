@@ -57,7 +57,7 @@ describe("the fleet as its own reference", () => {
     // The generator lowers the pitch bending mode by the crack; the reference is the other four.
     expect(note?.axis).toBe("pitch");
     expect(note?.deviationPct ?? 0).toBeLessThan(-3);
-    expect(note?.text).toMatch(/^F-5's baseline pitch mode at \d+ Hz sits [\d.]+ % below the fleet's median for test frame \(over 4 airframes\)/);
+    expect(note?.text).toMatch(/^F-5's baseline pitch mode at \d+ Hz sits [\d.]+ % below the median of 4 sister airframes of test frame \(\d+ Hz\)/);
     expect(flagged[0]?.reference.airframes).toBe(4);
   });
 

@@ -3,9 +3,11 @@ import { analyzeLog, bytesSource } from "@/lib/analysis/analyze-log";
 import { demoCsv } from "@/lib/demo/demo-csv";
 import { mulberry32 } from "@/lib/demo/random";
 import { DomainError, LimitExceededError, LogFormatError } from "@/lib/errors";
-import { parseColumnMap, proposeColumnMap } from "@/lib/logs/columns";
+import { parseColumnMap, proposeColumnMap, type ColumnMap } from "@/lib/logs/columns";
 import { parseDecimal } from "@/lib/logs/parse-number";
-import { readLog, type LogInfo, type SampleBlock } from "@/lib/logs/read-log";
+import { MAX_LINE_BYTES } from "@/lib/logs/preamble";
+import { fitSamplePeriod, readLog, type LogInfo, type SampleBlock } from "@/lib/logs/read-log";
+import { readLogHead, sniffLogHead } from "@/lib/logs/sniff";
 
 const enc = new TextEncoder();
 
@@ -109,14 +111,20 @@ describe("reading a canonical log", () => {
     expect(r.rpm1[0]).toBeCloseTo(18000, 9); // 300 Hz → 18 000 rev/min
   });
 
-  it("proposes a map from header words and says what it guessed", () => {
-    const p = proposeColumnMap(["loopIteration", "time (us)", "gyroADC[0]", "gyroADC[1]", "gyroADC[2]", "rcCommand[3]", "throttle", "motor[0] rpm", "motor[1] rpm"]);
+  it("proposes a map from header words and says what it guessed (indexed axes, 0-based motors, a loop counter)", () => {
+    // Invented header names with the shapes foreign logs use: an index in brackets per axis, motors
+    // counted from 0, a loop counter beside the time column, a stick command that is not a gyro.
+    const p = proposeColumnMap(["cycle", "elapsed time [us]", "gyr_filt[0]", "gyr_filt[1]", "gyr_filt[2]", "stick_cmd[3]", "throttle", "motor[0] rpm", "motor[1] rpm"]);
     expect(p.missing).toEqual([]);
     const keys = Object.fromEntries(p.map.map((b) => [b.header, b.channel]));
-    expect(keys["time (us)"]).toEqual({ kind: "time", unit: "us" });
-    expect(keys["gyroADC[0]"]).toMatchObject({ kind: "gyro", axis: "roll" });
-    expect(keys["gyroADC[2]"]).toMatchObject({ kind: "gyro", axis: "yaw" });
+    expect(keys["elapsed time [us]"]).toEqual({ kind: "time", unit: "us" });
+    expect(keys["gyr_filt[0]"]).toMatchObject({ kind: "gyro", axis: "roll" });
+    expect(keys["gyr_filt[1]"]).toMatchObject({ kind: "gyro", axis: "pitch" });
+    expect(keys["gyr_filt[2]"]).toMatchObject({ kind: "gyro", axis: "yaw" });
     expect(keys["motor[0] rpm"]).toMatchObject({ kind: "rpm", motor: 1 });
+    expect(keys["motor[1] rpm"]).toMatchObject({ kind: "rpm", motor: 2 });
+    expect(keys.cycle).toBeUndefined();
+    expect(keys["stick_cmd[3]"]).toBeUndefined();
     expect(p.guesses.some((g) => g.includes("numbered from 0"))).toBe(true);
   });
 
@@ -132,6 +140,7 @@ describe("reading a canonical log", () => {
     expect(() => parseColumnMap("time=T|minutes,roll=R,pitch=P,yaw=Y")).toThrow(/unit "minutes" is not known for time/);
     expect(() => parseColumnMap("roll=R,pitch=P,yaw=Y")).toThrow(/needs a column for time/);
     expect(() => parseColumnMap("time=T,roll=R,pitch=P,yaw=Y,roll=Q")).toThrow(/binds roll twice/);
+    expect(() => parseColumnMap("time=T,roll=R,pitch=R,yaw=Y")).toThrow(/binds the column "R" twice \(to roll and to pitch\)/);
     expect(() => parseColumnMap("speed=S")).toThrow(/"speed" is not a channel/);
   });
 });
@@ -173,7 +182,7 @@ describe("bad input gets a clear message naming line and column", () => {
   it("a file with many incomplete rows is called damaged", async () => {
     const text = canonical(2000).replace(/,20000\n/g, (m, offset: number) => (offset % 3 === 0 ? ",\n" : m));
     const e = await failure(text);
-    expect(e.message).toMatch(/rows are incomplete .* the file looks damaged/);
+    expect(e.message).toMatch(/rows were dropped as damaged .* the file looks damaged/);
   });
 });
 
@@ -232,3 +241,113 @@ async function expectCleanOutcome(bytes: Uint8Array): Promise<void> {
     expect((e as Error).message).not.toMatch(/\bat .*\.ts:\d+/);
   }
 }
+
+describe("sample rate from a line fit of the time stamps", () => {
+  const rowsAt = (stamps: string[]) => "time_us,gyro_roll,gyro_pitch,gyro_yaw\n" + stamps.map((t) => `${t},1,2,3\n`).join("");
+  it("exactly 50 kHz (20 µs steps) is accepted and read as 50000 Hz", async () => {
+    const r = await collect(rowsAt(Array.from({ length: 5000 }, (_, k) => String(k * 20))));
+    expect(r.info?.sampleRateHz).toBe(50_000);
+  });
+  it("Unix-epoch µs stamps give the exact rate (the first stamp is subtracted before scaling)", async () => {
+    // 1.76e15 µs is 2026 in Unix time; scaled to seconds first, such a stamp keeps only ~0.24 µs.
+    const r = await collect(rowsAt(Array.from({ length: 5000 }, (_, k) => String(1_764_338_700_000_000 + k * 250))));
+    expect(r.info?.sampleRateHz).toBe(4000);
+    expect(r.time[4999]).toBeCloseTo(4999 * 250e-6, 12);
+  });
+  it("heavy jitter on integer-µs stamps: within 2e-5, where the median step is 0.4 % off", () => {
+    // Ordinary least squares: the slope's standard error is σ·√(12/n³) for n equally spaced points
+    // with independent errors of standard deviation σ; here σ = 80/√12 µs, n = 4096, step 124.5 µs,
+    // so about 2.5e-6 relative; the tolerance 2e-5 is 8 of them.
+    const rand = mulberry32(5);
+    const n = 4096;
+    const step = 124.5;
+    const t = new Float64Array(n).map((_, k) => Math.round(k * step + (rand() - 0.5) * 80) * 1e-6);
+    t.forEach((v, k) => (t[k] = v - (t[0] ?? 0)));
+    const period = fitSamplePeriod(t, new Int32Array(n));
+    expect(Math.abs(period / (step * 1e-6) - 1)).toBeLessThan(2e-5);
+    const steps = Array.from({ length: n - 1 }, (_, k) => (t[k + 1] ?? 0) - (t[k] ?? 0)).sort((a, b) => a - b);
+    const median = steps[(n - 2) >> 1] ?? 0;
+    expect(Math.abs(median / (step * 1e-6) - 1)).toBeGreaterThan(3e-3); // the method it replaces
+  });
+  it("runs between gaps share one slope; damaged rows that left a hole count as missing samples", () => {
+    const t: number[] = [];
+    const missed: number[] = [];
+    for (let k = 0; k < 3000; k++) {
+      if (k % 100 === 50) continue; // a damaged row: the sample is missing
+      t.push((k < 1500 ? k : k + 400) * 500e-6); // and a 0.2 s gap in the middle
+      missed.push(k % 100 === 51 ? 1 : 0);
+    }
+    expect(fitSamplePeriod(Float64Array.from(t), Int32Array.from(missed))).toBeCloseTo(500e-6, 15);
+  });
+});
+
+describe("one line and header rule, whatever the chunk sizes", () => {
+  const rows = Array.from({ length: 3000 }, (_, k) => `${k * 500},1,2,3\n`).join("");
+  const withHeader = (header: string) => enc.encode(header + "\n" + rows);
+  it("a 100 KB header line is read with 1 MiB, 32 KiB and 1000-byte reads alike", async () => {
+    const header = "time_us,gyro_roll,gyro_pitch,gyro_yaw" + ",x".repeat(50_000);
+    // Rows carry the same 50,004 cells as the header (empty ones), else they would be damaged.
+    const text = enc.encode(header + "\n" + Array.from({ length: 200 }, (_, k) => `${k * 500},1,2,3${",".repeat(50_000)}\n`).join(""));
+    for (const chunk of [1 << 20, 32 * 1024, 1000]) {
+      const r = await collect(text, {}, chunk);
+      expect(r.summary.samples).toBe(200);
+    }
+  });
+  it("a line of MAX_LINE_BYTES is read, one byte more is refused, at any chunk size", async () => {
+    for (const chunk of [1 << 21, 1 << 20, 4096, 777]) {
+      const ok = await collect(enc.encode(`#${"n".repeat(MAX_LINE_BYTES - 1)}\n` + "time_us,gyro_roll,gyro_pitch,gyro_yaw\n" + rows), {}, chunk);
+      expect(ok.summary.samples).toBe(3000);
+      const e = await failure(enc.encode(`#${"n".repeat(MAX_LINE_BYTES)}\r\n` + "time_us,gyro_roll,gyro_pitch,gyro_yaw\n" + rows));
+      expect(e.message).toBe("line 1: the line is longer than 1024 KiB: this does not look like a CSV log");
+    }
+  });
+  it("the head reader finds the header after 10,000 metadata lines or a 70 KB note, like the reader", async () => {
+    const meta = Array.from({ length: 10_000 }, (_, i) => `# k${i}: v`).join("\n") + `\n# note: ${"n".repeat(70_000)}\n`;
+    const bytes = enc.encode(meta + "time_us,gyro_roll,gyro_pitch,gyro_yaw\n" + rows);
+    const head = await readLogHead(bytesSource(bytes, 32 * 1024));
+    expect(head).toMatchObject({ line: 10_002, headers: ["time_us", "gyro_roll", "gyro_pitch", "gyro_yaw"], canonical: true });
+    expect(head.metadata.note?.length).toBe(70_000);
+    expect((await collect(bytes, {}, 32 * 1024)).summary.samples).toBe(3000);
+    expect(sniffLogHead(new TextDecoder().decode(bytes))?.line).toBe(10_002);
+  });
+  it("CR-only line endings are read; CRLF stays CRLF", async () => {
+    expect((await collect(withHeader("time_us,gyro_roll,gyro_pitch,gyro_yaw").map((b) => (b === 10 ? 13 : b)), {}, 100)).summary.samples).toBe(3000);
+    const crlf = new TextDecoder().decode(withHeader("time_us,gyro_roll,gyro_pitch,gyro_yaw")).replace(/\n/g, "\r\n");
+    expect((await collect(crlf, {}, 333)).summary.samples).toBe(3000);
+  });
+});
+
+describe("what a file that is not CSV text is", () => {
+  const log = canonical(100);
+  it("gzip (magic 1f 8b, RFC 1952 §2.3.1), zip (PK 03 04, PKWARE APPNOTE 4.3.7) and UTF-16 (byte-order mark, Unicode §23.8) are named", async () => {
+    const { gzipSync } = await import("node:zlib");
+    expect((await failure(new Uint8Array(gzipSync(log)))).message).toMatch(/^the file is gzip-compressed/);
+    expect((await failure(enc.encode("PK\u0003\u0004" + log))).message).toMatch(/^the file is a zip archive/);
+    const le = new Uint8Array(2 + log.length * 2);
+    le.set([0xff, 0xfe]);
+    for (let i = 0; i < log.length; i++) le[2 + 2 * i] = log.charCodeAt(i);
+    expect((await failure(le)).message).toMatch(/^the file is UTF-16 text/);
+    expect((await failure(le.subarray(2))).message).toMatch(/^the file is UTF-16 text/); // no mark
+  });
+});
+
+describe("rows whose cell count differs from the header's", () => {
+  it("are dropped as damaged; consistent extra cells name decimal commas and the line", async () => {
+    const commas = canonical(3000).replace(/\n(\d+),(-?\d+),/g, (_m, t: string, r: string) => `\n${t},${r},5,`);
+    const e = await failure(commas);
+    expect(e).toBeInstanceOf(LogFormatError);
+    expect(e.message).toMatch(/^line 6: this row has 7 cells but the header names 6 columns, and so do 3000 of 3000 rows: the numbers probably use decimal commas \(12,5\) or thousands separators \(21,050\)/);
+    const few = canonical(3000).replace("\n1000,", "\n1000,9,");
+    expect((await collect(few)).summary).toMatchObject({ droppedRows: 1, droppedLines: [7] });
+  });
+  it("a map that binds one column to two keys says which column and keys (also when handed to the reader as an object)", async () => {
+    expect(() => parseColumnMap("time=time_us,roll=gyro_roll,pitch=gyro_roll,yaw=gyro_yaw")).toThrow(/the map binds the column "gyro_roll" twice \(to roll and to pitch\)/);
+    const map: ColumnMap = [
+      { header: "time_us", channel: { kind: "time", unit: "us" } },
+      { header: "gyro_roll", channel: { kind: "gyro", axis: "roll", unit: "deg/s" } },
+      { header: "gyro_roll", channel: { kind: "gyro", axis: "pitch", unit: "deg/s" } },
+      { header: "gyro_yaw", channel: { kind: "gyro", axis: "yaw", unit: "deg/s" } },
+    ];
+    expect((await failure(canonical(3000), { map })).message).toMatch(/the map binds the column "gyro_roll" twice/);
+  });
+});

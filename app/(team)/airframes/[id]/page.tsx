@@ -8,7 +8,9 @@ import { airframeView } from "@/lib/server/airframe-view";
 import { db } from "@/lib/server/db";
 import { requireMember } from "@/lib/server/guard";
 import { orNotFound } from "@/lib/server/pages";
+import { trendView } from "@/lib/server/trend-view";
 import { LogsTable } from "./_components/logs-table";
+import { TrendCharts } from "./_components/trend-charts";
 import { WorkForms } from "./_components/work-forms";
 import { WHEN } from "@/app/_components/dates";
 
@@ -20,6 +22,7 @@ export default async function AirframePage({ params, searchParams }: { params: P
   const wanted = (await searchParams).axis;
   const heatAxis: Axis = AXES.find((a) => a === wanted) ?? "pitch";
   const view = await orNotFound(airframeView(actor, id));
+  const trends = await trendView(view.airframe.id, actor.teamId, view.baseline);
   const { airframe, latest, analysis, baseline } = view;
   const canPilot = roleAtLeast(actor.role, "pilot");
   const canTech = roleAtLeast(actor.role, "tech");
@@ -72,6 +75,16 @@ export default async function AirframePage({ params, searchParams }: { params: P
 
       <h2>Spectrum: latest log against the baseline, at matched throttle</h2>
       <SpectraGrid analysis={analysis} spectra={view.spectra} />
+
+      <h2>Trends against the baseline</h2>
+      {trends ? (
+        <>
+          <p className="muted small">One point per analysed log (newest {trends.rows.length}); dashed lines: watch, inspect and ground thresholds; grey lines: crashes, swaps, inspections and baselines. Click a point to open its log.</p>
+          <TrendCharts rows={trends.rows} modes={trends.modes} events={trends.events} thresholds={trends.thresholds} />
+        </>
+      ) : (
+        <p className="muted">Set a baseline to follow this airframe&apos;s modes and levels over time.</p>
+      )}
 
       <h2>Throttle map</h2>
       <ThrottleMapCard analysis={analysis} axis={heatAxis} href={`/airframes/${airframe.id}`} />

@@ -21,7 +21,7 @@ export function ModeStrips({ design, airframes, enough, strips }: ModeStripsProp
   if (strips.length === 0) return <p className="muted">No mode is shared by enough baselines of {design} yet.</p>;
   const height = strips.length * ROW + 24;
   return (
-    <figure style={{ margin: 0 }}>
+    <figure style={{ margin: 0, maxWidth: 860 }}>
       <svg viewBox={`0 0 ${WIDTH} ${height}`} width="100%" role="img" aria-label={`mode frequencies of the ${design} fleet`} data-testid="mode-strips">
         {strips.map((s, i) => {
           const freqs = [...s.dots.map((d) => d.freqHz), s.loHz, s.hiHz];
@@ -37,6 +37,12 @@ export function ModeStrips({ design, airframes, enough, strips }: ModeStripsProp
               <rect x={x(s.loHz)} y={y - 9} width={Math.max(2, x(s.hiHz) - x(s.loHz))} height={18} fill="#dfe8ea" />
               <line x1={x(s.medianHz)} x2={x(s.medianHz)} y1={y - 11} y2={y + 11} stroke="var(--accent)" strokeWidth={2} />
               <line x1={LEFT} x2={WIDTH - RIGHT} y1={y} y2={y} stroke="var(--line)" />
+              <text x={LEFT} y={y + 20} fontSize={9} fill="var(--muted)">
+                {Math.round(lo)} Hz
+              </text>
+              <text x={WIDTH - RIGHT} y={y + 20} fontSize={9} fill="var(--muted)" textAnchor="end">
+                {Math.round(hi)} Hz
+              </text>
               {s.dots.map((d) =>
                 d.outlier ? (
                   <g key={d.name}>

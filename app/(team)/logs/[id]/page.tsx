@@ -76,7 +76,7 @@ export default async function LogPage({ params, searchParams }: { params: Promis
       </section>
 
       <h2>Spectrum against the baseline, at matched throttle</h2>
-      <SpectraGrid analysis={analysis} spectra={view.spectra} />
+      <SpectraGrid analysis={analysis} spectra={view.spectra} currentLabel="this log" />
 
       <h2>Throttle map</h2>
       <ThrottleMapCard analysis={analysis} axis={axis} href={`/logs/${log.id}`} />
