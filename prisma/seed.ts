@@ -47,6 +47,10 @@ const POSITIONS: { position: string; kind: PartKind; model: string; lifeFlights?
 ];
 
 async function main(): Promise<void> {
+  if (process.env.HEATCHECK_DEMO === "0") {
+    console.log("seed: HEATCHECK_DEMO=0, no demo team (create the first owner with `npm run accounts -- first-owner`)");
+    return;
+  }
   if ((await db.team.count()) > 0) {
     console.log("seed: the database already has a team; nothing to do");
     return;
