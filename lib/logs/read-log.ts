@@ -516,6 +516,7 @@ export class LogReader {
     const r = this.rawCount;
     let filled = 0;
     let empty = false;
+    let extra = false;
     let column = 0;
     let i = start;
     // Hot loop: most cells are plain decimals ("-12.345"), parsed here in one pass over the bytes.
@@ -531,6 +532,8 @@ export class LogReader {
       const slot = column < columns ? (slotOf[column] as number) : -1;
       if (slot < 0) {
         while (b !== 0x2c && b !== 0x0a) b = bytes[++i] as number;
+        // A cell beyond the header's columns that holds something (not just a line's CR) shifts the row.
+        if (column >= columns && i - cellStart > (b === 0x0a && bytes[i - 1] === 0x0d ? 1 : 0)) extra = true;
       } else {
         let negative = false;
         if (b === 0x2d) {
@@ -577,9 +580,10 @@ export class LogReader {
       b = bytes[++i] as number; // past the comma
     }
     const next = i + 1;
-    if (column !== columns) {
+    // Fewer cells, or more that hold something (empty trailing cells are a writer's habit, not a shift).
+    if (column < columns || extra) {
       // Cells shifted: with more cells than columns, numbers were most likely written with commas.
-      if (column > columns) {
+      if (extra) {
         this.wideRows++;
         this.firstWide ??= { line: this.line, cells: column };
       }

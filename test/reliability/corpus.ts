@@ -206,6 +206,8 @@ function generate(): CorpusCase[] {
   );
   accepted("few-empty-cells", "3 % of rows with an empty cell (dropped, under the 5 % rule)", bytesOf(logText({ row: (k, c) => (k % 33 === 5 ? [c[0] ?? "", "", ...c.slice(2)] : null) }).text), { droppedRows: 76, samples: 2424 });
   accepted("few-wide-rows", "2 % of rows with one cell too many (dropped)", bytesOf(logText({ row: (k, c) => (k % 50 === 3 ? [...c, "9"] : null) }).text), { droppedRows: 50, samples: 2450 });
+  accepted("trailing-commas", "every row ends with a comma the header does not have (empty extra cells)", bytesOf(logText({ row: (_k, c) => [...c, ""] }).text), { samples: 2500, droppedRows: 0 });
+  accepted("trailing-commas-crlf", "rows ending with an empty extra cell and CRLF", bytesOf(logText({ row: (_k, c) => [...c, "", ""], eol: "\r\n" }).text), { samples: 2500, droppedRows: 0 });
   accepted("few-short-rows", "2 % of rows with a cell missing (dropped)", bytesOf(logText({ row: (k, c) => (k % 50 === 3 ? c.slice(0, -1) : null) }).text), { droppedRows: 50, samples: 2450 });
   accepted("repeated-stamps", "1 % of rows repeat the previous time stamp (dropped)", bytesOf(logText({ time: (k) => String((k % 100 === 50 ? k - 1 : k) * 500) }).text), { droppedRows: 25, samples: 2475 });
   accepted("truncated-last", "the last row cut off mid-cell", bytesOf(base.text + "1250000,1.5,2"), { droppedRows: 1, samples: 2500 });
