@@ -176,6 +176,11 @@ export class LogReader {
   private readonly headOnly: boolean;
   /** Set in head mode once the header row was read; later bytes are ignored. */
   head: HeadFound | null = null;
+  /**
+   * Set in either mode once the header row was read: an upload that is checked while it streams
+   * can match the airframe from the metadata before the last byte arrives.
+   */
+  headerFound: HeadFound | null = null;
 
   private bytes = 0;
   private line = 0;
@@ -468,8 +473,9 @@ export class LogReader {
         { line: this.line },
       );
     }
+    this.headerFound = { metadata: this.metadata, headers, line: this.line };
     if (this.headOnly) {
-      this.head = { metadata: this.metadata, headers, line: this.line };
+      this.head = this.headerFound;
       return;
     }
     let map = this.options.map;
