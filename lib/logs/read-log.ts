@@ -334,7 +334,7 @@ export class LogReader {
   /** A line that never ends is not a CSV log (binary data, or a file with no newlines). */
   private longLine(line: number): LogFormatError {
     const what = this.layout ? "this is not a row of numbers" : "this does not look like a CSV log";
-    return new LogFormatError(`the line is longer than ${MAX_LINE_BYTES / 1024} KiB: ${what}`, { line });
+    return new LogFormatError(`the line is longer than ${formatBytes(MAX_LINE_BYTES)}: ${what}`, { line });
   }
 
   /**

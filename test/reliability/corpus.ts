@@ -310,12 +310,12 @@ function generate(): CorpusCase[] {
   rejected("missing-column", "strict-no-guess", "foreign headers with a map that misses a header", bytesOf(logText({ header: ["T", "A", "B", "C"], rows: 50 }).text), { sentence: 'the map names a column "Z" for yaw, but the header has no such column', line: 4 }, { map: "time=T,roll=A,pitch=B,yaw=Z" });
 
   // ---- over-long lines ------------------------------------------------------------------------
-  rejected("long-line", "comment-over-limit", "a comment line of 1 MiB + 1 byte", bytesOf(logText({ meta: [...META, `#${"y".repeat(MIB)}`] }).text), { sentence: "the line is longer than 1024 KiB", line: 4 });
-  rejected("long-line", "comment-over-limit-crlf", "a comment line of 1 MiB + 1 byte ending in CRLF", bytesOf(logText({ meta: [...META, `#${"y".repeat(MIB)}`], eol: "\r\n" }).text), { sentence: "the line is longer than 1024 KiB", line: 4 });
-  rejected("long-line", "no-newlines", "1.5 MB without a line ending", bytesOf("a,".repeat(750_000)), { sentence: "the line is longer than 1024 KiB", line: 1 });
-  rejected("long-line", "header-2mib", "a 2 MiB header line", bytesOf(logText({ header: [...CANONICAL, ...Array.from({ length: 200_000 }, (_, i) => `c${i}`)], rows: 5 }).text), { sentence: "the line is longer than 1024 KiB", line: 4 });
+  rejected("long-line", "comment-over-limit", "a comment line of 1 MiB + 1 byte", bytesOf(logText({ meta: [...META, `#${"y".repeat(MIB)}`] }).text), { sentence: "the line is longer than 1 MiB", line: 4 });
+  rejected("long-line", "comment-over-limit-crlf", "a comment line of 1 MiB + 1 byte ending in CRLF", bytesOf(logText({ meta: [...META, `#${"y".repeat(MIB)}`], eol: "\r\n" }).text), { sentence: "the line is longer than 1 MiB", line: 4 });
+  rejected("long-line", "no-newlines", "1.5 MB without a line ending", bytesOf("a,".repeat(750_000)), { sentence: "the line is longer than 1 MiB", line: 1 });
+  rejected("long-line", "header-2mib", "a 2 MiB header line", bytesOf(logText({ header: [...CANONICAL, ...Array.from({ length: 200_000 }, (_, i) => `c${i}`)], rows: 5 }).text), { sentence: "the line is longer than 1 MiB", line: 4 });
   for (const at of [0, 100, 2000]) {
-    rejected("long-line", `row-over-limit-${at}`, `row ${at + 1} is 1.1 MiB long`, bytesOf(logText({ row: (k, c) => (k === at ? [...c, "9".repeat(1_150_000)] : null) }).text), { sentence: "the line is longer than 1024 KiB", line: 5 + at });
+    rejected("long-line", `row-over-limit-${at}`, `row ${at + 1} is 1.1 MiB long`, bytesOf(logText({ row: (k, c) => (k === at ? [...c, "9".repeat(1_150_000)] : null) }).text), { sentence: "the line is longer than 1 MiB", line: 5 + at });
   }
 
   // ---- cells that are not numbers -------------------------------------------------------------

@@ -298,7 +298,7 @@ describe("one line and header rule, whatever the chunk sizes", () => {
       const ok = await collect(enc.encode(`#${"n".repeat(MAX_LINE_BYTES - 1)}\n` + "time_us,gyro_roll,gyro_pitch,gyro_yaw\n" + rows), {}, chunk);
       expect(ok.summary.samples).toBe(3000);
       const e = await failure(enc.encode(`#${"n".repeat(MAX_LINE_BYTES)}\r\n` + "time_us,gyro_roll,gyro_pitch,gyro_yaw\n" + rows));
-      expect(e.message).toBe("line 1: the line is longer than 1024 KiB: this does not look like a CSV log");
+      expect(e.message).toBe("line 1: the line is longer than 1 MiB: this does not look like a CSV log");
     }
   });
   it("the head reader finds the header after 10,000 metadata lines or a 70 KB note, like the reader", async () => {
