@@ -1,67 +1,151 @@
-// npm start: everything a fresh clone needs to come up on http://localhost:3000 — the SQLite
-// database created and migrated, the demo team seeded when it is empty, the app built when its
-// sources changed — then `next start`. Settings come from the environment (see README).
-import { spawn, spawnSync } from "node:child_process";
+// npm start: everything a fresh clone needs to come up — the data folder, the SQLite database
+// created and migrated, the analysis worker bundled, the demo team seeded when the database is
+// empty, the app built when its sources changed — then `next start`. Settings come from the
+// environment (see README). The tests start the app through this script too, so what users run is
+// what the suite runs.
+import { spawn, type ChildProcess } from "node:child_process";
 import { randomBytes } from "node:crypto";
 import { existsSync, mkdirSync, readdirSync, readFileSync, statSync, writeFileSync } from "node:fs";
 import { join, resolve } from "node:path";
+import { createInterface } from "node:readline";
+import { DEMO_ACCOUNTS } from "../lib/demo/accounts";
 
 const root = process.cwd();
 const dataDir = resolve(process.env.HEATCHECK_DATA_DIR ?? join(root, "data"));
-mkdirSync(dataDir, { recursive: true });
 const port = process.env.PORT ?? "3000";
-const env: NodeJS.ProcessEnv = {
-  ...process.env,
-  NEXT_TELEMETRY_DISABLED: "1",
-  HEATCHECK_DATA_DIR: dataDir,
-  DATABASE_URL: process.env.DATABASE_URL ?? `file:${join(dataDir, "heatcheck.db")}`,
-  NEXTAUTH_URL: process.env.NEXTAUTH_URL ?? `http://localhost:${port}`,
-  NEXTAUTH_SECRET: process.env.NEXTAUTH_SECRET ?? secret(),
-};
+// Loopback unless told otherwise: a pit laptop on a shared Wi-Fi should not serve the team's
+// records to everyone in range by accident.
+const host = process.env.HEATCHECK_HOST ?? "127.0.0.1";
+
+const startedAt = Date.now();
+const children = new Set<ChildProcess>();
+let stopping = false;
+
+function say(line: string): void {
+  console.log(`heatcheck: ${line}`);
+}
+
+/** Stops with one sentence a user can act on, never a stack trace. */
+function fail(sentence: string): never {
+  console.error(`\nheatcheck could not start: ${sentence}`);
+  for (const c of children) c.kill("SIGTERM");
+  process.exit(1);
+}
+
+function seconds(since: number): string {
+  return `${((Date.now() - since) / 1000).toFixed(1)} s`;
+}
+
+/** Runs one step as a child process, its output prefixed so that parallel steps stay readable. */
+function step(what: string, command: string, args: string[], env: NodeJS.ProcessEnv, hint: string): Promise<void> {
+  const t = Date.now();
+  say(`${what}…`);
+  return new Promise((done) => {
+    const child = spawn(command, args, { env, stdio: ["ignore", "pipe", "pipe"] });
+    children.add(child);
+    const prefix = (from: NodeJS.ReadableStream, out: NodeJS.WriteStream) =>
+      createInterface({ input: from }).on("line", (line) => {
+        if (line.trim() !== "") out.write(`  [${what}] ${line}\n`);
+      });
+    prefix(child.stdout, process.stdout);
+    prefix(child.stderr, process.stderr);
+    child.on("error", () => fail(hint));
+    child.on("exit", (code) => {
+      children.delete(child);
+      if (stopping) {
+        if (children.size === 0) process.exit(0);
+        return;
+      }
+      if (code !== 0) fail(hint);
+      say(`${what} done in ${seconds(t)}`);
+      done();
+    });
+  });
+}
 
 /** A signing secret kept in the data folder, so sessions survive restarts. */
-function secret(): string {
+function authSecret(): string {
   const file = join(dataDir, ".auth-secret");
   if (!existsSync(file)) writeFileSync(file, randomBytes(32).toString("base64url"), { mode: 0o600 });
   return readFileSync(file, "utf8").trim();
 }
 
-function run(what: string, command: string, args: string[]): void {
-  const t = Date.now();
-  const r = spawnSync(command, args, { stdio: "inherit", env });
-  if (r.status !== 0) {
-    console.error(`heatcheck: ${what} failed (exit ${r.status ?? "signal"}).`);
-    process.exit(1);
-  }
-  console.log(`heatcheck: ${what} done in ${((Date.now() - t) / 1000).toFixed(1)} s`);
-}
-
-function newestSource(dir: string): number {
+function newestSource(path: string): number {
+  if (!existsSync(path)) return 0;
+  const stat = statSync(path);
+  if (!stat.isDirectory()) return stat.mtimeMs;
   let newest = 0;
-  for (const entry of readdirSync(dir, { withFileTypes: true })) {
+  for (const entry of readdirSync(path, { withFileTypes: true })) {
     if (entry.name === "node_modules" || entry.name.startsWith(".")) continue;
-    const p = join(dir, entry.name);
-    newest = Math.max(newest, entry.isDirectory() ? newestSource(p) : statSync(p).mtimeMs);
+    newest = Math.max(newest, newestSource(join(path, entry.name)));
   }
   return newest;
 }
 
-const npx = process.platform === "win32" ? "npx.cmd" : "npx";
-run("database migration", npx, ["prisma", "migrate", "deploy"]);
-run("demo seed check", npx, ["tsx", "--conditions=react-server", "prisma/seed.ts"]);
-const buildId = join(root, ".next", "BUILD_ID");
-const sources = Math.max(...["app", "lib", "prisma", "public"].map((d) => newestSource(join(root, d))), statSync(join(root, "package.json")).mtimeMs);
-if (!existsSync(buildId) || statSync(buildId).mtimeMs < sources || !existsSync(join(root, "generated", "worker", "analysis-worker.mjs"))) {
-  run("analysis worker build", npx, ["tsx", "scripts/build-worker.ts"]);
-  run("app build (first start or changed sources)", npx, ["next", "build"]);
+/** True when `output` is missing or older than any of `sources`. */
+function stale(output: string, sources: string[]): boolean {
+  if (!existsSync(output)) return true;
+  const built = statSync(output).mtimeMs;
+  return sources.some((s) => newestSource(join(root, s)) > built);
 }
-console.log(`
-heatcheck is starting on ${env.NEXTAUTH_URL}
+
+async function main(): Promise<void> {
+  try {
+    mkdirSync(dataDir, { recursive: true, mode: 0o700 });
+  } catch {
+    fail(`the data folder ${dataDir} cannot be created; set HEATCHECK_DATA_DIR to a folder you can write to.`);
+  }
+  const env: NodeJS.ProcessEnv = {
+    ...process.env,
+    NEXT_TELEMETRY_DISABLED: "1",
+    HEATCHECK_DATA_DIR: dataDir,
+    DATABASE_URL: process.env.DATABASE_URL ?? `file:${join(dataDir, "heatcheck.db")}`,
+    NEXTAUTH_URL: process.env.NEXTAUTH_URL ?? `http://localhost:${port}`,
+    NEXTAUTH_SECRET: process.env.NEXTAUTH_SECRET ?? authSecret(),
+  };
+  const npx = process.platform === "win32" ? "npx.cmd" : "npx";
+
+  await step("database migration", npx, ["prisma", "migrate", "deploy"], env,
+    `the database (${env.DATABASE_URL}) could not be created or migrated; check that the data folder is writable and not full, and that no other program holds the file.`);
+
+  // The seed analyses its demo logs on the worker threads, so the worker comes before the seed.
+  const workerBundle = join(root, "generated", "worker", "analysis-worker.mjs");
+  if (stale(workerBundle, ["lib"])) {
+    await step("analysis worker build", npx, ["tsx", "scripts/build-bundles.ts", "worker"], env,
+      "the analysis worker could not be built; run `npm install` again, then `npm start`.");
+  }
+
+  // Seeding (33 demo analyses) and building the app are independent: run them side by side.
+  const buildId = join(root, ".next", "BUILD_ID");
+  const needsBuild = stale(buildId, ["app", "lib", "prisma", "public", "package.json", "next.config.ts", "proxy.ts", "instrumentation.ts"]);
+  await Promise.all([
+    step("demo seed check", npx, ["tsx", "--conditions=react-server", "prisma/seed.ts"], env,
+      "the demo team could not be seeded (see the lines above); nothing was kept, so the next `npm start` tries again."),
+    needsBuild
+      ? step("app build (first start or changed sources)", npx, ["next", "build"], env,
+          "the app could not be built (see the lines above): if you changed the sources, fix what it names; otherwise run `npm install` again, then `npm start`.")
+      : Promise.resolve(),
+  ]);
+
+  const server = spawn(npx, ["next", "start", "-p", port, "-H", host], { stdio: ["ignore", "inherit", "inherit"], env });
+  children.add(server);
+  server.on("exit", (code) => process.exit(code ?? 0));
+  console.log(`
+heatcheck is starting on ${env.NEXTAUTH_URL} (listening on ${host}:${port}; prepared in ${seconds(startedAt)})
   database: ${env.DATABASE_URL}
-  demo sign-in — owner: owner@heatcheck.test / pitwall-owner-2026
-                 viewer: viewer@heatcheck.test / pitwall-viewer-2026
+  demo sign-in, while the demo team exists:
+${DEMO_ACCOUNTS.map((a) => `    ${a.role.padEnd(6)} ${a.email} / ${a.password}`).join("\n")}
   The score is a decision aid, not an airworthiness certificate.
 `);
-const server = spawn(npx, ["next", "start", "-p", port], { stdio: "inherit", env });
-for (const signal of ["SIGINT", "SIGTERM"] as const) process.on(signal, () => server.kill(signal));
-server.on("exit", (code) => process.exit(code ?? 0));
+}
+
+for (const signal of ["SIGINT", "SIGTERM"] as const) {
+  process.on(signal, () => {
+    stopping = true;
+    for (const c of children) c.kill(signal);
+    if (children.size === 0) process.exit(0);
+    setTimeout(() => process.exit(0), 10_000).unref();
+  });
+}
+
+void main();

@@ -1,6 +1,7 @@
 import Link from "next/link";
 import { AutoRefresh } from "@/app/_components/auto-refresh";
 import { Caution } from "@/app/_components/caution";
+import { PrintButton } from "@/app/_components/print-button";
 import { StatusBadge } from "@/app/_components/status-badge";
 import { requireMember } from "@/lib/server/guard";
 import { inspectionQueue } from "@/lib/server/queue";
@@ -30,6 +31,7 @@ export default async function InspectionQueuePage({ searchParams }: { searchPara
             Flying in {heat.name} ({heat.entries.length})
           </Link>
         ) : null}
+        <PrintButton label="Print for the pit wall" />
       </div>
       <ol className="queue" data-testid="queue">
         {entries.map((e, i) => (

@@ -1,3 +1,5 @@
+import { rampColour } from "@/lib/view/colour-ramp";
+
 export interface ThrottleHeatmapProps {
   /** Rows from low to high throttle: label, seconds, dB values on a uniform grid. */
   rows: { label: string; seconds: number; db: number[] }[];
@@ -6,18 +8,9 @@ export interface ThrottleHeatmapProps {
   toHz: number;
 }
 
-// A blue–teal–amber–red ramp of our own for levels, low to high.
-const RAMP = ["#1b2a49", "#1f5f7a", "#2a9d8f", "#e9c46a", "#f4a261", "#c2410c"];
-
-function colour(t: number): string {
-  const x = Math.min(1, Math.max(0, t)) * (RAMP.length - 1);
-  const i = Math.floor(x);
-  const a = RAMP[i] ?? "#000";
-  const b = RAMP[Math.min(RAMP.length - 1, i + 1)] ?? "#000";
-  const f = x - i;
-  const mix = (p: number) => Math.round(parseInt(a.slice(p, p + 2), 16) * (1 - f) + parseInt(b.slice(p, p + 2), 16) * f);
-  return `rgb(${mix(1)},${mix(3)},${mix(5)})`;
-}
+const colour = rampColour;
+// The legend samples the same ramp the cells use.
+const LEGEND = Array.from({ length: 9 }, (_, i) => rampColour(i / 8)).join(",");
 
 const COLUMNS = 160;
 
@@ -75,7 +68,7 @@ export function ThrottleHeatmap({ rows, binHz, fromHz, toHz }: ThrottleHeatmapPr
       </svg>
       <figcaption className="heatmap-legend">
         throttle (rows) × frequency (linear); colour from {lo.toFixed(0)} dB
-        <span style={{ display: "inline-block", width: 120, height: 10, background: `linear-gradient(90deg, ${RAMP.join(",")})` }} />
+        <span style={{ display: "inline-block", width: 120, height: 10, background: `linear-gradient(90deg, ${LEGEND})` }} />
         to {hi.toFixed(0)} dB
       </figcaption>
     </figure>

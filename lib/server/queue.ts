@@ -1,9 +1,11 @@
 import "server-only";
 import type { Finding } from "@/lib/health/compare";
 import { rankQueue, type AirframeFacts, type QueueEntry } from "@/lib/health/queue-rank";
+import { repairsSince, staleBaselineReason } from "@/lib/health/repair-effects";
 import type { Status } from "@/lib/health/thresholds";
 import type { Actor } from "@/lib/roles";
 import { db } from "./db";
+import { fleetPlacement } from "./fleet";
 import { lifeOfParts } from "./parts";
 
 /** The next heat of the team that has not started more than an hour ago, with its airframes. */
@@ -25,11 +27,12 @@ export async function inspectionQueue(actor: Actor, options: { onlyNextHeat?: bo
       crashes: { orderBy: { at: "desc" } },
       inspections: { orderBy: { at: "desc" }, take: 1 },
       installations: { where: { toAt: null }, include: { part: true } },
-      baselines: { where: { active: true }, take: 1, orderBy: { createdAt: "desc" } },
-      logs: { orderBy: { flownAt: "desc" }, take: 1, select: { flownAt: true } },
+      baselines: { where: { active: true }, take: 1, orderBy: { createdAt: "desc" }, include: { logs: { select: { log: { select: { flownAt: true } } } } } },
+      logs: { orderBy: { flownAt: "desc" }, select: { flownAt: true } },
     },
   });
   // Life is counted over each part's whole history, as on the parts screens, in one go for the fleet.
+  const fleet = new Map((await fleetPlacement(actor)).placements.map((p) => [p.airframeId, p]));
   const limited = airframes.flatMap((a) => a.installations.filter((i) => i.part.lifeFlights || i.part.lifeMinutes));
   const life = await lifeOfParts(limited.map((i) => i.part));
   const facts: AirframeFacts[] = [];
@@ -48,6 +51,13 @@ export async function inspectionQueue(actor: Actor, options: { onlyNextHeat?: bo
       return fraction >= 1 ? [{ position: i.position, what: `${i.part.model} (${i.part.kind})`, fraction }] : [];
     });
     const lastLog = a.logs[0]?.flownAt ?? new Date(0);
+    // Parts still fitted that went on after the baseline's flights and change the spectrum.
+    const baselineAt = baseline?.logs.reduce((t, l) => (l.log.flownAt > t ? l.log.flownAt : t), new Date(0));
+    const repairs = baselineAt
+      ? repairsSince(baselineAt, a.installations.map((i) => ({ at: i.fromAt, position: i.position, kind: i.part.kind, model: i.part.model })))
+      : [];
+    const firstRepair = repairs[0]?.at;
+    const staleBaseline = firstRepair ? { reason: staleBaselineReason(repairs, a.logs.filter((l) => l.flownAt > firstRepair).length) } : null;
     const lastWork = [
       ...a.inspections.map((x) => ({ what: "inspection", at: x.at })),
       ...a.installations.map((x) => ({ what: `${x.position} swap`, at: x.fromAt })),
@@ -65,6 +75,8 @@ export async function inspectionQueue(actor: Actor, options: { onlyNextHeat?: bo
           }
         : null,
       hasBaseline: !!baseline,
+      staleBaseline,
+      fleet: fleet.get(a.id) ?? null,
       openCrashes: a.crashes
         .filter((c) => c.at > lastInspection)
         .map((c) => ({ at: c.at, severity: c.severity, positions: JSON.parse(c.positions) as string[] })),

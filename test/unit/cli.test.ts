@@ -78,14 +78,14 @@ describe("heatcheck compare", () => {
   });
 });
 
-describe("the CLI as a process (two threads, npm run -s prints only the result)", () => {
-  it("analyze --json through npm run -s cli gives the same numbers as in-process", async () => {
-    const out = execFileSync("npm", ["run", "-s", "cli", "--", "analyze", good, "--json"], { encoding: "utf8" });
+describe("the CLI as a process, as the README types it (npx heatcheck: the bundled bin, two threads)", () => {
+  it("analyze --json through npx heatcheck gives the same numbers as in-process", async () => {
+    const out = execFileSync("npx", ["heatcheck", "analyze", good, "--json"], { encoding: "utf8" });
     const inProcess = JSON.parse((await cli("analyze", good, "--json")).stdout) as { axes: { pitch: { peaks: { freqHz: number }[]; psd: number[] } } };
     const viaProcess = JSON.parse(out) as typeof inProcess;
     expect(viaProcess.axes.pitch.peaks).toEqual(inProcess.axes.pitch.peaks);
     expect(viaProcess.axes.pitch.psd).toEqual(inProcess.axes.pitch.psd);
-    const r = spawnSync("npm", ["run", "-s", "cli", "--", "analyze", join(dir, "nope.csv")], { encoding: "utf8" });
+    const r = spawnSync("npx", ["heatcheck", "analyze", join(dir, "nope.csv")], { encoding: "utf8" });
     expect(r.status).toBe(1);
     expect(r.stdout).toBe("");
   });

@@ -4,16 +4,17 @@ import { TextField } from "@/app/_components/fields";
 import { Sparkline } from "@/app/_components/sparkline";
 import { StatusBadge } from "@/app/_components/status-badge";
 import { roleAtLeast } from "@/lib/roles";
-import { fleetTable } from "@/lib/server/fleet";
+import { fleetDesignView, fleetTable } from "@/lib/server/fleet";
 import { requireMember } from "@/lib/server/guard";
 import { createAirframeAction } from "../actions";
+import { ModeStrips } from "./_components/mode-strips";
 import { WHEN_SHORT as WHEN } from "@/app/_components/dates";
 
 export const dynamic = "force-dynamic";
 
 export default async function FleetPage() {
   const actor = await requireMember("viewer");
-  const rows = await fleetTable(actor);
+  const [rows, designs] = await Promise.all([fleetTable(actor), fleetDesignView(actor)]);
   return (
     <>
       <h1>Fleet</h1>
@@ -52,6 +53,24 @@ export default async function FleetPage() {
           </tbody>
         </table>
       </div>
+      {designs.map((d) => (
+        <section className="card" key={d.design} style={{ marginTop: "1rem" }} data-testid="design-view">
+          <h2 style={{ marginTop: 0 }}>{d.design}: the fleet as its own reference</h2>
+          <ModeStrips design={d.design} airframes={d.airframes} enough={d.enough} strips={d.strips} />
+          {d.withoutBaseline.length > 0 ? (
+            <>
+              <h3>Judged against the fleet (no baseline of their own)</h3>
+              <ul>
+                {d.withoutBaseline.map((w) => (
+                  <li key={w.name}>
+                    <strong>{w.name}</strong>: {w.notes.length === 0 ? "its latest log sits inside the fleet's range — still set a baseline of its own; fleet evidence alone never clears a quad." : w.notes.join(" · ")}
+                  </li>
+                ))}
+              </ul>
+            </>
+          ) : null}
+        </section>
+      ))}
       {roleAtLeast(actor.role, "tech") ? (
         <details className="action" style={{ marginTop: "1rem" }}>
           <summary>Add an airframe</summary>

@@ -1,17 +1,17 @@
 import Link from "next/link";
-import { Caution } from "@/app/_components/caution";
-import { SpectrumChart } from "@/app/_components/spectrum-chart";
+import { FindingsCard } from "@/app/_components/findings-table";
+import { SpectraGrid, ThrottleMapCard } from "@/app/_components/spectra-grid";
 import { StatusBadge } from "@/app/_components/status-badge";
-import { ThrottleHeatmap } from "@/app/_components/throttle-heatmap";
 import { AXES, type Axis } from "@/lib/logs/columns";
 import { roleAtLeast } from "@/lib/roles";
 import { airframeView } from "@/lib/server/airframe-view";
 import { db } from "@/lib/server/db";
 import { requireMember } from "@/lib/server/guard";
+import { trendView } from "@/lib/server/trend-view";
 import { LogsTable } from "./_components/logs-table";
+import { TrendCharts } from "./_components/trend-charts";
 import { WorkForms } from "./_components/work-forms";
 import { WHEN } from "@/app/_components/dates";
-import { DEFAULT_ANALYSIS, throttleBandLabel } from "@/lib/analysis/settings";
 
 export const dynamic = "force-dynamic";
 
@@ -21,6 +21,7 @@ export default async function AirframePage({ params, searchParams }: { params: P
   const wanted = (await searchParams).axis;
   const heatAxis: Axis = AXES.find((a) => a === wanted) ?? "pitch";
   const view = await airframeView(actor, id);
+  const trends = await trendView(view.airframe.id, actor.teamId, view.baseline);
   const { airframe, latest, analysis, baseline } = view;
   const canPilot = roleAtLeast(actor.role, "pilot");
   const canTech = roleAtLeast(actor.role, "tech");
@@ -42,6 +43,10 @@ export default async function AirframePage({ params, searchParams }: { params: P
             {airframe.serial ? ` · serial ${airframe.serial}` : ""} · {airframe.status === "grounded" ? "GROUNDED" : "ready"}
             {airframe.retired ? " · retired" : ""}
           </div>
+          <div className="small">
+            History: <a href={`/api/v1/airframes/${encodeURIComponent(airframe.name)}/history?format=csv`}>CSV</a> ·{" "}
+            <a href={`/api/v1/airframes/${encodeURIComponent(airframe.name)}/history?format=json`}>JSON</a>
+          </div>
         </div>
         <div style={{ textAlign: "right" }}>
           {latest?.assessment ? <StatusBadge status={status} /> : <span className="muted">no score yet</span>}
@@ -55,77 +60,33 @@ export default async function AirframePage({ params, searchParams }: { params: P
         </div>
       </div>
 
-      <section className="card" style={{ marginTop: "1rem" }}>
-        <h2 style={{ marginTop: 0 }}>Findings of the latest log</h2>
-        {!latest?.assessment ? (
-          <p className="muted">{baseline ? "No log analysed against the baseline yet." : "Set a baseline from known-good logs to have later logs judged."}</p>
-        ) : latest.assessment.findings.length === 0 ? (
-          <p>No change from the baseline beyond the watch thresholds ({latest.log.fileName}).</p>
-        ) : (
-          <table>
-            <thead>
-              <tr>
-                <th>severity</th>
-                <th className="num">points</th>
-                <th>axis</th>
-                <th>what and where to look</th>
-              </tr>
-            </thead>
-            <tbody>
-              {latest.assessment.findings.map((f) => (
-                <tr key={`${f.kind}-${f.axis}-${f.freqHz}`}>
-                  <td>
-                    <StatusBadge status={f.severity} />
-                  </td>
-                  <td className="num">−{Math.round(f.points)}</td>
-                  <td>{f.axis}</td>
-                  <td>{f.text}</td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
-        )}
-        {latest?.assessment && latest.assessment.notCompared.length > 0 ? (
-          <p className="muted small">Not compared: {latest.assessment.notCompared.map((n) => `${n.what} (${n.reason})`).join("; ")}.</p>
-        ) : null}
-        <Caution compact />
-      </section>
+      <FindingsCard
+        title="Findings of the latest log"
+        assessment={latest?.assessment ?? null}
+        fileName={latest?.log.fileName}
+        notJudged={baseline ? "No log analysed against the baseline yet." : "Set a baseline from known-good logs to have later logs judged."}
+      />
+      {view.analysedLogId ? (
+        <p className="small">
+          <Link href={`/logs/${view.analysedLogId}`}>Open the latest log</Link> (its orders per motor, metadata and the fleet&apos;s view of it)
+        </p>
+      ) : null}
 
       <h2>Spectrum: latest log against the baseline, at matched throttle</h2>
-      <p className="muted small">
-        {analysis
-          ? `${analysis.sampleRateHz} Hz log, ${analysis.durationS.toFixed(0)} s, Welch ${analysis.settings.window} ${analysis.settings.nperseg}-sample segments (${analysis.settings.binHz.toFixed(2)} Hz bins). PSD in dB re 1 (deg/s)²/Hz. Dots: peaks (dark: structural, amber: motor or unclassified).`
-          : "No analysed log yet."}
-      </p>
-      <div className="grid three">
-        {AXES.map((axis) => (
-          <div className="card" key={axis}>
-            <h3 style={{ marginTop: 0 }}>{axis}</h3>
-            <SpectrumChart axis={axis} points={view.spectra[axis]} peaks={(analysis?.axes[axis].peaks ?? []).map((p) => ({ freqHz: Math.round(p.freqHz * 10) / 10, levelDb: p.levelDb, kind: p.kind }))} />
-          </div>
-        ))}
-      </div>
+      <SpectraGrid analysis={analysis} spectra={view.spectra} />
+
+      <h2>Trends against the baseline</h2>
+      {trends ? (
+        <>
+          <p className="muted small">One point per analysed log (newest {trends.rows.length}); dashed lines: watch, inspect and ground thresholds; grey lines: crashes, swaps, inspections and baselines. Click a point to open its log.</p>
+          <TrendCharts rows={trends.rows} modes={trends.modes} events={trends.events} thresholds={trends.thresholds} />
+        </>
+      ) : (
+        <p className="muted">Set a baseline to follow this airframe&apos;s modes and levels over time.</p>
+      )}
 
       <h2>Throttle map</h2>
-      <div className="toolbar">
-        {AXES.map((a) => (
-          <Link key={a} className="chip" href={`/airframes/${airframe.id}?axis=${a}`} aria-current={a === heatAxis}>
-            {a}
-          </Link>
-        ))}
-      </div>
-      <div className="card">
-        {analysis ? (
-          <ThrottleHeatmap
-            rows={analysis.throttleBands.map((b) => ({ label: throttleBandLabel(b.lo, b.hi), seconds: b.segments >= DEFAULT_ANALYSIS.minBandSegments ? b.seconds : 0, db: b.axes[heatAxis].psdDb }))}
-            binHz={analysis.settings.binHz}
-            fromHz={analysis.settings.minFreqHz}
-            toHz={analysis.settings.maxFreqHz}
-          />
-        ) : (
-          <p className="muted">No analysed log yet.</p>
-        )}
-      </div>
+      <ThrottleMapCard analysis={analysis} axis={heatAxis} href={`/airframes/${airframe.id}`} />
 
       <WorkForms airframe={{ id: airframe.id, status: airframe.status }} actorName={actor.name} canPilot={canPilot} canTech={canTech} stock={stock} heats={heats} analysed={analysed} />
       <div className="grid two" style={{ marginTop: "1rem" }}>

@@ -1,3 +1,4 @@
+import Link from "next/link";
 import { ActionForm } from "@/app/_components/action-form";
 import { StatusBadge } from "@/app/_components/status-badge";
 import type { Status } from "@/lib/health/thresholds";
@@ -33,7 +34,9 @@ export function LogsTable({ airframeId, canTech, logs }: LogsTableProps) {
           {logs.map(({ log, assessment }) => (
             <tr key={log.id}>
               <td className="small">{WHEN.format(log.flownAt)}</td>
-              <td>{log.fileName}</td>
+              <td>
+                <Link href={`/logs/${log.id}`}>{log.fileName}</Link>
+              </td>
               <td className="small">{log.sampleRateHz ? `${Math.round(log.sampleRateHz)} Hz · ${(log.durationS ?? 0).toFixed(0)} s` : "–"}</td>
               <td>{log.status === "failed" ? <span className="field-error">failed: {log.error}</span> : assessment ? <StatusBadge status={assessment.status} /> : log.status}</td>
               <td className="num">{assessment?.score === null || !assessment ? "–" : Math.round(assessment.score)}</td>

@@ -1,0 +1,130 @@
+import Link from "next/link";
+import { notFound } from "next/navigation";
+import { WHEN } from "@/app/_components/dates";
+import { FindingsCard } from "@/app/_components/findings-table";
+import { SpectraGrid, ThrottleMapCard } from "@/app/_components/spectra-grid";
+import { StatusBadge } from "@/app/_components/status-badge";
+import { NotFoundError } from "@/lib/errors";
+import { AXES, type Axis } from "@/lib/logs/columns";
+import { requireMember } from "@/lib/server/guard";
+import { logView } from "@/lib/server/log-view";
+import { MotorOrdersChart } from "./_components/motor-orders-chart";
+
+export const dynamic = "force-dynamic";
+
+async function viewOrNotFound(...args: Parameters<typeof logView>) {
+  try {
+    return await logView(...args);
+  } catch (e) {
+    if (e instanceof NotFoundError) notFound();
+    throw e;
+  }
+}
+
+export default async function LogPage({ params, searchParams }: { params: Promise<{ id: string }>; searchParams: Promise<{ axis?: string }> }) {
+  const actor = await requireMember("viewer");
+  const { id } = await params;
+  const wanted = (await searchParams).axis;
+  const axis: Axis = AXES.find((a) => a === wanted) ?? "pitch";
+  const view = await viewOrNotFound(actor, id);
+  const { log, airframe, analysis, assessment } = view;
+  const metadata = Object.entries(analysis?.metadata ?? {});
+  return (
+    <>
+      <p className="small">{airframe ? <Link href={`/airframes/${airframe.id}`}>← {airframe.name}</Link> : <Link href="/fleet">← Fleet</Link>}</p>
+      <div className="row" style={{ alignItems: "center" }}>
+        <div>
+          <h1 style={{ marginBottom: 0, overflowWrap: "anywhere" }}>{log.fileName}</h1>
+          <div className="muted">
+            {airframe ? `${airframe.name} · ` : "no airframe · "}flown {WHEN.format(log.flownAt)} UTC · {log.status}
+            {log.error ? `: ${log.error}` : ""}
+          </div>
+        </div>
+        <div style={{ textAlign: "right" }}>
+          {assessment ? <StatusBadge status={assessment.status} /> : <span className="muted">not judged</span>}
+          <div style={{ fontSize: "2rem", fontWeight: 800 }} data-testid="log-score">
+            {assessment?.score === null || !assessment ? "–" : Math.round(assessment.score)}
+            <span className="muted small"> / 100</span>
+          </div>
+          <div className="muted small">
+            {assessment ? `against the ${assessment.baseline.active ? "active" : "earlier"} baseline of ${WHEN.format(assessment.baseline.createdAt)}` : "no baseline to judge it by"}
+          </div>
+        </div>
+      </div>
+
+      <FindingsCard
+        title="Findings against the baseline"
+        assessment={assessment}
+        notJudged="This log was not judged against a baseline: set one from known-good logs of this airframe."
+      />
+
+      <section className="card" style={{ marginTop: "1rem" }} data-testid="fleet-view">
+        <h2 style={{ marginTop: 0 }}>Against the fleet</h2>
+        {view.fleet.airframes === 0 ? (
+          <p className="muted">Fewer than three sister airframes of this design have a baseline: not enough to place this log against the fleet.</p>
+        ) : view.fleet.notes.length === 0 ? (
+          <p>Its modes and levels sit inside the range of {view.fleet.airframes} sister airframes of {airframe?.frameDesign}. The fleet is a second opinion, never a clearance.</p>
+        ) : (
+          <ul>
+            {view.fleet.notes.map((n) => (
+              <li key={n.text}>
+                <StatusBadge status={n.severity} /> {n.text}
+              </li>
+            ))}
+          </ul>
+        )}
+      </section>
+
+      <h2>Spectrum against the baseline, at matched throttle</h2>
+      <SpectraGrid analysis={analysis} spectra={view.spectra} currentLabel="this log" />
+
+      <h2>Throttle map</h2>
+      <ThrottleMapCard analysis={analysis} axis={axis} href={`/logs/${log.id}`} />
+
+      <h2>Motor orders</h2>
+      <div className="card">
+        <MotorOrdersChart motors={view.motors} />
+        {view.motors.length > 0 ? <p className="muted small">1× order (once per revolution) of each motor through the flight, measured by order tracking from its rpm column.</p> : null}
+      </div>
+
+      <div className="grid two" style={{ marginTop: "1rem" }}>
+        <section className="card">
+          <h2 style={{ marginTop: 0 }}>Metadata</h2>
+          {metadata.length === 0 ? (
+            <p className="muted">The file had no metadata lines.</p>
+          ) : (
+            <table>
+              <tbody>
+                {metadata.map(([k, v]) => (
+                  <tr key={k}>
+                    <th scope="row">{k}</th>
+                    <td style={{ overflowWrap: "anywhere" }}>{v}</td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+          )}
+        </section>
+        <section className="card">
+          <h2 style={{ marginTop: 0 }}>How it was read</h2>
+          {analysis ? (
+            <ul className="small">
+              <li>
+                {analysis.sampleRateHz} Hz, {analysis.durationS.toFixed(1)} s, {analysis.samples} samples, {(log.sizeBytes / 1e6).toFixed(1)} MB
+              </li>
+              <li>
+                {analysis.gaps.length} gap{analysis.gaps.length === 1 ? "" : "s"}, {analysis.droppedRows} dropped row{analysis.droppedRows === 1 ? "" : "s"}
+              </li>
+              {log.mapText ? <li>column map: <code style={{ overflowWrap: "anywhere" }}>{log.mapText}</code></li> : null}
+              {analysis.guesses.map((g) => (
+                <li key={g}>{g}</li>
+              ))}
+            </ul>
+          ) : (
+            <p className="muted">Not analysed{log.error ? `: ${log.error}` : " yet"}.</p>
+          )}
+        </section>
+      </div>
+    </>
+  );
+}

@@ -1,0 +1,69 @@
+import "server-only";
+import type { LogAnalysis } from "@/lib/analysis/types";
+import type { Baseline } from "@/lib/health/baseline";
+import type { Finding, NotCompared } from "@/lib/health/compare";
+import { judgeAgainstFleet, memberFromLog, type FleetNote } from "@/lib/health/fleet-reference";
+import { motorPositionName } from "@/lib/health/motor-positions";
+import type { Status } from "@/lib/health/thresholds";
+import { NotFoundError } from "@/lib/errors";
+import { AXES, type Axis } from "@/lib/logs/columns";
+import type { Actor } from "@/lib/roles";
+import { db } from "./db";
+import { BAND_WORDS, fleetPlacement } from "./fleet";
+import { spectrumOverlay, type SpectrumPoint } from "./spectrum-view";
+
+/**
+ * Everything the log screen shows for one log of the team: its verdict against the baseline it
+ * was judged by (the active one when there is such an assessment, else the newest), its spectra
+ * against that baseline, the throttle map, each motor's 1× order through the flight, the fleet's
+ * view of it, its metadata and what was not compared.
+ */
+export async function logView(actor: Actor, logId: string) {
+  const log = await db.flightLog.findFirst({
+    where: { id: logId, teamId: actor.teamId },
+    include: {
+      airframe: { select: { id: true, name: true, frameDesign: true } },
+      analysis: true,
+      assessments: { include: { baseline: { select: { id: true, json: true, active: true, createdAt: true, reason: true } } }, orderBy: { createdAt: "desc" } },
+    },
+  });
+  if (!log) throw new NotFoundError("That log");
+  const analysis = log.analysis ? (JSON.parse(log.analysis.json) as LogAnalysis) : null;
+  const judged = log.assessments.find((a) => a.baseline.active) ?? log.assessments[0] ?? null;
+  const baseline = judged ? (JSON.parse(judged.baseline.json) as Baseline) : undefined;
+  const spectra = {} as Record<Axis, SpectrumPoint[]>;
+  for (const axis of AXES) spectra[axis] = analysis ? spectrumOverlay(analysis, axis, baseline) : [];
+
+  let fleetNotes: FleetNote[] = [];
+  let fleetAirframes = 0;
+  if (analysis && log.airframe) {
+    const placement = (await fleetPlacement(actor)).placements.find((p) => p.airframeId === log.airframe?.id);
+    if (placement) {
+      fleetAirframes = placement.reference.enough ? placement.reference.airframes : 0;
+      fleetNotes = judgeAgainstFleet(placement.reference, memberFromLog(log.airframe.id, log.airframe.name, analysis), { what: "log", ...BAND_WORDS });
+    }
+  }
+
+  return {
+    log: { id: log.id, fileName: log.fileName, flownAt: log.flownAt, status: log.status, error: log.error, sizeBytes: log.sizeBytes, mapText: log.mapText },
+    airframe: log.airframe,
+    analysis,
+    assessment: judged
+      ? {
+          score: judged.score,
+          status: judged.status as Status,
+          findings: JSON.parse(judged.findings) as Finding[],
+          notCompared: JSON.parse(judged.notCompared) as NotCompared[],
+          baseline: { active: judged.baseline.active, createdAt: judged.baseline.createdAt, reason: judged.baseline.reason },
+        }
+      : null,
+    spectra,
+    motors: (analysis?.motors ?? []).map((m) => ({
+      motor: m.motor,
+      name: motorPositionName(m.motor),
+      meanRpm: m.meanRpm,
+      track: m.track.map((p) => ({ tS: Math.round(p.tS * 10) / 10, rotationHz: Math.round(p.rotationHz * 10) / 10, order1Db: Math.round(p.order1Db * 10) / 10 })),
+    })),
+    fleet: { airframes: fleetAirframes, notes: fleetNotes },
+  };
+}
