@@ -176,6 +176,11 @@ export class LogReader {
   private readonly headOnly: boolean;
   /** Set in head mode once the header row was read; later bytes are ignored. */
   head: HeadFound | null = null;
+  /**
+   * Set in either mode once the header row was read: an upload that is checked while it streams
+   * can match the airframe from the metadata before the last byte arrives.
+   */
+  headerFound: HeadFound | null = null;
 
   private bytes = 0;
   private line = 0;
@@ -329,7 +334,7 @@ export class LogReader {
   /** A line that never ends is not a CSV log (binary data, or a file with no newlines). */
   private longLine(line: number): LogFormatError {
     const what = this.layout ? "this is not a row of numbers" : "this does not look like a CSV log";
-    return new LogFormatError(`the line is longer than ${MAX_LINE_BYTES / 1024} KiB: ${what}`, { line });
+    return new LogFormatError(`the line is longer than ${formatBytes(MAX_LINE_BYTES)}: ${what}`, { line });
   }
 
   /**
@@ -468,8 +473,9 @@ export class LogReader {
         { line: this.line },
       );
     }
+    this.headerFound = { metadata: this.metadata, headers, line: this.line };
     if (this.headOnly) {
-      this.head = { metadata: this.metadata, headers, line: this.line };
+      this.head = this.headerFound;
       return;
     }
     let map = this.options.map;
@@ -516,6 +522,7 @@ export class LogReader {
     const r = this.rawCount;
     let filled = 0;
     let empty = false;
+    let extra = false;
     let column = 0;
     let i = start;
     // Hot loop: most cells are plain decimals ("-12.345"), parsed here in one pass over the bytes.
@@ -531,6 +538,8 @@ export class LogReader {
       const slot = column < columns ? (slotOf[column] as number) : -1;
       if (slot < 0) {
         while (b !== 0x2c && b !== 0x0a) b = bytes[++i] as number;
+        // A cell beyond the header's columns that holds something (not just a line's CR) shifts the row.
+        if (column >= columns && i - cellStart > (b === 0x0a && bytes[i - 1] === 0x0d ? 1 : 0)) extra = true;
       } else {
         let negative = false;
         if (b === 0x2d) {
@@ -577,9 +586,10 @@ export class LogReader {
       b = bytes[++i] as number; // past the comma
     }
     const next = i + 1;
-    if (column !== columns) {
+    // Fewer cells, or more that hold something (empty trailing cells are a writer's habit, not a shift).
+    if (column < columns || extra) {
       // Cells shifted: with more cells than columns, numbers were most likely written with commas.
-      if (column > columns) {
+      if (extra) {
         this.wideRows++;
         this.firstWide ??= { line: this.line, cells: column };
       }

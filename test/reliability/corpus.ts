@@ -206,6 +206,8 @@ function generate(): CorpusCase[] {
   );
   accepted("few-empty-cells", "3 % of rows with an empty cell (dropped, under the 5 % rule)", bytesOf(logText({ row: (k, c) => (k % 33 === 5 ? [c[0] ?? "", "", ...c.slice(2)] : null) }).text), { droppedRows: 76, samples: 2424 });
   accepted("few-wide-rows", "2 % of rows with one cell too many (dropped)", bytesOf(logText({ row: (k, c) => (k % 50 === 3 ? [...c, "9"] : null) }).text), { droppedRows: 50, samples: 2450 });
+  accepted("trailing-commas", "every row ends with a comma the header does not have (empty extra cells)", bytesOf(logText({ row: (_k, c) => [...c, ""] }).text), { samples: 2500, droppedRows: 0 });
+  accepted("trailing-commas-crlf", "rows ending with an empty extra cell and CRLF", bytesOf(logText({ row: (_k, c) => [...c, "", ""], eol: "\r\n" }).text), { samples: 2500, droppedRows: 0 });
   accepted("few-short-rows", "2 % of rows with a cell missing (dropped)", bytesOf(logText({ row: (k, c) => (k % 50 === 3 ? c.slice(0, -1) : null) }).text), { droppedRows: 50, samples: 2450 });
   accepted("repeated-stamps", "1 % of rows repeat the previous time stamp (dropped)", bytesOf(logText({ time: (k) => String((k % 100 === 50 ? k - 1 : k) * 500) }).text), { droppedRows: 25, samples: 2475 });
   accepted("truncated-last", "the last row cut off mid-cell", bytesOf(base.text + "1250000,1.5,2"), { droppedRows: 1, samples: 2500 });
@@ -308,12 +310,12 @@ function generate(): CorpusCase[] {
   rejected("missing-column", "strict-no-guess", "foreign headers with a map that misses a header", bytesOf(logText({ header: ["T", "A", "B", "C"], rows: 50 }).text), { sentence: 'the map names a column "Z" for yaw, but the header has no such column', line: 4 }, { map: "time=T,roll=A,pitch=B,yaw=Z" });
 
   // ---- over-long lines ------------------------------------------------------------------------
-  rejected("long-line", "comment-over-limit", "a comment line of 1 MiB + 1 byte", bytesOf(logText({ meta: [...META, `#${"y".repeat(MIB)}`] }).text), { sentence: "the line is longer than 1024 KiB", line: 4 });
-  rejected("long-line", "comment-over-limit-crlf", "a comment line of 1 MiB + 1 byte ending in CRLF", bytesOf(logText({ meta: [...META, `#${"y".repeat(MIB)}`], eol: "\r\n" }).text), { sentence: "the line is longer than 1024 KiB", line: 4 });
-  rejected("long-line", "no-newlines", "1.5 MB without a line ending", bytesOf("a,".repeat(750_000)), { sentence: "the line is longer than 1024 KiB", line: 1 });
-  rejected("long-line", "header-2mib", "a 2 MiB header line", bytesOf(logText({ header: [...CANONICAL, ...Array.from({ length: 200_000 }, (_, i) => `c${i}`)], rows: 5 }).text), { sentence: "the line is longer than 1024 KiB", line: 4 });
+  rejected("long-line", "comment-over-limit", "a comment line of 1 MiB + 1 byte", bytesOf(logText({ meta: [...META, `#${"y".repeat(MIB)}`] }).text), { sentence: "the line is longer than 1 MiB", line: 4 });
+  rejected("long-line", "comment-over-limit-crlf", "a comment line of 1 MiB + 1 byte ending in CRLF", bytesOf(logText({ meta: [...META, `#${"y".repeat(MIB)}`], eol: "\r\n" }).text), { sentence: "the line is longer than 1 MiB", line: 4 });
+  rejected("long-line", "no-newlines", "1.5 MB without a line ending", bytesOf("a,".repeat(750_000)), { sentence: "the line is longer than 1 MiB", line: 1 });
+  rejected("long-line", "header-2mib", "a 2 MiB header line", bytesOf(logText({ header: [...CANONICAL, ...Array.from({ length: 200_000 }, (_, i) => `c${i}`)], rows: 5 }).text), { sentence: "the line is longer than 1 MiB", line: 4 });
   for (const at of [0, 100, 2000]) {
-    rejected("long-line", `row-over-limit-${at}`, `row ${at + 1} is 1.1 MiB long`, bytesOf(logText({ row: (k, c) => (k === at ? [...c, "9".repeat(1_150_000)] : null) }).text), { sentence: "the line is longer than 1024 KiB", line: 5 + at });
+    rejected("long-line", `row-over-limit-${at}`, `row ${at + 1} is 1.1 MiB long`, bytesOf(logText({ row: (k, c) => (k === at ? [...c, "9".repeat(1_150_000)] : null) }).text), { sentence: "the line is longer than 1 MiB", line: 5 + at });
   }
 
   // ---- cells that are not numbers -------------------------------------------------------------

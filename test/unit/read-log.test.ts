@@ -6,7 +6,7 @@ import { DomainError, LimitExceededError, LogFormatError } from "@/lib/errors";
 import { parseColumnMap, proposeColumnMap, type ColumnMap } from "@/lib/logs/columns";
 import { parseDecimal } from "@/lib/logs/parse-number";
 import { MAX_LINE_BYTES } from "@/lib/logs/preamble";
-import { fitSamplePeriod, readLog, type LogInfo, type SampleBlock } from "@/lib/logs/read-log";
+import { LogReader, fitSamplePeriod, readLog, type LogInfo, type SampleBlock } from "@/lib/logs/read-log";
 import { readLogHead, sniffLogHead } from "@/lib/logs/sniff";
 
 const enc = new TextEncoder();
@@ -298,7 +298,7 @@ describe("one line and header rule, whatever the chunk sizes", () => {
       const ok = await collect(enc.encode(`#${"n".repeat(MAX_LINE_BYTES - 1)}\n` + "time_us,gyro_roll,gyro_pitch,gyro_yaw\n" + rows), {}, chunk);
       expect(ok.summary.samples).toBe(3000);
       const e = await failure(enc.encode(`#${"n".repeat(MAX_LINE_BYTES)}\r\n` + "time_us,gyro_roll,gyro_pitch,gyro_yaw\n" + rows));
-      expect(e.message).toBe("line 1: the line is longer than 1024 KiB: this does not look like a CSV log");
+      expect(e.message).toBe("line 1: the line is longer than 1 MiB: this does not look like a CSV log");
     }
   });
   it("the head reader finds the header after 10,000 metadata lines or a 70 KB note, like the reader", async () => {
@@ -349,5 +349,29 @@ describe("rows whose cell count differs from the header's", () => {
       { header: "gyro_yaw", channel: { kind: "gyro", axis: "yaw", unit: "deg/s" } },
     ];
     expect((await failure(canonical(3000), { map })).message).toMatch(/the map binds the column "gyro_roll" twice/);
+  });
+});
+
+describe("LogReader pushed by hand (an upload checked while it streams)", () => {
+  const noRows = { begin: () => undefined, block: () => undefined, gap: () => undefined };
+  it("knows the header as soon as its line has arrived, and the summary at the end", () => {
+    const bytes = enc.encode(canonical(3000));
+    const reader = new LogReader(noRows);
+    reader.push(bytes.subarray(0, 1000));
+    expect(reader.headerFound).toMatchObject({ line: 5, metadata: { airframe: "Test-01" } });
+    reader.push(bytes.subarray(1000));
+    expect(reader.finish()).toMatchObject({ samples: 3000, droppedRows: 0, gapCount: 0, bytes: bytes.length });
+  });
+  it("throws the line and column of the first bad cell from the push that brings it", () => {
+    const bytes = enc.encode(canonical(3000).replace("\n2000,", "\n2000,zz"));
+    const reader = new LogReader(noRows);
+    let error: unknown;
+    try {
+      for (let at = 0; at < bytes.length; at += 4096) reader.push(bytes.subarray(at, at + 4096));
+    } catch (e) {
+      error = e;
+    }
+    expect(error).toBeInstanceOf(LogFormatError);
+    expect((error as LogFormatError).location).toMatchObject({ line: 8, column: 2, columnName: "gyro_roll" });
   });
 });
