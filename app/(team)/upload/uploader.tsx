@@ -33,9 +33,10 @@ interface Item {
   logId?: string;
 }
 
-// As far into a file as the reader looks for the header row (lib/logs/preamble.ts), so that long
-// metadata is read the same here as on the server.
-const HEAD_BYTES = 4 * 1024 * 1024;
+// As far into a file as the reader looks for the header row (it must start within 4 MiB, and a
+// line may be 1 MiB long: lib/logs/preamble.ts), so that long metadata reads the same here as on
+// the server and the header line is never cut.
+const HEAD_BYTES = 5 * 1024 * 1024;
 
 /** True when a map text binds every needed field, once each. */
 function mapComplete(mapText: string): boolean {
