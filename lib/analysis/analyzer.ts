@@ -9,24 +9,35 @@ import { classifyPeaks } from "./classify";
 import { OrderTracker, type OrderBlock } from "./order-tracker";
 import {
   DEFAULT_ANALYSIS,
+  SIGNAL_CHECKS,
   USABLE_NYQUIST_FRACTION,
   bandsBelow,
   floorCorner,
   welchOptionsOf,
   type AnalysisSettings,
 } from "./settings";
-import type {
-  AxisResult,
-  LogAnalysis,
-  MotorInBand,
-  MotorSummary,
-  MotorTrackPoint,
-  OrderLevel,
-  ThrottleBandAxis,
-  ThrottleBandResult,
+import {
+  ANALYSIS_VERSION,
+  type AxisResult,
+  type SignalCheck,
+  type LogAnalysis,
+  type MotorInBand,
+  type MotorSummary,
+  type MotorTrackPoint,
+  type OrderLevel,
+  type ThrottleBandAxis,
+  type ThrottleBandResult,
 } from "./types";
 
 const MAX_TRACK_POINTS = 300;
+
+/** Running extremes of one gyro axis and how many samples sat exactly at them. */
+interface SignalStats {
+  min: number;
+  max: number;
+  atMin: number;
+  atMax: number;
+}
 
 /** Accumulators of one throttle band. */
 interface BandAccumulator {
@@ -75,6 +86,7 @@ export class LogAnalyzer implements LogSink {
   private tracks: MotorTrackPoint[][] = [];
   private orders: { order: number; label: OrderLevel["label"] }[] = [];
   private tracker: OrderTracker | null = null;
+  private signal: SignalStats[] = [];
 
   constructor(settings: Partial<AnalysisSettings> = {}) {
     this.settings = { ...DEFAULT_ANALYSIS, ...settings };
@@ -101,6 +113,7 @@ export class LogAnalyzer implements LogSink {
     this.segmentPsd = AXES.map(() => new Float64Array(bins));
     this.overallSum = AXES.map(() => new Float64Array(bins));
     this.stored = AXES.map(() => []);
+    this.signal = AXES.map(() => ({ min: Infinity, max: -Infinity, atMin: 0, atMax: 0 }));
     this.throttleBandCount = info.hasThrottle ? this.settings.throttleBands : 1;
     this.throttleSamples = new Float64Array(this.throttleBandCount);
     this.orders = [
@@ -159,6 +172,7 @@ export class LogAnalyzer implements LogSink {
     const buffers = this.buffers;
     const throttle = block.throttle;
     const bandCount = this.throttleBandCount;
+    for (let a = 0; a < 3; a++) trackExtremes(this.signal[a] as SignalStats, block.gyro[a] as Float64Array, n);
     for (let i = 0; i < n; i++) {
       if (this.fill === 0) this.bufferStartS = block.timeS[i] ?? 0;
       const f = this.fill;
@@ -308,6 +322,13 @@ export class LogAnalyzer implements LogSink {
     const axes = {} as Record<Axis, AxisResult>;
     AXES.forEach((axis, a) => {
       const psd = psdOverall[a] as Float64Array;
+      const signal = checkSignal(this.signal[a] as SignalStats, summary.samples, psd, binHz, this.settings.minFreqHz, this.maxFreqHz);
+      if (!signal.usable) {
+        // Nothing of this axis is judged; its spectrum is kept only where it is a number.
+        for (let k = 0; k < bins; k++) if (!Number.isFinite(psd[k])) psd[k] = 0;
+        axes[axis] = { signal, psd: Array.from(psd), peaks: [], bandPower: this.bands.map(() => 0), floorDb: Number.NaN, rmsDegS: 0 };
+        return;
+      }
       const db = arrayToDb(psd);
       const peaks = spectralPeaks(db, binHz, {
         minFreqHz: this.settings.minFreqHz,
@@ -316,6 +337,7 @@ export class LogAnalyzer implements LogSink {
       });
       const usable = throttleBands.filter((b) => b.segments >= this.settings.minBandSegments);
       axes[axis] = {
+        signal,
         psd: Array.from(psd),
         peaks: classifyPeaks(peaks, axis, usable, binHz),
         bandPower: this.bands.map((b) => bandPower(psd, binHz, b)),
@@ -331,7 +353,7 @@ export class LogAnalyzer implements LogSink {
     });
 
     return {
-      version: 1,
+      version: ANALYSIS_VERSION,
       sampleRateHz: round(fs, 3),
       durationS: round(summary.durationS, 3),
       samples: summary.samples,
@@ -359,6 +381,50 @@ export class LogAnalyzer implements LogSink {
       motors,
     };
   }
+}
+
+function trackExtremes(st: SignalStats, x: Float64Array, n: number): void {
+  let { min, max, atMin, atMax } = st;
+  for (let i = 0; i < n; i++) {
+    const v = x[i] as number;
+    if (v > max) {
+      max = v;
+      atMax = 1;
+    } else if (v === max) atMax++;
+    if (v < min) {
+      min = v;
+      atMin = 1;
+    } else if (v === min) atMin++;
+  }
+  st.min = min;
+  st.max = max;
+  st.atMin = atMin;
+  st.atMax = atMax;
+}
+
+/** Whether a gyro axis carries a signal worth comparing ({@link SIGNAL_CHECKS}). */
+function checkSignal(st: SignalStats, samples: number, psd: Float64Array, binHz: number, loHz: number, hiHz: number): SignalCheck {
+  const n = Math.max(1, samples);
+  const clippedShare = st.max === st.min ? 1 : Math.max(st.atMax, st.atMin) / n;
+  const base = { clippedShare: round(clippedShare, 4), minDegS: st.min, maxDegS: st.max };
+  const peak = Math.max(Math.abs(st.min), Math.abs(st.max));
+  let finite = true;
+  for (let k = 0; k < psd.length; k++) if (!Number.isFinite(psd[k])) finite = false;
+  if (!finite || !(peak <= SIGNAL_CHECKS.maxPlausibleDegS)) {
+    return { ...base, usable: false, problem: "out-of-range", text: `values reach ${peak.toPrecision(3)} deg/s, beyond any rate gyro's range (a broken cell or a wrong unit)` };
+  }
+  if (st.max === st.min) {
+    return { ...base, usable: false, problem: "constant", text: `every sample is ${st.max} deg/s: the gyro was not recording or is stuck` };
+  }
+  const rms = Math.sqrt(bandPower(psd, binHz, { loHz, hiHz }));
+  if (!(rms >= SIGNAL_CHECKS.flatRmsDegS)) {
+    return { ...base, usable: false, problem: "flat", text: `vibration above ${loHz} Hz is only ${rms.toPrecision(2)} deg/s rms, less than one step of a gyro: no signal to judge` };
+  }
+  if (clippedShare >= SIGNAL_CHECKS.clippedShare) {
+    const at = st.atMax >= st.atMin ? st.max : st.min;
+    return { ...base, usable: false, problem: "clipped", text: `${(clippedShare * 100).toFixed(1)} % of the samples sit at ${at} deg/s: the gyro is saturated (clipped), which spreads false vibration over the spectrum` };
+  }
+  return { ...base, usable: true };
 }
 
 /** Index of the throttle band a value in 0..1 falls in; values outside are clamped. */

@@ -42,6 +42,30 @@ export const DEFAULT_ANALYSIS: AnalysisSettings = {
   minBandSegments: 8,
 };
 
+/**
+ * When a gyro axis carries no usable signal (issue: a log of zeros or of a stuck sensor must not
+ * read as a quiet, healthy airframe). An axis failing any check is not compared, and says why.
+ */
+export const SIGNAL_CHECKS = {
+  /**
+   * Below this rms over the analysed range the axis is flat: less than a sixth of one step of a
+   * 16-bit gyro at ±2000 deg/s full scale (0.061 deg/s per LSB; common MEMS gyro setting, from
+   * memory). A flying quad's vibration is several deg/s.
+   */
+  flatRmsDegS: 0.01,
+  /**
+   * No rate gyro measures this far (MEMS parts top out at a few thousand deg/s, from memory); a
+   * value beyond it is a broken cell, and its square would swamp (or overflow) the spectrum.
+   */
+  maxPlausibleDegS: 1e5,
+  /**
+   * A signal that sits exactly at its own extreme for this share of its samples is clipped
+   * (saturated): a continuous signal reaches its maximum about once, a quantised one a handful
+   * of times; 1 % of a log is seconds of flat tops, which spread harmonics over the spectrum.
+   */
+  clippedShare: 0.01,
+} as const;
+
 /** The share of Nyquist up to which a log's spectrum is trusted. */
 export const USABLE_NYQUIST_FRACTION = 0.9;
 

@@ -14,7 +14,23 @@ export interface LabelledPeak extends SpectralPeak {
   seenInBands: number[];
 }
 
+/** Why an axis's signal cannot be used: it is then not compared. */
+export type SignalProblem = "constant" | "flat" | "clipped" | "out-of-range";
+
+export interface SignalCheck {
+  usable: boolean;
+  problem?: SignalProblem;
+  /** One sentence for people, when not usable. */
+  text?: string;
+  /** Share of samples at the axis's own minimum or maximum value. */
+  clippedShare: number;
+  minDegS: number;
+  maxDegS: number;
+}
+
 export interface AxisResult {
+  /** Whether the axis carries a usable signal (absent in analyses stored before version 2). */
+  signal?: SignalCheck;
   /** One-sided PSD, (deg/s)²/Hz, on the shared frequency grid. */
   psd: number[];
   peaks: LabelledPeak[];
@@ -78,8 +94,14 @@ export interface MotorSummary {
   track: MotorTrackPoint[];
 }
 
+/**
+ * 2: signal checks per axis, rpm masking, more motor orders, per-bin scatter per throttle band.
+ * Every field added in 2 is optional in the type, so analyses stored as 1 still decode.
+ */
+export const ANALYSIS_VERSION = 2;
+
 export interface LogAnalysis {
-  version: 1;
+  version: 1 | 2;
   sampleRateHz: number;
   durationS: number;
   samples: number;

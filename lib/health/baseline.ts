@@ -68,6 +68,8 @@ export interface Baseline {
   motors: number[];
   throttleBands: BaselineThrottleBand[];
   modes: BaselineMode[];
+  /** Axes that some baseline log could not use (no signal, clipped …): never compared. */
+  unusableAxes?: { axis: Axis; reason: string }[];
   /** Every peak frequency seen in any baseline log, per axis (for telling new peaks). */
   peaks: Record<Axis, number[]>;
 }
@@ -179,8 +181,17 @@ export function buildBaseline(analyses: readonly LogAnalysis[]): Baseline {
     }
   }
 
+  const unusableAxes = AXES.flatMap((axis) => {
+    const bad = analyses.find((a) => a.axes[axis].signal?.usable === false);
+    return bad ? [{ axis, reason: bad.axes[axis].signal?.text ?? "no usable signal" }] : [];
+  });
+  if (unusableAxes.length === AXES.length) {
+    throw new InputError(`no gyro axis carries a usable signal in every baseline log (${unusableAxes.map((u) => `${u.axis}: ${u.reason}`).join("; ")}); choose other logs`);
+  }
+
   return {
     version: 1,
+    unusableAxes,
     logs: analyses.length,
     sampleRateHz,
     binHz,

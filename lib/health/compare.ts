@@ -81,6 +81,17 @@ export function compareWithBaseline(log: LogAnalysis, baseline: Baseline, option
     notCompared.push({ what: "throttle matching", reason: "only one of this log and the baseline has a throttle column; levels are compared over the whole log" });
   }
 
+  // An axis without a usable signal in the log or the baseline is not compared: a log of zeros
+  // or of a stuck gyro must never read as a quiet, healthy airframe.
+  const axes = AXES.filter((axis) => {
+    const problem = log.axes[axis].signal?.usable === false ? log.axes[axis].signal?.text : undefined;
+    if (problem) notCompared.push({ what: `${axis} axis`, reason: `not usable in this log: ${problem}` });
+    const inBaseline = baseline.unusableAxes?.find((u) => u.axis === axis);
+    if (inBaseline && !problem) notCompared.push({ what: `${axis} axis`, reason: `not usable in the baseline: ${inBaseline.reason}` });
+    return !problem && !inBaseline;
+  });
+  if (axes.length === 0) return unscored(notCompared, "no gyro axis carries a usable signal in both this log and the baseline, so the log is unusable and has no score");
+
   const matched: MatchedBand[] = [];
   for (const band of log.throttleBands) {
     const label = throttleBandLabel(band.lo, band.hi);
@@ -95,29 +106,21 @@ export function compareWithBaseline(log: LogAnalysis, baseline: Baseline, option
     }
     matched.push({ log: band, base, label });
   }
-  if (matched.length === 0) {
-    return {
-      score: Number.NaN,
-      status: "watch",
-      findings: [],
-      notCompared: [...notCompared, { what: "whole log", reason: "no throttle band has enough flying in both this log and the baseline" }],
-      comparedBands: [],
-    };
-  }
+  if (matched.length === 0) return unscored(notCompared, "no throttle band has enough flying in both this log and the baseline");
 
-  const orders = motorOrders(matched, baseline, options.motorPositions ?? {}, h);
-  const shifts = modeShifts(log, baseline, maxHz, orders, h);
+  const orders = motorOrders(axes, matched, baseline, options.motorPositions ?? {}, h);
+  const shifts = modeShifts(axes, log, baseline, maxHz, orders, h);
   const findings: Finding[] = [
     ...shifts,
     ...orders,
-    ...floorRises(log, baseline, matched, h, maxHz),
+    ...floorRises(axes, log, baseline, matched, h, maxHz),
   ];
   const floorRise = findings.some((f) => f.kind === "floor-rise");
   // Broadband noise above the corner lifts every peak and band up there: the floor rise says it once.
   findings.push(
-    ...newPeaks(log, baseline, matched, shifts, maxHz, h).filter((f) => !(floorRise && f.freqHz >= baseline.floorCornerHz)),
+    ...newPeaks(axes, log, baseline, matched, shifts, maxHz, h).filter((f) => !(floorRise && f.freqHz >= baseline.floorCornerHz)),
   );
-  findings.push(...bandRises(log, matched, baseline, findings, h));
+  findings.push(...bandRises(axes, log, matched, baseline, findings, h));
   findings.sort((a, b) => b.points - a.points);
 
   const taken = findings.reduce((s, f) => s + f.points, 0);
@@ -125,6 +128,14 @@ export function compareWithBaseline(log: LogAnalysis, baseline: Baseline, option
   let status = statusForScore(score, h);
   for (const f of findings) status = worstStatus(status, f.severity);
   return { score, status, findings, notCompared, comparedBands: matched.map((m) => m.label) };
+}
+
+/**
+ * A log that could not be judged: no score (NaN, null in JSON and the database) and never ok,
+ * because "nothing to see" is not "healthy".
+ */
+function unscored(notCompared: NotCompared[], reason: string): Assessment {
+  return { score: Number.NaN, status: "watch", findings: [], notCompared: [...notCompared, { what: "whole log", reason }], comparedBands: [] };
 }
 
 /**
@@ -154,9 +165,9 @@ function severityAndPoints(magnitude: number, t: StepThresholds, h: HealthThresh
   return severity ? { severity, points: penaltyFor(magnitude, t, h) } : null;
 }
 
-function modeShifts(log: LogAnalysis, baseline: Baseline, maxHz: number, orders: Finding[], h: HealthThresholds): Finding[] {
+function modeShifts(axes: readonly Axis[], log: LogAnalysis, baseline: Baseline, maxHz: number, orders: Finding[], h: HealthThresholds): Finding[] {
   const out: Finding[] = [];
-  for (const axis of AXES) {
+  for (const axis of axes) {
     const modes = baseline.modes.filter((m) => m.axis === axis && m.freqHz * MODE_SEARCH.above <= maxHz);
     // A motor order that grew strong enough to be found is a peak of its own, not a moved mode.
     const candidates = log.axes[axis].peaks.filter(
@@ -198,10 +209,10 @@ function modeShifts(log: LogAnalysis, baseline: Baseline, maxHz: number, orders:
   return out;
 }
 
-function motorOrders(matched: MatchedBand[], baseline: Baseline, positions: Record<number, string>, h: HealthThresholds): Finding[] {
+function motorOrders(axes: readonly Axis[], matched: MatchedBand[], baseline: Baseline, positions: Record<number, string>, h: HealthThresholds): Finding[] {
   const rises = baseline.motors.map((motor) => {
     let best: { axis: Axis; delta: number; freqHz: number } | null = null;
-    for (const axis of AXES) {
+    for (const axis of axes) {
       const deltas: number[] = [];
       const weights: number[] = [];
       const freqs: number[] = [];
@@ -245,9 +256,9 @@ function motorOrders(matched: MatchedBand[], baseline: Baseline, positions: Reco
   return out;
 }
 
-function newPeaks(log: LogAnalysis, baseline: Baseline, matched: MatchedBand[], shifts: Finding[], maxHz: number, h: HealthThresholds): Finding[] {
+function newPeaks(axes: readonly Axis[], log: LogAnalysis, baseline: Baseline, matched: MatchedBand[], shifts: Finding[], maxHz: number, h: HealthThresholds): Finding[] {
   const found: Finding[] = [];
-  for (const axis of AXES) {
+  for (const axis of axes) {
     for (const p of log.axes[axis].peaks) {
       if (p.kind === "motor" || p.freqHz > maxHz || p.freqHz < baseline.minFreqHz) continue;
       const known =
@@ -272,12 +283,12 @@ function newPeaks(log: LogAnalysis, baseline: Baseline, matched: MatchedBand[], 
   return keepStrongestPerFrequency(found, h.samePeakFraction);
 }
 
-function floorRises(log: LogAnalysis, baseline: Baseline, matched: MatchedBand[], h: HealthThresholds, maxHz: number): Finding[] {
+function floorRises(axes: readonly Axis[], log: LogAnalysis, baseline: Baseline, matched: MatchedBand[], h: HealthThresholds, maxHz: number): Finding[] {
   // Both floors over the same range: the baseline's corner, lowered like the analysis does for a
   // log that cannot reach it, up to the top both can show.
   const cornerHz = Math.min(baseline.floorCornerHz, 0.6 * maxHz);
   if (cornerHz >= maxHz) return [];
-  const perAxis = AXES.map((axis) => {
+  const perAxis = axes.map((axis) => {
     const deltas = matched.map(
       (m) =>
         floorOver(m.log.axes[axis].psdDb, log.settings.binHz, cornerHz, maxHz) -
@@ -305,7 +316,7 @@ function floorRises(log: LogAnalysis, baseline: Baseline, matched: MatchedBand[]
   ];
 }
 
-function bandRises(log: LogAnalysis, matched: MatchedBand[], baseline: Baseline, specific: Finding[], h: HealthThresholds): Finding[] {
+function bandRises(axes: readonly Axis[], log: LogAnalysis, matched: MatchedBand[], baseline: Baseline, specific: Finding[], h: HealthThresholds): Finding[] {
   const found: Finding[] = [];
   const hasFloorRise = specific.some((f) => f.kind === "floor-rise");
   baseline.bands.forEach((band, b) => {
@@ -321,7 +332,7 @@ function bandRises(log: LogAnalysis, matched: MatchedBand[], baseline: Baseline,
     const i = log.bands.findIndex((x) => x.loHz === band.loHz && x.hiHz === band.hiHz);
     if (i < 0) return;
     let best: { axis: Axis; delta: number } | null = null;
-    for (const axis of AXES) {
+    for (const axis of axes) {
       const deltas: number[] = [];
       const weights: number[] = [];
       let variance = 0;
