@@ -66,6 +66,36 @@ export const SIGNAL_CHECKS = {
   clippedShare: 0.01,
 } as const;
 
+/**
+ * rpm telemetry a motor cannot produce (ESC telemetry drops to 0 in bursts, sticks, glitches):
+ * a motor's order-tracking block with such a value is masked, never measured.
+ */
+export const TELEMETRY_LIMITS = {
+  /**
+   * Below this a propeller motor in flight is not turning (idle with props is a few thousand
+   * rpm; common practice). Below it the 1× would sit in the pilot's stick motion anyway.
+   */
+  minRpm: 600,
+  /** Above this no multirotor motor spins (the smallest high-kV motors reach about 60–80k; from memory). */
+  maxRpm: 100_000,
+  /**
+   * The fastest a motor can change its speed: about its top speed (≈ 40 000 rpm) over its
+   * mechanical time constant (≈ 20 ms for a racing motor with its prop; from memory), 2e6 rpm/s.
+   * Held telemetry is judged over the time since its value last changed.
+   */
+  maxSlewRpmPerS: 2e6,
+} as const;
+
+/**
+ * The orders each motor is tracked at: whole and half orders from 0.5× to 4× (the order spectrum
+ * between the whole orders shows rattle and bearing tones), and the blade pass when above 4×.
+ */
+export function trackedOrders(bladeCount: number): number[] {
+  const orders = [0.5, 1, 1.5, 2, 2.5, 3, 3.5, 4];
+  if (bladeCount > 4) orders.push(bladeCount);
+  return orders;
+}
+
 /** The share of Nyquist up to which a log's spectrum is trusted. */
 export const USABLE_NYQUIST_FRACTION = 0.9;
 

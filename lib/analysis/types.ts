@@ -44,16 +44,27 @@ export interface AxisResult {
 
 /** The levels of one motor order in one throttle band: power in dB re 1 (deg/s)², per axis. */
 export interface OrderLevel {
-  /** 1, 2 or the blade count. */
+  /** A multiple of the motor's rotation: 0.5, 1, 1.5 … 4 and the blade pass (version 1: 1, 2, blade pass). */
   order: number;
-  label: "1x" | "2x" | "blade-pass";
+  /** "0.5x" … "4x", or "blade-pass" for the order equal to the blade count. */
+  label: string;
   freqHz: number;
+  /**
+   * Whole orders: the exact order's power. Half orders: the strongest tone within ±0.25 orders
+   * (the order spectrum between the whole orders).
+   */
   powerDb: Record<Axis, number>;
+  /** Whole orders (version 2): the strongest tone 0.05–0.25 orders away (sidebands), dB. */
+  sideDb?: Record<Axis, number>;
 }
 
 export interface MotorInBand {
   motor: number;
+  /** Mean rpm over the motor's measured blocks. */
   meanRpm: number;
+  /** Order-tracking blocks in this band, and how many of them this motor's telemetry masked. */
+  blocks?: number;
+  maskedBlocks?: number;
   orders: OrderLevel[];
 }
 
@@ -90,6 +101,10 @@ export interface MotorTrackPoint {
 export interface MotorSummary {
   motor: number;
   meanRpm: number;
+  /** Share of the log's order-tracking blocks whose rpm telemetry was not believable. */
+  maskedShare?: number;
+  /** Masked blocks by reason: rpm 0, outside the plausible range, stuck, changing impossibly fast. */
+  maskedBlocks?: Record<"zero" | "range" | "stuck" | "slew", number>;
   /** The motor's 1× order through the log, at most a few hundred points. */
   track: MotorTrackPoint[];
 }

@@ -4,6 +4,7 @@ import { InputError } from "../errors";
 import { AXES, type Axis } from "../logs/columns";
 import type { FrequencyBand } from "../signal/bands";
 import { mean, median, round, stdDev } from "../signal/stats";
+import { DEFAULT_THRESHOLDS } from "./thresholds";
 
 /**
  * An airframe's known-good reference, built from one or more logs flown when it was healthy.
@@ -23,12 +24,26 @@ export interface BaselineAxisBand {
   psdDb: number[];
 }
 
+export interface BaselineOrder {
+  order: number;
+  /** Power per axis, dB re 1 (deg/s)², power mean over the logs' measured blocks. */
+  db: Record<Axis, number>;
+  /** Scatter of the per-log level across logs, dB, the largest over the axes (0 for one log). */
+  logSpreadDb: number;
+  /** Measured blocks behind the level, summed over the logs. */
+  blocks: number;
+  /** Whole orders: their sidebands' level per axis, dB. */
+  sideDb?: Record<Axis, number>;
+}
+
 export interface BaselineMotorBand {
   motor: number;
   meanRpm: number;
   /** 1× order power per axis, dB. */
   order1Db: Record<Axis, number>;
   logSpreadDb: number;
+  /** Every tracked order (version 2). */
+  orders?: BaselineOrder[];
 }
 
 export interface BaselineThrottleBand {
@@ -68,6 +83,8 @@ export interface Baseline {
   motors: number[];
   throttleBands: BaselineThrottleBand[];
   modes: BaselineMode[];
+  /** Motors whose rpm telemetry was masked in more than half of some baseline log. */
+  untrustedMotors?: number[];
   /** Axes that some baseline log could not use (no signal, clipped …): never compared. */
   unusableAxes?: { axis: Axis; reason: string }[];
   /** Every peak frequency seen in any baseline log, per axis (for telling new peaks). */
@@ -128,15 +145,24 @@ export function buildBaseline(analyses: readonly LogAnalysis[]): Baseline {
     }
     const motorBands: BaselineMotorBand[] = motors.map((motor) => {
       const found = parts.map((p) => p.band.motors.find((m) => m.motor === motor));
-      const order1 = found.map((m) => m?.orders[0]?.powerDb);
-      const order1Db = {} as Record<Axis, number>;
-      for (const axis of AXES) order1Db[axis] = mean(order1.map((o) => o?.[axis] ?? Number.NaN));
-      const strongest = order1.map((o) => (o ? Math.max(o.roll, o.pitch, o.yaw) : Number.NaN));
+      const orderSet = [...new Set(found.flatMap((m) => m?.orders.map((o) => o.order) ?? []))].sort((x, y) => x - y);
+      const orders: BaselineOrder[] = orderSet.map((order) => {
+        const levels = found.map((m) => m?.orders.find((o) => o.order === order)?.powerDb);
+        const db = {} as Record<Axis, number>;
+        for (const axis of AXES) db[axis] = powerMeanDb(levels.map((o) => o?.[axis] ?? Number.NaN));
+        const blocks = found.reduce((s, m) => s + Math.max(0, (m?.blocks ?? 0) - (m?.maskedBlocks ?? 0)), 0);
+        const sides = found.map((m) => m?.orders.find((o) => o.order === order)?.sideDb);
+        const sideDb = {} as Record<Axis, number>;
+        for (const axis of AXES) sideDb[axis] = powerMeanDb(sides.map((o) => o?.[axis] ?? Number.NaN));
+        return { order, db, sideDb, logSpreadDb: Math.max(...AXES.map((axis) => stdDev(levels.map((o) => o?.[axis] ?? Number.NaN)))), blocks };
+      });
+      const one = orders.find((o) => o.order === 1);
       return {
         motor,
-        meanRpm: mean(found.map((m) => m?.meanRpm ?? Number.NaN)),
-        order1Db,
-        logSpreadDb: stdDev(strongest),
+        meanRpm: mean(found.map((m) => (m && m.meanRpm > 0 ? m.meanRpm : Number.NaN))),
+        order1Db: one?.db ?? { roll: Number.NaN, pitch: Number.NaN, yaw: Number.NaN },
+        logSpreadDb: one?.logSpreadDb ?? 0,
+        orders,
       };
     });
     throttleBands.push({
@@ -192,6 +218,7 @@ export function buildBaseline(analyses: readonly LogAnalysis[]): Baseline {
   return {
     version: 1,
     unusableAxes,
+    untrustedMotors: motors.filter((motor) => analyses.some((a) => (a.motors.find((m) => m.motor === motor)?.maskedShare ?? 0) > DEFAULT_THRESHOLDS.maxMaskedShare)),
     logs: analyses.length,
     sampleRateHz,
     binHz,
@@ -205,6 +232,12 @@ export function buildBaseline(analyses: readonly LogAnalysis[]): Baseline {
     modes,
     peaks,
   };
+}
+
+/** Power mean of dB levels (the mean of the powers, in dB), skipping NaN. */
+function powerMeanDb(values: number[]): number {
+  const v = values.filter(Number.isFinite);
+  return v.length === 0 ? Number.NaN : 10 * Math.log10(v.reduce((s, x) => s + 10 ** (x / 10), 0) / v.length);
 }
 
 /** A log's per-band values re-indexed onto the baseline's bands (logs may have more bands). */

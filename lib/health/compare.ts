@@ -31,6 +31,11 @@ export interface Finding {
   deltaDb?: number;
   shiftPct?: number;
   motor?: number;
+  /** motor-order: the order that rose most (1 = the rotation rate) and every order that rose. */
+  order?: number;
+  orders?: number[];
+  /** motor-order: a prop (whole orders only) or a loose motor (half orders too). */
+  cause?: "prop" | "motor-mount";
   severity: Exclude<Status, "ok">;
   /** Points this finding took off the score. */
   points: number;
@@ -108,12 +113,17 @@ export function compareWithBaseline(log: LogAnalysis, baseline: Baseline, option
   }
   if (matched.length === 0) return unscored(notCompared, "no throttle band has enough flying in both this log and the baseline");
 
-  const orders = motorOrders(axes, matched, baseline, options.motorPositions ?? {}, h);
+  const positions = options.motorPositions ?? {};
+  const untrusted = untrustedMotors(log, baseline, h, notCompared);
+  const standings = orderStandings(axes, matched, baseline, untrusted);
+  const floor = floorRises(axes, log, baseline, matched, h, maxHz, bearingMotor(standings, h), positions);
+  // A motor named by the floor rise for its bearing tones is not named twice.
+  const orders = motorOrders(standings, positions, log.settings.bladeCount, h).filter((f) => !(f.cause === "motor-mount" && floor.some((x) => x.motor === f.motor) && f.order !== 1));
   const shifts = modeShifts(axes, log, baseline, maxHz, orders, h);
   const findings: Finding[] = [
     ...shifts,
     ...orders,
-    ...floorRises(axes, log, baseline, matched, h, maxHz),
+    ...floor,
   ];
   const floorRise = findings.some((f) => f.kind === "floor-rise");
   // Broadband noise above the corner lifts every peak and band up there: the floor rise says it once.
@@ -129,6 +139,41 @@ export function compareWithBaseline(log: LogAnalysis, baseline: Baseline, option
   for (const f of findings) status = worstStatus(status, f.severity);
   return { score, status, findings, notCompared, comparedBands: matched.map((m) => m.label) };
 }
+
+/**
+ * Motors whose rpm telemetry was masked for too much of this log or of a baseline log: their
+ * orders are not compared (a level from the few believable blocks would be biased towards the
+ * flying where the telemetry happens to work), and the reason is listed.
+ */
+function untrustedMotors(log: LogAnalysis, baseline: Baseline, h: HealthThresholds, notCompared: NotCompared[]): Set<number> {
+  const out = new Set<number>();
+  for (const m of log.motors) {
+    const share = m.maskedShare ?? 0;
+    if (share <= h.maxMaskedShare) continue;
+    out.add(m.motor);
+    const counts = m.maskedBlocks;
+    const why = counts
+      ? (Object.entries(counts) as [string, number][]).filter(([, n]) => n > 0).sort((a, b) => b[1] - a[1]).map(([r]) => MASK_WORDS[r] ?? r).join(", ")
+      : "";
+    notCompared.push({
+      what: `motor ${m.motor} orders`,
+      reason: `its rpm telemetry could not be believed in ${Math.round(share * 100)} % of the log${why ? ` (${why})` : ""}`,
+    });
+  }
+  for (const motor of baseline.untrustedMotors ?? []) {
+    if (out.has(motor)) continue;
+    out.add(motor);
+    notCompared.push({ what: `motor ${motor} orders`, reason: "its rpm telemetry could not be believed in most of a baseline log" });
+  }
+  return out;
+}
+
+const MASK_WORDS: Record<string, string> = {
+  zero: "reads 0",
+  range: "outside what a motor can spin",
+  stuck: "stuck at one value",
+  slew: "jumps faster than a motor can accelerate",
+};
 
 /**
  * A log that could not be judged: no score (NaN, null in JSON and the database) and never ok,
@@ -209,51 +254,146 @@ function modeShifts(axes: readonly Axis[], log: LogAnalysis, baseline: Baseline,
   return out;
 }
 
-function motorOrders(axes: readonly Axis[], matched: MatchedBand[], baseline: Baseline, positions: Record<number, string>, h: HealthThresholds): Finding[] {
-  const rises = baseline.motors.map((motor) => {
-    let best: { axis: Axis; delta: number; freqHz: number } | null = null;
-    for (const axis of axes) {
-      const deltas: number[] = [];
-      const weights: number[] = [];
-      const freqs: number[] = [];
-      for (const m of matched) {
-        const order = m.log.motors.find((x) => x.motor === motor)?.orders[0];
-        const level = order?.powerDb[axis];
-        if (!order || level === undefined || !Number.isFinite(level) || !(order.freqHz > 0)) continue;
-        const expected = atThrottle(baseline, m.log.meanThrottle, (b) => b.motors.find((x) => x.motor === motor)?.order1Db[axis] ?? Number.NaN);
-        if (!Number.isFinite(expected)) continue;
-        deltas.push(level - expected);
-        weights.push(m.log.segments);
-        freqs.push(order.freqHz);
+/** How one motor's order stands in this log: against its own baseline and against the other motors. */
+interface OrderStanding {
+  motor: number;
+  order: number;
+  /** The sidebands of a whole order (tones 0.05–0.25 orders away) rather than the order itself. */
+  side: boolean;
+  axis: Axis;
+  /** Rise over the motor's own baseline at matched throttle, dB (segment-weighted over bands). */
+  ownDb: number;
+  /** ownDb less the median rise of the other motors at the same order and axis, dB. */
+  excessDb: number;
+  /** Standard deviation expected of ownDb on a healthy airframe, dB. */
+  sigmaDb: number;
+  /** The motor's rotation rate over the compared bands, Hz. */
+  rotationHz: number;
+}
+
+/**
+ * 10/ln 10 dB: the standard deviation, in dB, of one block's power of a noise-like order is about
+ * this (the power of a demodulated noise bin is χ² with 2 degrees of freedom, i.e. exponential;
+ * Welch 1967, and the delta method for 10·log10), so a mean over N blocks scatters 4.34/√N dB.
+ */
+const DB_PER_UNIT_LOG = 10 / Math.LN10;
+
+function orderStandings(axes: readonly Axis[], matched: MatchedBand[], baseline: Baseline, excluded: ReadonlySet<number>): OrderStanding[] {
+  const raw: Omit<OrderStanding, "excessDb">[] = [];
+  for (const motor of baseline.motors) {
+    if (excluded.has(motor)) continue;
+    const orderSet = new Set(matched.flatMap((m) => m.log.motors.find((x) => x.motor === motor)?.orders.map((o) => o.order) ?? []));
+    for (const order of orderSet) for (const side of Number.isInteger(order) ? [false, true] : [false]) {
+      for (const axis of axes) {
+        let wSum = 0;
+        let dSum = 0;
+        let varSum = 0;
+        let fSum = 0;
+        for (const m of matched) {
+          const lm = m.log.motors.find((x) => x.motor === motor);
+          const lo = lm?.orders.find((o) => o.order === order);
+          const level = side ? lo?.sideDb?.[axis] : lo?.powerDb[axis];
+          if (!lm || !lo || level === undefined || !Number.isFinite(level) || !(lm.meanRpm > 0)) continue;
+          const bm = m.base.motors.find((x) => x.motor === motor);
+          const bo = bm?.orders?.find((o) => o.order === order) ?? (order === 1 && bm && !side ? { db: bm.order1Db, logSpreadDb: bm.logSpreadDb, blocks: 0 } : undefined);
+          const expected = atThrottle(baseline, m.log.meanThrottle, (b) => {
+            const x = b.motors.find((y) => y.motor === motor);
+            const o = x?.orders?.find((y) => y.order === order);
+            if (side) return o?.sideDb?.[axis] ?? Number.NaN;
+            return o ? o.db[axis] : order === 1 && x ? x.order1Db[axis] : Number.NaN;
+          });
+          if (!bo || !Number.isFinite(expected)) continue;
+          const nLog = Math.max(1, (lm.blocks ?? m.log.segments) - (lm.maskedBlocks ?? 0));
+          const nBase = Math.max(1, bo.blocks || m.base.segments);
+          const variance = DB_PER_UNIT_LOG ** 2 * (1 / nLog + 1 / nBase) + bo.logSpreadDb ** 2;
+          const w = m.log.segments;
+          wSum += w;
+          dSum += w * (level - expected);
+          varSum += w * w * variance;
+          fSum += w * (lm.meanRpm / 60);
+        }
+        if (wSum > 0) raw.push({ motor, order, side, axis, ownDb: dSum / wSum, sigmaDb: Math.sqrt(varSum) / wSum, rotationHz: fSum / wSum });
       }
-      const delta = weightedMean(deltas, weights);
-      if (Number.isFinite(delta) && (!best || delta > best.delta)) best = { axis, delta, freqHz: weightedMean(freqs, weights) };
     }
-    return { motor, best };
+  }
+  return raw.map((r) => {
+    const others = raw.filter((x) => x.motor !== r.motor && x.order === r.order && x.side === r.side && x.axis === r.axis).map((x) => x.ownDb);
+    return { ...r, excessDb: others.length > 0 ? r.ownDb - median(others) : Number.NaN };
   });
+}
+
+/**
+ * Whether an order of a motor rose against both its own baseline and the other motors: by the
+ * level step, beyond the scatter a healthy airframe shows (minSigma standard deviations). The
+ * magnitude is the smaller of the two rises.
+ */
+function standsOut(s: OrderStanding, h: HealthThresholds): number {
+  if (!Number.isFinite(s.excessDb) || !(s.ownDb >= h.minSigma * s.sigmaDb)) return Number.NaN;
+  const m = Math.min(s.ownDb, s.excessDb);
+  return m >= h.levelDb.watch ? m : Number.NaN;
+}
+
+/** The order itself, at a whole multiple of the rotation (not its sidebands, not a half order). */
+const isWhole = (s: OrderStanding) => Number.isInteger(s.order) && !s.side;
+const betweenName = (s: OrderStanding) => (s.side ? `sidebands of ${s.order}×` : `${s.order}×`);
+
+function orderName(order: number, bladeCount: number): string {
+  if (order === 1) return "its rotation rate";
+  if (order === bladeCount) return `its blade-pass rate (${order}× its rotation)`;
+  return `${order}× its rotation rate`;
+}
+
+function motorOrders(standings: OrderStanding[], positions: Record<number, string>, bladeCount: number, h: HealthThresholds): Finding[] {
   const out: Finding[] = [];
-  for (const { motor, best } of rises) {
-    if (!best) continue;
-    // A bent prop shakes at its own motor's rotation rate. When every motor's order rose alike the
-    // cause is broadband (bearings, airflow) and other findings say so; what counts here is how far
-    // this motor stands out from the others.
-    const others = rises.filter((r) => r.motor !== motor && r.best).map((r) => r.best?.delta ?? 0);
-    const excess = best.delta - Math.max(0, median(others));
-    if (!(excess >= h.levelDb.watch)) continue;
-    const graded = severityAndPoints(best.delta, h.levelDb, h);
+  for (const motor of new Set(standings.map((s) => s.motor))) {
+    const risen = standings
+      .filter((s) => s.motor === motor)
+      .map((s) => ({ s, magnitude: standsOut(s, h) }))
+      .filter((x) => Number.isFinite(x.magnitude))
+      .sort((a, b) => b.magnitude - a.magnitude);
+    // A bent or chipped prop shakes at its motor's whole orders (the flight controller's notches
+    // may take most of the 1× away, leaving 2× and above); a loose motor rattles, which adds
+    // half orders (sub-harmonics and sidebands) to the whole ones. Half orders alone, without a
+    // whole one, are the bearing's tones: the floor-rise finding names that motor.
+    const whole = risen.filter((x) => isWhole(x.s));
+    const top = whole[0];
+    if (!top) continue;
+    const halves = risen.filter((x) => !isWhole(x.s));
+    const graded = severityAndPoints(top.magnitude, h.levelDb, h);
     if (!graded) continue;
+    const { s } = top;
     const where = positions[motor] ? ` (${positions[motor]})` : "";
+    const orders = [...new Set(whole.map((x) => x.s.order))].sort((a, b) => a - b);
+    const rattle = halves.length > 0;
+    const at = `${orderName(s.order, bladeCount)} (about ${Math.round(s.rotationHz * s.order)} Hz${s.order === 1 ? "" : `; it turns at ${Math.round(s.rotationHz)} Hz`})`;
+    const advice = rattle
+      ? `with tones between its orders (${[...new Set(halves.map((x) => betweenName(x.s)))].slice(0, 3).join(", ")}) as a loose part rattles: check that motor's screws and mount, then its prop.`
+      : "look for a bent or chipped prop on it, then a bent motor shaft.";
     out.push({
-      axis: best.axis,
+      axis: s.axis,
       kind: "motor-order",
-      freqHz: round(best.freqHz, 1),
+      freqHz: round(s.rotationHz, 1),
       motor,
-      deltaDb: round(best.delta, 1),
+      order: s.order,
+      orders,
+      cause: rattle ? "motor-mount" : "prop",
+      deltaDb: round(s.ownDb, 1),
       ...graded,
-      text: `motor ${motor}${where} vibrates ${best.delta.toFixed(0)} dB more at its rotation rate (about ${Math.round(best.freqHz)} Hz) than in the baseline: look for a bent or chipped prop on it, then a bent motor shaft.`,
+      text: `motor ${motor}${where} vibrates ${s.ownDb.toFixed(0)} dB more at ${at} than in the baseline, and more than the other motors, ${advice}`,
     });
   }
   return out;
+}
+
+/** The motor whose half orders (tones between its whole orders) rose most, against both references. */
+function bearingMotor(standings: OrderStanding[], h: HealthThresholds): OrderStanding | null {
+  let best: { s: OrderStanding; magnitude: number } | null = null;
+  for (const s of standings) {
+    if (isWhole(s)) continue;
+    const magnitude = standsOut(s, h);
+    if (Number.isFinite(magnitude) && (!best || magnitude > best.magnitude)) best = { s, magnitude };
+  }
+  return best?.s ?? null;
 }
 
 function newPeaks(axes: readonly Axis[], log: LogAnalysis, baseline: Baseline, matched: MatchedBand[], shifts: Finding[], maxHz: number, h: HealthThresholds): Finding[] {
@@ -283,7 +423,16 @@ function newPeaks(axes: readonly Axis[], log: LogAnalysis, baseline: Baseline, m
   return keepStrongestPerFrequency(found, h.samePeakFraction);
 }
 
-function floorRises(axes: readonly Axis[], log: LogAnalysis, baseline: Baseline, matched: MatchedBand[], h: HealthThresholds, maxHz: number): Finding[] {
+function floorRises(
+  axes: readonly Axis[],
+  log: LogAnalysis,
+  baseline: Baseline,
+  matched: MatchedBand[],
+  h: HealthThresholds,
+  maxHz: number,
+  bearing: OrderStanding | null,
+  positions: Record<number, string>,
+): Finding[] {
   // Both floors over the same range: the baseline's corner, lowered like the analysis does for a
   // log that cannot reach it, up to the top both can show.
   const cornerHz = Math.min(baseline.floorCornerHz, 0.6 * maxHz);
@@ -304,14 +453,20 @@ function floorRises(axes: readonly Axis[], log: LogAnalysis, baseline: Baseline,
   const others = perAxis.slice(1).filter((x) => x.delta >= h.levelDb.watch).map((x) => x.axis);
   const also = others.length > 0 ? ` (also ${others.join(" and ")})` : "";
   const centre = Math.sqrt(cornerHz * maxHz);
+  // A worn bearing rings at its motor's non-integer orders: the motor whose half orders rose
+  // against its own baseline and the other motors is the one to check first.
+  const named = bearing
+    ? `, with tones between the whole orders of motor ${bearing.motor}${positions[bearing.motor] ? ` (${positions[bearing.motor]})` : ""} (${betweenName(bearing)} its rotation up ${bearing.ownDb.toFixed(0)} dB): typical of a worn bearing in that motor. With the battery disconnected, spin it by hand and feel for roughness.`
+    : ": typical of worn motor bearings or damaged props. With the battery disconnected, spin each motor by hand and feel for roughness.";
   return [
     {
       axis: top.axis,
       kind: "floor-rise",
       freqHz: round(centre, 0),
       deltaDb: round(top.delta, 1),
+      ...(bearing ? { motor: bearing.motor, order: bearing.order } : {}),
       ...graded,
-      text: `broadband noise above ${Math.round(cornerHz)} Hz is up ${top.delta.toFixed(0)} dB on ${top.axis}${also}: typical of worn motor bearings or damaged props. With the battery disconnected, spin each motor by hand and feel for roughness.`,
+      text: `broadband noise above ${Math.round(cornerHz)} Hz is up ${top.delta.toFixed(0)} dB on ${top.axis}${also}${named}`,
     },
   ];
 }
@@ -325,7 +480,7 @@ function bandRises(axes: readonly Axis[], log: LogAnalysis, matched: MatchedBand
     const explained = specific.some((f) => (f.kind === "mode-shift" || f.kind === "new-peak") && band.hiHz > 0.6 * f.freqHz && band.loHz < 1.4 * f.freqHz) ||
       (hasFloorRise && band.loHz >= baseline.floorCornerHz * 0.9) ||
       specific.some((f) => f.kind === "motor-order" && matched.some((m) => {
-        const order = m.log.motors.find((x) => x.motor === f.motor)?.orders[0]?.freqHz ?? 0;
+        const order = m.log.motors.find((x) => x.motor === f.motor)?.orders.find((o) => o.order === (f.order ?? 1))?.freqHz ?? 0;
         return order >= band.loHz && order < band.hiHz;
       }));
     if (explained) return;
