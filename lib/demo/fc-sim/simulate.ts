@@ -46,6 +46,8 @@ export interface LoggedLog {
   gyro: [Float64Array, Float64Array, Float64Array];
   throttle: Float64Array;
   rpm: Float64Array[];
+  /** Each motor's true speed at the logged instants, rev/min: the truth behind the telemetry (not written to files). */
+  trueRpm: Float64Array[];
   motors: number[];
 }
 
@@ -145,7 +147,7 @@ export function simulateFlight(base: SimAirframe, flight: FlightSpec, damage: Da
   const logs: LoggedLog[] = logRatesHz.map((rateHz) => {
     const n = Math.floor(total / (fs / rateHz));
     const make = () => new Float64Array(n);
-    return { rateHz, timeS: make(), gyro: [make(), make(), make()], throttle: make(), rpm: motors.map(make), motors: motors.map((m) => m.motor) };
+    return { rateHz, timeS: make(), gyro: [make(), make(), make()], throttle: make(), rpm: motors.map(make), trueRpm: motors.map(make), motors: motors.map((m) => m.motor) };
   });
   const steps = logRatesHz.map((r) => fs / r);
 
@@ -312,7 +314,10 @@ export function simulateFlight(base: SimAirframe, flight: FlightSpec, damage: Da
       log.gyro[1][i] = logged[1] ?? 0;
       log.gyro[2][i] = logged[2] ?? 0;
       log.throttle[i] = thr;
-      for (let m = 0; m < motorCount; m++) (log.rpm[m] as Float64Array)[i] = reported[m] ?? 0;
+      for (let m = 0; m < motorCount; m++) {
+        (log.rpm[m] as Float64Array)[i] = reported[m] ?? 0;
+        (log.trueRpm[m] as Float64Array)[i] = rpm[m] ?? 0;
+      }
     }
   }
   return { logs, truth, airframe, phases, dropouts };
