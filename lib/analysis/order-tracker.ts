@@ -17,7 +17,7 @@ import { makeWindow } from "../signal/windows";
  * spectrum within ±0.25 of the order at about 1/(2·revolutions per block) resolution, still
  * locked to the motor's own angle. So the order spectrum is covered from 0.25× to 4.25×: a whole
  * order reports its exact level (the DFT's zero bin, the plain coherent sum) and, as `side`, the
- * strongest tone 0.05–0.25 orders away (sidebands); a half order reports the strongest tone in
+ * strongest tone from just outside the block window's main lobe to 0.25 orders away (sidebands); a half order reports the strongest tone in
  * its band (a bearing's tones fall at non-integer orders that no fixed order would hit).
  *
  * Telemetry that cannot be true is not integrated into a level: per motor and per block, rpm
@@ -49,10 +49,19 @@ export interface OrderBlock {
    * outside the trusted range. Owned by the tracker; valid during the callback.
    */
   power: Float64Array[][];
-  /** Whole orders: the strongest tone 0.05–0.25 orders away, (deg/s)² (NaN for half orders). */
+  /** Whole orders: the strongest tone beside it (outside its main lobe, up to 0.25 orders away), (deg/s)² (NaN for half orders). */
   side: Float64Array[][];
   tS: number;
 }
+
+/**
+ * Half-width of the core of an order's main lobe whose energy is its level, in bins of the
+ * block's DFT. 0 (the exact coherent sum) keeps motors spinning 2 % apart (two bins at 400 Hz)
+ * apart; a wider core would keep the level of a tone a little off the logged rpm (late or noisy
+ * telemetry) but lets a near-identical motor's tone in: measured on the demo and the simulator's
+ * matrix, the exact sum named the right motor more often.
+ */
+const LOBE_CORE_BINS = 0;
 
 const ZERO = 1;
 const RANGE = 2;
@@ -100,6 +109,10 @@ export class OrderTracker {
   /** Per motor: stored sub-block sums [sub · halfSlots·3 + k·3 + axis]. */
   private readonly subRe: Float64Array[];
   private readonly subIm: Float64Array[];
+  /** Per motor: Σ window of the current sub-block, and of each stored one. */
+  private readonly subWeightNow: Float64Array;
+  private readonly subWeight: Float64Array[];
+  private readonly zeros: Float64Array;
   private readonly maxSubs: number;
   /** Zoom transforms by length (twice the sub-blocks of a block, rounded up to a power of two). */
   private readonly zooms = new Map<number, ComplexPowerSpectrum>();
@@ -154,6 +167,9 @@ export class OrderTracker {
     const subs = this.maxSubs * this.halfSlots.length * 3;
     this.subRe = Array.from({ length: motors }, () => new Float64Array(subs));
     this.subIm = Array.from({ length: motors }, () => new Float64Array(subs));
+    this.subWeightNow = new Float64Array(motors);
+    this.subWeight = Array.from({ length: motors }, () => new Float64Array(this.maxSubs));
+    this.zeros = new Float64Array(this.maxSubs);
     this.result = {
       throttle: 0,
       rotationHz: new Float64Array(motors),
@@ -218,9 +234,11 @@ export class OrderTracker {
     let f = this.fill;
     let index = this.sampleIndex;
     let angle = this.subAngle[m] ?? 0;
+    let weight = this.subWeightNow[m] ?? 0;
     const hasHalves = this.halfSlots.length > 0;
     for (let j = from; j < from + run; j++, f++, index++) {
       const wi = w[f] as number;
+      weight += wi;
       const x0 = (g0[j] as number) * wi;
       const x1 = (g1[j] as number) * wi;
       const x2 = (g2[j] as number) * wi;
@@ -268,10 +286,13 @@ export class OrderTracker {
       angle += 2 * dphi;
       if (hasHalves && angle >= 4 * Math.PI) {
         angle -= 4 * Math.PI;
+        this.subWeightNow[m] = weight;
         this.flushSub(m);
+        weight = 0;
       }
     }
     this.subAngle[m] = angle;
+    this.subWeightNow[m] = weight;
     this.re[m] = hc;
     this.im[m] = hs;
     this.rpmSum[m] = (this.rpmSum[m] ?? 0) + rpmSum;
@@ -301,6 +322,9 @@ export class OrderTracker {
     // More sub-blocks than a believable rpm allows: the motor is masked anyway (range); keep
     // summing into the last one.
     const into = Math.min(j, this.maxSubs - 1);
+    const weights = this.subWeight[m] as Float64Array;
+    weights[into] = (weights[into] ?? 0) + (this.subWeightNow[m] ?? 0);
+    this.subWeightNow[m] = 0;
     const dr = this.subRe[m] as Float64Array;
     const di = this.subIm[m] as Float64Array;
     for (let k = 0; k < this.halfSlots.length; k++) {
@@ -318,10 +342,10 @@ export class OrderTracker {
   }
 
   private emit(): void {
-    const n = this.blockLength;
+    const len = this.blockLength;
     const out = this.result;
     out.tS = this.startS;
-    out.throttle = this.throttleSum / n;
+    out.throttle = this.throttleSum / len;
     const scale = 2 / (this.windowSum * this.windowSum);
     // A value that never changes over a whole block while another motor's does is stuck
     // telemetry (a motor in flight never holds its speed to the last rpm for a quarter second).
@@ -331,7 +355,7 @@ export class OrderTracker {
       const reason: MaskReason | null =
         flags & ZERO ? "zero" : flags & RANGE ? "range" : flags & SLEW ? "slew" : anyChanged && this.changed[m] === 0 ? "stuck" : null;
       out.masked[m] = reason;
-      const f1 = reason ? Number.NaN : (this.rpmSum[m] ?? 0) / n / 60;
+      const f1 = reason ? Number.NaN : (this.rpmSum[m] ?? 0) / len / 60;
       out.rotationHz[m] = f1;
       // Keep the phasor on the unit circle despite rounding.
       const mag = Math.hypot(this.re[m] ?? 1, this.im[m] ?? 0) || 1;
@@ -341,6 +365,18 @@ export class OrderTracker {
       const subs = this.subCount[m] ?? 0;
       const width = this.halfSlots.length * 3;
       const zoom = this.zoomFor(subs);
+      const n = zoom.size;
+      // How a tone exactly on an order spreads over the zoom: the spectrum of the block's window
+      // as the sub-blocks sample it. Its energy within the main lobe, over its centre, makes the
+      // lobe's energy read A²/2 for such a tone.
+      const padding = n / Math.max(1, subs);
+      // Half-width of the core, in padded bins: LOBE_CORE_BINS of the unpadded DFT (0: the centre
+      // bin alone, the plain coherent sum).
+      const first = 1 + Math.floor(LOBE_CORE_BINS * padding);
+      const own = zoom.powers(this.subWeight[m] as Float64Array, this.zeros, subs);
+      let ownLobe = own[0] ?? 0;
+      for (let k = 1; k < first; k++) ownLobe += (own[k] ?? 0) + (own[n - k] ?? 0);
+      const lobeScale = ownLobe > 0 ? (own[0] ?? 0) / ownLobe : 1;
       for (let o = 0; o < this.orders.length; o++) {
         const p = out.power[m]?.[o] as Float64Array;
         const side = out.side[m]?.[o] as Float64Array;
@@ -352,12 +388,16 @@ export class OrderTracker {
           side[a] = Number.NaN;
           if (!measured) continue;
           const spectrum = zoom.powers(this.subRe[m] as Float64Array, this.subIm[m] as Float64Array, subs, width, o * 3 + a);
-          const n = zoom.size;
           if (whole) {
-            p[a] = scale * (spectrum[0] ?? 0);
-            // Bin k is (k/n)/2 orders away (wrapped): sidebands from 0.05 orders off.
+            // The order's level is the energy of the core of the main lobe around it.
+            let lobe = spectrum[0] ?? 0;
+            for (let k = 1; k < first; k++) lobe += (spectrum[k] ?? 0) + (spectrum[n - k] ?? 0);
+            p[a] = scale * lobe * lobeScale;
+            // Sidebands: the strongest tone beyond the main lobe (±2 bins) up to ±0.25 orders
+            // (bin k is (k/n)/2 orders away, wrapped).
+            const beyond = Math.max(1, Math.ceil(2.5 * padding));
             let best = 0;
-            for (let k = Math.ceil(0.1 * n); k <= n - Math.ceil(0.1 * n); k++) best = Math.max(best, spectrum[k] ?? 0);
+            for (let k = beyond; k <= n - beyond; k++) best = Math.max(best, spectrum[k] ?? 0);
             side[a] = scale * best;
           } else {
             let best = 0;
@@ -381,6 +421,8 @@ export class OrderTracker {
     for (const a of this.sumIm) a.fill(0);
     for (const a of this.subRe) a.fill(0);
     for (const a of this.subIm) a.fill(0);
+    for (const a of this.subWeight) a.fill(0);
+    this.subWeightNow.fill(0);
     this.subAngle.fill(0);
     this.subCount.fill(0);
   }

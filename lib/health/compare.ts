@@ -115,10 +115,16 @@ export function compareWithBaseline(log: LogAnalysis, baseline: Baseline, option
 
   const positions = options.motorPositions ?? {};
   const untrusted = untrustedMotors(log, baseline, h, notCompared);
-  const standings = orderStandings(axes, matched, baseline, untrusted);
-  const floor = floorRises(axes, log, baseline, matched, h, maxHz, bearingMotor(standings, h), positions);
+  const standings = orderStandings(axes, matched, baseline, untrusted, maxHz);
+  const sigmaX = excessSigma(standings);
+  const floor = floorRises(axes, log, baseline, matched, h, maxHz, bearingMotor(standings, h, sigmaX), positions);
   // A motor named by the floor rise for its bearing tones is not named twice.
-  const orders = motorOrders(standings, positions, log.settings.bladeCount, h).filter((f) => !(f.cause === "motor-mount" && floor.some((x) => x.motor === f.motor) && f.order !== 1));
+  // Broadband noise up high lifts every order up there at random, motor by motor: with a floor
+  // rise, an order above the floor corner is not evidence against one motor.
+  const cornerHz = Math.min(baseline.floorCornerHz, 0.6 * maxHz);
+  const orders = motorOrders(standings.filter((x) => floor.length === 0 || x.rotationHz * x.order < cornerHz), positions, log.settings.bladeCount, h, sigmaX).filter(
+    (f) => !(f.cause === "motor-mount" && floor.some((x) => x.motor === f.motor) && f.order !== 1),
+  );
   const shifts = modeShifts(axes, log, baseline, maxHz, orders, h);
   const findings: Finding[] = [
     ...shifts,
@@ -278,7 +284,7 @@ interface OrderStanding {
  */
 const DB_PER_UNIT_LOG = 10 / Math.LN10;
 
-function orderStandings(axes: readonly Axis[], matched: MatchedBand[], baseline: Baseline, excluded: ReadonlySet<number>): OrderStanding[] {
+function orderStandings(axes: readonly Axis[], matched: MatchedBand[], baseline: Baseline, excluded: ReadonlySet<number>, maxHz: number): OrderStanding[] {
   const raw: Omit<OrderStanding, "excessDb">[] = [];
   for (const motor of baseline.motors) {
     if (excluded.has(motor)) continue;
@@ -294,6 +300,9 @@ function orderStandings(axes: readonly Axis[], matched: MatchedBand[], baseline:
           const lo = lm?.orders.find((o) => o.order === order);
           const level = side ? lo?.sideDb?.[axis] : lo?.powerDb[axis];
           if (!lm || !lo || level === undefined || !Number.isFinite(level) || !(lm.meanRpm > 0)) continue;
+          // Near the top of the common range some of the band's blocks measured the order and
+          // others did not (or the baseline could): keep a 10 % margin for the rpm's spread.
+          if ((order * lm.meanRpm * 1.1) / 60 > maxHz || (order * lm.meanRpm) / 60 < baseline.minFreqHz) continue;
           const bm = m.base.motors.find((x) => x.motor === motor);
           const bo = bm?.orders?.find((o) => o.order === order) ?? (order === 1 && bm && !side ? { db: bm.order1Db, logSpreadDb: bm.logSpreadDb, blocks: 0 } : undefined);
           const expected = atThrottle(baseline, m.log.meanThrottle, (b) => {
@@ -324,13 +333,24 @@ function orderStandings(axes: readonly Axis[], matched: MatchedBand[], baseline:
 
 /**
  * Whether an order of a motor rose against both its own baseline and the other motors: by the
- * level step, beyond the scatter a healthy airframe shows (minSigma standard deviations). The
- * magnitude is the smaller of the two rises.
+ * level step, beyond the scatter a healthy airframe shows. The rise over its own baseline must
+ * exceed minSigma of its expected scatter (block counts and the baseline logs' spread); the rise
+ * over the other motors must exceed minSigma robust standard deviations (1.4826 × the median
+ * absolute deviation; Rousseeuw & Croux 1993) of that same difference over every motor, order
+ * and axis of this log — what healthy motors' orders wander by in this flight. Both must reach
+ * the watch step. The magnitude graded is the rise over its own baseline (a strong tone leaks a
+ * little into near-identical motors' orders, so the rise over the others understates it).
  */
-function standsOut(s: OrderStanding, h: HealthThresholds): number {
-  if (!Number.isFinite(s.excessDb) || !(s.ownDb >= h.minSigma * s.sigmaDb)) return Number.NaN;
-  const m = Math.min(s.ownDb, s.excessDb);
-  return m >= h.levelDb.watch ? m : Number.NaN;
+function standsOut(s: OrderStanding, h: HealthThresholds, excessSigmaDb: number): number {
+  if (!Number.isFinite(s.excessDb) || !(s.ownDb >= h.minSigma * s.sigmaDb) || !(s.excessDb >= h.minSigma * excessSigmaDb)) return Number.NaN;
+  return Math.min(s.ownDb, s.excessDb) >= h.levelDb.watch ? s.ownDb : Number.NaN;
+}
+
+/** 1.4826 × MAD of the rises over the other motors: a robust standard deviation, at least 0.5 dB. */
+function excessSigma(standings: OrderStanding[]): number {
+  const e = standings.map((s) => s.excessDb).filter(Number.isFinite);
+  const med = median(e);
+  return Math.max(0.5, 1.4826 * median(e.map((x) => Math.abs(x - med))));
 }
 
 /** The order itself, at a whole multiple of the rotation (not its sidebands, not a half order). */
@@ -343,12 +363,12 @@ function orderName(order: number, bladeCount: number): string {
   return `${order}× its rotation rate`;
 }
 
-function motorOrders(standings: OrderStanding[], positions: Record<number, string>, bladeCount: number, h: HealthThresholds): Finding[] {
+function motorOrders(standings: OrderStanding[], positions: Record<number, string>, bladeCount: number, h: HealthThresholds, sigmaX: number): Finding[] {
   const out: Finding[] = [];
   for (const motor of new Set(standings.map((s) => s.motor))) {
     const risen = standings
       .filter((s) => s.motor === motor)
-      .map((s) => ({ s, magnitude: standsOut(s, h) }))
+      .map((s) => ({ s, magnitude: standsOut(s, h, sigmaX) }))
       .filter((x) => Number.isFinite(x.magnitude))
       .sort((a, b) => b.magnitude - a.magnitude);
     // A bent or chipped prop shakes at its motor's whole orders (the flight controller's notches
@@ -364,7 +384,8 @@ function motorOrders(standings: OrderStanding[], positions: Record<number, strin
     const { s } = top;
     const where = positions[motor] ? ` (${positions[motor]})` : "";
     const orders = [...new Set(whole.map((x) => x.s.order))].sort((a, b) => a - b);
-    const rattle = halves.length > 0;
+    // Sidebands alone do not make a rattle: a strong or smeared 1× spills beside itself too.
+    const rattle = halves.some((x) => !x.s.side);
     const at = `${orderName(s.order, bladeCount)} (about ${Math.round(s.rotationHz * s.order)} Hz${s.order === 1 ? "" : `; it turns at ${Math.round(s.rotationHz)} Hz`})`;
     const advice = rattle
       ? `with tones between its orders (${[...new Set(halves.map((x) => betweenName(x.s)))].slice(0, 3).join(", ")}) as a loose part rattles: check that motor's screws and mount, then its prop.`
@@ -386,11 +407,11 @@ function motorOrders(standings: OrderStanding[], positions: Record<number, strin
 }
 
 /** The motor whose half orders (tones between its whole orders) rose most, against both references. */
-function bearingMotor(standings: OrderStanding[], h: HealthThresholds): OrderStanding | null {
+function bearingMotor(standings: OrderStanding[], h: HealthThresholds, sigmaX: number): OrderStanding | null {
   let best: { s: OrderStanding; magnitude: number } | null = null;
   for (const s of standings) {
     if (isWhole(s)) continue;
-    const magnitude = standsOut(s, h);
+    const magnitude = standsOut(s, h, sigmaX);
     if (Number.isFinite(magnitude) && (!best || magnitude > best.magnitude)) best = { s, magnitude };
   }
   return best?.s ?? null;

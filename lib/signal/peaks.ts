@@ -138,3 +138,47 @@ export function spectralPeaks(db: Float64Array, binHz: number, search: PeakSearc
   kept.sort((a, b) => a.freqHz - b.freqHz);
   return kept;
 }
+
+/**
+ * Peaks standing above the spectrum's local median, for following a known resonance: the dB
+ * spectrum minus its running median over ±`relWidth` of each frequency (a robust local
+ * background, as a median filter removes a slope or a neighbour's skirt but keeps a narrow
+ * tone), then scipy-style prominence ≥ `minProminenceDb` on that residual. A mode that moved
+ * onto the flank of another, or onto a filter's roll-off, is a shoulder without a maximum of its
+ * own in the plain spectrum; above the local median it is a peak again. Only peaks within
+ * [loHz, hiHz] are searched; `levelDb` is the plain spectrum's level there.
+ */
+export function peaksAboveLocalMedian(
+  db: ArrayLike<number>,
+  binHz: number,
+  loHz: number,
+  hiHz: number,
+  minProminenceDb: number,
+  relWidth = 0.12,
+): SpectralPeak[] {
+  const first = Math.max(1, Math.floor(loHz / binHz));
+  const last = Math.min(db.length - 2, Math.ceil(hiHz / binHz));
+  if (last - first < 2) return [];
+  const residual = new Float64Array(last - first + 1);
+  const window: number[] = [];
+  for (let k = first; k <= last; k++) {
+    const half = Math.max(3, Math.round(k * relWidth));
+    window.length = 0;
+    for (let j = Math.max(0, k - half); j <= Math.min(db.length - 1, k + half); j++) {
+      const v = db[j] ?? Number.NaN;
+      if (Number.isFinite(v)) window.push(v);
+    }
+    window.sort((a, b) => a - b);
+    const med = window.length === 0 ? 0 : (window[window.length >> 1] ?? 0);
+    residual[k - first] = (db[k] ?? med) - med;
+  }
+  const out: SpectralPeak[] = [];
+  for (const i of localMaxima(residual)) {
+    const p = peakProminence(residual, i);
+    if (p.prominence < minProminenceDb) continue;
+    const k = i + first;
+    const v = quadraticVertex(db[k - 1] ?? 0, db[k] ?? 0, db[k + 1] ?? 0);
+    out.push({ freqHz: (k + v.offset) * binHz, levelDb: v.value, prominenceDb: p.prominence, widthHz: peakWidth(residual, i, p) * binHz, bin: k });
+  }
+  return out;
+}

@@ -11,7 +11,8 @@ import type { DamageClass } from "../fc-sim/damage";
  * that dropped points to a crack, several modes that dropped together to loose frame screws; a
  * new resonance to something loose (the stack, or a camera or antenna: one finding kind for both,
  * so either class counts); a band's level up to loose screws (or, above 600 Hz, a bearing); a
- * motor's 1× to its prop; broadband noise up high to a bearing.
+ * motor's orders to its prop, or with half orders (rattle) to its loose screws; broadband noise up
+ * high to a bearing.
  */
 
 export interface Diagnosis {
@@ -45,7 +46,8 @@ const RULES = {
   // bearings or props above it: it does not point to a new resonance of a stack or a camera.
   "band-rise": (f) => (f.freqHz >= 600 ? ["bearing"] : ["loose-frame"]),
   "floor-rise": () => ["bearing"],
-  "motor-order": () => ["bent-prop"],
+  // Whole orders only: a prop; with tones between the orders (half orders, rattle): a loose motor.
+  "motor-order": (f) => (f.cause === "motor-mount" ? ["loose-motor"] : ["bent-prop"]),
 } satisfies Record<FindingKind, KindRule>;
 
 /** The assessment's findings as diagnoses, the one taking most points first. */
