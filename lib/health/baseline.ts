@@ -3,6 +3,7 @@ import type { LogAnalysis } from "../analysis/types";
 import { InputError } from "../errors";
 import { AXES, type Axis } from "../logs/columns";
 import type { FrequencyBand } from "../signal/bands";
+import { peaksAboveLocalMedian } from "../signal/peaks";
 import { mean, median, round, stdDev } from "../signal/stats";
 import { DEFAULT_THRESHOLDS } from "./thresholds";
 
@@ -67,6 +68,8 @@ export interface BaselineMode {
   spreadPct: number;
   /** Logs the mode was found in. */
   seenIn: number;
+  /** The mode in each baseline throttle band it shows in (version 2): where to look for it there. */
+  bands?: { index: number; freqHz: number; levelDb: number }[];
 }
 
 export interface Baseline {
@@ -93,6 +96,11 @@ export interface Baseline {
 
 /** A throttle band needs as many segments to enter a baseline as the analysis needs to search it. */
 const MIN_BAND_SEGMENTS = DEFAULT_ANALYSIS.minBandSegments;
+/**
+ * Prominence above the local median at which a known mode is followed (half the 6 dB gate for
+ * finding peaks anywhere): near a frequency where a mode is expected, a smaller bump is enough.
+ */
+export const MODE_TRACK_PROMINENCE_DB = 3;
 /** Modes within this fraction of each other across logs are one mode. */
 const MODE_CLUSTER_FRACTION = 0.04;
 
@@ -203,6 +211,7 @@ export function buildBaseline(analyses: readonly LogAnalysis[]): Baseline {
         levelDb: round(mean(cluster.map((p) => p.levelDb)), 2),
         spreadPct: round(((Math.max(...freqs) - Math.min(...freqs)) / f) * 100, 2),
         seenIn: cluster.length,
+        bands: modeInBands(throttleBands, axis, f, binHz),
       });
     }
   }
@@ -232,6 +241,20 @@ export function buildBaseline(analyses: readonly LogAnalysis[]): Baseline {
     modes,
     peaks,
   };
+}
+
+/**
+ * Where a mode sits in each throttle band of the baseline: the peak above the local median
+ * nearest to its all-throttle frequency within ±MODE_CLUSTER_FRACTION, if any.
+ */
+function modeInBands(bands: BaselineThrottleBand[], axis: Axis, freqHz: number, binHz: number): { index: number; freqHz: number; levelDb: number }[] {
+  const out: { index: number; freqHz: number; levelDb: number }[] = [];
+  for (const b of bands) {
+    const found = peaksAboveLocalMedian(b.axes[axis].psdDb, binHz, freqHz * (1 - MODE_CLUSTER_FRACTION), freqHz * (1 + MODE_CLUSTER_FRACTION), MODE_TRACK_PROMINENCE_DB);
+    const best = found.sort((x, y) => Math.abs(x.freqHz - freqHz) - Math.abs(y.freqHz - freqHz))[0];
+    if (best) out.push({ index: b.index, freqHz: round(best.freqHz, 2), levelDb: round(best.levelDb, 2) });
+  }
+  return out;
 }
 
 /** Power mean of dB levels (the mean of the powers, in dB), skipping NaN. */

@@ -2,7 +2,8 @@ import { DEFAULT_ANALYSIS, throttleBandLabel } from "../analysis/settings";
 import type { LogAnalysis, ThrottleBandResult } from "../analysis/types";
 import { AXES, type Axis } from "../logs/columns";
 import { median, round, weightedMean } from "../signal/stats";
-import { dbAt, type Baseline, type BaselineThrottleBand } from "./baseline";
+import { MODE_TRACK_PROMINENCE_DB, dbAt, type Baseline, type BaselineMode, type BaselineThrottleBand } from "./baseline";
+import { peaksAboveLocalMedian } from "../signal/peaks";
 import {
   DEFAULT_THRESHOLDS,
   penaltyFor,
@@ -21,7 +22,7 @@ import {
  * raise the level within a band, so it does not read as damage.
  */
 
-export type FindingKind = "mode-shift" | "new-peak" | "band-rise" | "floor-rise" | "motor-order";
+export type FindingKind = "mode-shift" | "mode-lost" | "new-peak" | "band-rise" | "floor-rise" | "motor-order";
 
 export interface Finding {
   axis: Axis;
@@ -125,7 +126,7 @@ export function compareWithBaseline(log: LogAnalysis, baseline: Baseline, option
   const orders = motorOrders(standings.filter((x) => floor.length === 0 || x.rotationHz * x.order < cornerHz), positions, log.settings.bladeCount, h, sigmaX).filter(
     (f) => !(f.cause === "motor-mount" && floor.some((x) => x.motor === f.motor) && f.order !== 1),
   );
-  const shifts = modeShifts(axes, log, baseline, maxHz, orders, h);
+  const shifts = modeShifts(axes, log, baseline, matched, maxHz, h);
   const findings: Finding[] = [
     ...shifts,
     ...orders,
@@ -216,29 +217,73 @@ function severityAndPoints(magnitude: number, t: StepThresholds, h: HealthThresh
   return severity ? { severity, points: penaltyFor(magnitude, t, h) } : null;
 }
 
-function modeShifts(axes: readonly Axis[], log: LogAnalysis, baseline: Baseline, maxHz: number, orders: Finding[], h: HealthThresholds): Finding[] {
+/**
+ * Each baseline mode followed into the log, throttle band by throttle band: in every compared
+ * band where the baseline shows the mode, the log's band spectrum is searched from −30 % to
+ * +15 % of the baseline's frequency there for a peak above the local median (a lower gate than
+ * for new peaks, and no analysis band limits the search, so a mode may move out of its band).
+ * The shift is the segment-weighted mean over the bands where both have it. A mode that every
+ * baseline log had and that the log shows in none of the compared bands is lost.
+ */
+function modeShifts(axes: readonly Axis[], log: LogAnalysis, baseline: Baseline, matched: MatchedBand[], maxHz: number, h: HealthThresholds): Finding[] {
   const out: Finding[] = [];
+  const binHz = log.settings.binHz;
   for (const axis of axes) {
     const modes = baseline.modes.filter((m) => m.axis === axis && m.freqHz * MODE_SEARCH.above <= maxHz);
-    // A motor order that grew strong enough to be found is a peak of its own, not a moved mode.
-    const candidates = log.axes[axis].peaks.filter(
-      (p) => p.kind !== "motor" && !orders.some((o) => Math.abs(o.freqHz - p.freqHz) <= 0.05 * p.freqHz),
-    );
-    // Greedy assignment by cost: relative frequency distance, with a level mismatch as tie-breaker,
-    // so that a weak neighbouring mode cannot steal the peak of a strong one that moved.
-    const pairs = modes.flatMap((m) =>
-      candidates
-        .filter((p) => p.freqHz >= m.freqHz * MODE_SEARCH.below && p.freqHz <= m.freqHz * MODE_SEARCH.above)
-        .map((p) => ({ m, p, cost: Math.abs(Math.log(p.freqHz / m.freqHz)) / 0.05 + Math.abs(p.levelDb - m.levelDb) / 6 })),
-    );
-    pairs.sort((a, b) => a.cost - b.cost);
-    const usedModes = new Set<typeof modes[number]>();
-    const usedPeaks = new Set<typeof candidates[number]>();
-    for (const { m, p } of pairs) {
-      if (usedModes.has(m) || usedPeaks.has(p)) continue;
-      usedModes.add(m);
-      usedPeaks.add(p);
-      const shiftPct = ((p.freqHz - m.freqHz) / m.freqHz) * 100;
+    const sightings = new Map<BaselineMode, { shift: number; freqHz: number; weight: number }[]>();
+    const expected = new Map<BaselineMode, number>();
+    for (const band of matched) {
+      const psd = band.log.axes[axis].psdDb;
+      // Where each mode is expected in this band, and the candidates around it.
+      const wanted = modes.flatMap((m) => {
+        const inBand = m.bands ? m.bands.find((b) => b.index === band.base.index) : { freqHz: m.freqHz, levelDb: m.levelDb };
+        return inBand ? [{ m, f: inBand.freqHz, level: inBand.levelDb }] : [];
+      });
+      for (const w of wanted) expected.set(w.m, (expected.get(w.m) ?? 0) + 1);
+      const orderFreqs = band.log.motors.flatMap((x) => x.orders.filter((o) => Number.isInteger(o.order)).map((o) => o.freqHz)).filter((f) => f > 0);
+      const pairs = wanted.flatMap((w) =>
+        peaksAboveLocalMedian(psd, binHz, w.f * MODE_SEARCH.below, w.f * MODE_SEARCH.above, MODE_TRACK_PROMINENCE_DB)
+          // A peak away from the mode that sits on a motor order in this band is that order, not
+          // the moved mode (an order passing right over the mode cannot be told from it).
+          .filter((p) => Math.abs(p.freqHz - w.f) <= 0.03 * w.f || !orderFreqs.some((f) => Math.abs(f - p.freqHz) <= 0.03 * p.freqHz))
+          // Greedy assignment by cost: relative frequency distance, with a level mismatch as
+          // tie-breaker, so that a weak neighbouring mode cannot steal a strong one's peak.
+          .map((p) => ({ w, p, cost: Math.abs(Math.log(p.freqHz / w.f)) / 0.05 + Math.abs(p.levelDb - w.level) / 6 })),
+      );
+      pairs.sort((a, b) => a.cost - b.cost);
+      const usedModes = new Set<BaselineMode>();
+      const usedPeaks = new Set<number>();
+      for (const { w, p } of pairs) {
+        if (usedModes.has(w.m) || usedPeaks.has(p.bin)) continue;
+        usedModes.add(w.m);
+        usedPeaks.add(p.bin);
+        const list = sightings.get(w.m) ?? [];
+        list.push({ shift: (p.freqHz - w.f) / w.f, freqHz: p.freqHz, weight: band.log.segments });
+        sightings.set(w.m, list);
+      }
+    }
+    for (const m of modes) {
+      const seen = sightings.get(m) ?? [];
+      const bandsExpected = expected.get(m) ?? 0;
+      if (seen.length === 0) {
+        // Only a mode the baseline always had, expected in at least two compared bands, is
+        // missed when it is nowhere in sight; anything less could be the baseline's luck.
+        if (m.seenIn < baseline.logs || bandsExpected < 2) continue;
+        const graded = severityAndPoints(h.modeShiftPct.inspect, h.modeShiftPct, h);
+        if (!graded) continue;
+        out.push({
+          axis,
+          kind: "mode-lost",
+          freqHz: round(m.freqHz, 1),
+          baselineFreqHz: round(m.freqHz, 1),
+          ...graded,
+          text: `${axis} mode at ${Math.round(m.freqHz)} Hz, in every baseline log, is gone: no peak from ${Math.round(m.freqHz * MODE_SEARCH.below)} to ${Math.round(m.freqHz * MODE_SEARCH.above)} Hz in any compared throttle band. A crack or loose screws can lower and damp a mode until it no longer shows: check the arms for cracks and the frame screws for tightness.`,
+        });
+        continue;
+      }
+      const weights = seen.map((x) => x.weight);
+      const shiftPct = weightedMean(seen.map((x) => x.shift), weights) * 100;
+      const nowHz = weightedMean(seen.map((x) => x.freqHz), weights);
       // The baseline's own scatter of this mode is not held against the log.
       // A frame does not stiffen by itself: a rise is most often a peak estimate wobbling on a broad
       // mode, so it counts half.
@@ -249,12 +294,12 @@ function modeShifts(axes: readonly Axis[], log: LogAnalysis, baseline: Baseline,
       const drop = -shiftPct / 100;
       const stiffnessLoss = (1 - (1 - drop) ** 2) * 100;
       const text = dropped
-        ? `${axis} mode at ${Math.round(m.freqHz)} Hz dropped ${Math.abs(shiftPct).toFixed(0)} % since baseline (now ${Math.round(p.freqHz)} Hz): about ${stiffnessLoss.toFixed(0)} % less stiffness. Check the arms for cracks and the frame screws for tightness.`
-        : `${axis} mode at ${Math.round(m.freqHz)} Hz rose ${shiftPct.toFixed(0)} % since baseline (now ${Math.round(p.freqHz)} Hz): the frame is stiffer or lighter than it was. If arms or the stack were changed, set a new baseline.`;
+        ? `${axis} mode at ${Math.round(m.freqHz)} Hz dropped ${Math.abs(shiftPct).toFixed(0)} % since baseline (now ${Math.round(nowHz)} Hz): about ${stiffnessLoss.toFixed(0)} % less stiffness. Check the arms for cracks and the frame screws for tightness.`
+        : `${axis} mode at ${Math.round(m.freqHz)} Hz rose ${shiftPct.toFixed(0)} % since baseline (now ${Math.round(nowHz)} Hz): the frame is stiffer or lighter than it was. If arms or the stack were changed, set a new baseline.`;
       // A stiffer frame is a change to note, not a danger.
       const severity = dropped ? graded.severity : "watch";
       const points = dropped ? graded.points : Math.min(graded.points, h.penalty.watch);
-      out.push({ axis, kind: "mode-shift", freqHz: round(p.freqHz, 1), baselineFreqHz: round(m.freqHz, 1), shiftPct: round(shiftPct, 1), severity, points, text });
+      out.push({ axis, kind: "mode-shift", freqHz: round(nowHz, 1), baselineFreqHz: round(m.freqHz, 1), shiftPct: round(shiftPct, 1), severity, points, text });
     }
   }
   return out;
@@ -498,7 +543,7 @@ function bandRises(axes: readonly Axis[], log: LogAnalysis, matched: MatchedBand
   baseline.bands.forEach((band, b) => {
     // A more specific finding inside the band already explains its rise.
     // A resonance that moved or appeared lifts its skirts too: it explains bands within ±40 % of it.
-    const explained = specific.some((f) => (f.kind === "mode-shift" || f.kind === "new-peak") && band.hiHz > 0.6 * f.freqHz && band.loHz < 1.4 * f.freqHz) ||
+    const explained = specific.some((f) => (f.kind === "mode-shift" || f.kind === "mode-lost" || f.kind === "new-peak") && band.hiHz > 0.6 * f.freqHz && band.loHz < 1.4 * f.freqHz) ||
       (hasFloorRise && band.loHz >= baseline.floorCornerHz * 0.9) ||
       specific.some((f) => f.kind === "motor-order" && matched.some((m) => {
         const order = m.log.motors.find((x) => x.motor === f.motor)?.orders.find((o) => o.order === (f.order ?? 1))?.freqHz ?? 0;
