@@ -23,6 +23,8 @@ export interface BaselineAxisBand {
   floorLogSpreadDb: number;
   /** Mean PSD in dB on a grid of binHz, for levels at any frequency. */
   psdDb: number[];
+  /** Per bin of psdDb: scatter of the per-log band spectra across logs, dB (version 2; 0 for one log). */
+  psdLogSpreadDb?: number[];
 }
 
 export interface BaselineOrder {
@@ -90,7 +92,10 @@ export interface Baseline {
   untrustedMotors?: number[];
   /** Axes that some baseline log could not use (no signal, clipped …): never compared. */
   unusableAxes?: { axis: Axis; reason: string }[];
-  /** Every peak frequency seen in any baseline log, per axis (for telling new peaks). */
+  /**
+   * Known peaks per axis: the ones that recur (version 2; see {@link recurringPeaks}). Version 1
+   * kept every peak of every band and log, which covered most of the frequency axis.
+   */
   peaks: Record<Axis, number[]>;
 }
 
@@ -149,6 +154,9 @@ export function buildBaseline(analyses: readonly LogAnalysis[]): Baseline {
         psdDb: Array.from({ length: gridBins }, (_, k) =>
           round(mean(parts.map((p) => dbAt(p.band.axes[axis].psdDb, p.a.settings.binHz, k * binHz))), 2),
         ),
+        psdLogSpreadDb: Array.from({ length: gridBins }, (_, k) =>
+          round(stdDev(parts.map((p) => dbAt(p.band.axes[axis].psdDb, p.a.settings.binHz, k * binHz))), 1),
+        ),
       };
     }
     const motorBands: BaselineMotorBand[] = motors.map((motor) => {
@@ -194,11 +202,7 @@ export function buildBaseline(analyses: readonly LogAnalysis[]): Baseline {
   const peaks = {} as Record<Axis, number[]>;
   const modes: BaselineMode[] = [];
   for (const axis of AXES) {
-    const all = analyses.flatMap((a) => [
-      ...a.axes[axis].peaks.map((p) => p.freqHz),
-      ...a.throttleBands.flatMap((b) => b.axes[axis].peaks.map((p) => p.freqHz)),
-    ]);
-    peaks[axis] = [...new Set(all.map((f) => round(f, 1)))].filter((f) => f <= maxFreqHz).sort((x, y) => x - y);
+    peaks[axis] = recurringPeaks(analyses, axis, maxFreqHz);
     const structural = analyses.map((a) => a.axes[axis].peaks.filter((p) => p.kind === "structural" && p.freqHz <= maxFreqHz));
     for (const cluster of clusterModes(structural)) {
       // A mode must show in most baseline logs (all of two, two of three …) to be trusted.
@@ -255,6 +259,30 @@ function modeInBands(bands: BaselineThrottleBand[], axis: Axis, freqHz: number, 
     if (best) out.push({ index: b.index, freqHz: round(best.freqHz, 2), levelDb: round(best.levelDb, 2) });
   }
   return out;
+}
+
+/** A peak is known when it recurs in at least this share of the baseline's (log, band) spectra. */
+const KNOWN_PEAK_SHARE = 0.5;
+/** Peaks within this fraction of each other are one peak for the recurrence count. */
+const SAME_PEAK_FRACTION = 0.03;
+
+/**
+ * The peaks of a baseline that recur: a peak counts as known when, in at least half of the
+ * baseline's (log × throttle band) spectra with enough segments, and in at least two of them, a
+ * peak lies within ±3 % of it. A resonance of the airframe shows up in most of them; a noise
+ * peak of one sparse band falls at a random frequency and does not recur (with k spectra, a
+ * ±3 % coincidence by chance in half of them is rare), and a motor order moves with throttle.
+ */
+export function recurringPeaks(analyses: readonly LogAnalysis[], axis: Axis, maxFreqHz: number): number[] {
+  const cells = analyses.flatMap((a) => a.throttleBands.filter((b) => b.segments >= MIN_BAND_SEGMENTS).map((b) => b.axes[axis].peaks.map((p) => p.freqHz)));
+  const need = Math.max(2, Math.ceil(KNOWN_PEAK_SHARE * cells.length));
+  const known: number[] = [];
+  for (const f of cells.flat().sort((x, y) => x - y)) {
+    if (f > maxFreqHz || known.some((k) => Math.abs(k - f) <= SAME_PEAK_FRACTION * f)) continue;
+    const hits = cells.map((c) => c.filter((g) => Math.abs(g - f) <= SAME_PEAK_FRACTION * f)).filter((c) => c.length > 0);
+    if (hits.length >= need) known.push(round(median(hits.map((c) => c[0] ?? f)), 1));
+  }
+  return known;
 }
 
 /** Power mean of dB levels (the mean of the powers, in dB), skipping NaN. */

@@ -462,26 +462,88 @@ function bearingMotor(standings: OrderStanding[], h: HealthThresholds, sigmaX: n
   return best?.s ?? null;
 }
 
+/**
+ * New resonances, seen wherever they fall: per compared throttle band and bin, the log's band
+ * spectrum less the baseline's there, judged against the scatter expected of it — the Welch
+ * estimate of K segments scatters about 4.34/√K dB per bin (χ² with 2K degrees of freedom;
+ * Welch 1967), in the log and in the baseline, plus the baseline logs' own spread at that bin.
+ * The excess is averaged over the bands (weighted by segments); a local maximum at least the
+ * watch step up and minSigma expected deviations above zero, where the log shows a peak above
+ * its local median, is a new peak. Bins near a motor's whole orders in a band (orders move with
+ * throttle and have their own finding), near a moved or lost mode, or at a known (recurring)
+ * baseline peak are not counted.
+ */
 function newPeaks(axes: readonly Axis[], log: LogAnalysis, baseline: Baseline, matched: MatchedBand[], shifts: Finding[], maxHz: number, h: HealthThresholds): Finding[] {
   const found: Finding[] = [];
+  const binHz = log.settings.binHz;
+  const first = Math.ceil(baseline.minFreqHz / binHz);
+  const last = Math.floor(maxHz / binHz);
+  if (last - first < 3) return [];
   for (const axis of axes) {
-    for (const p of log.axes[axis].peaks) {
-      if (p.kind === "motor" || p.freqHz > maxHz || p.freqHz < baseline.minFreqHz) continue;
+    const sum = new Float64Array(last + 1);
+    const wsum = new Float64Array(last + 1);
+    const var2 = new Float64Array(last + 1);
+    const logSum = new Float64Array(last + 1);
+    for (const m of matched) {
+      const orderFreqs = m.log.motors.flatMap((x) => x.orders.filter((o) => Number.isInteger(o.order)).map((o) => o.freqHz)).filter((f) => f > 0);
+      // Within a throttle band each order sweeps as rpm does, rpm ∝ √throttle (thrust ∝ rpm²):
+      // a half-width of (√hi − √lo)/(√hi + √lo) around its mean, and 2 % for the motors' spread.
+      const sweep = (Math.sqrt(m.log.hi) - Math.sqrt(m.log.lo)) / (Math.sqrt(m.log.hi) + Math.sqrt(m.log.lo)) + 0.02;
+      const w = m.log.segments;
+      const chi = DB_PER_UNIT_LOG ** 2 * (1 / Math.max(1, m.log.segments) + 1 / Math.max(1, m.base.segments));
+      const spread = m.base.axes[axis].psdLogSpreadDb;
+      for (let k = first; k <= last; k++) {
+        const f = k * binHz;
+        const level = m.log.axes[axis].psdDb[k] ?? Number.NaN;
+        logSum[k] = (logSum[k] ?? 0) + w * (Number.isFinite(level) ? level : 0);
+        if (orderFreqs.some((o) => Math.abs(o - f) <= sweep * o)) continue;
+        const base = dbAt(m.base.axes[axis].psdDb, baseline.binHz, f);
+        if (!Number.isFinite(level) || !Number.isFinite(base)) continue;
+        const s = spread ? dbAt(spread, baseline.binHz, f) : 0;
+        sum[k] = (sum[k] ?? 0) + w * (level - base);
+        wsum[k] = (wsum[k] ?? 0) + w;
+        var2[k] = (var2[k] ?? 0) + w * w * (chi + (Number.isFinite(s) ? s * s : 0));
+      }
+    }
+    const total = matched.reduce((s, m) => s + m.log.segments, 0);
+    const excess = new Float64Array(last + 1).fill(Number.NaN);
+    const sigma = new Float64Array(last + 1).fill(Number.NaN);
+    const logDb = new Float64Array(last + 1);
+    for (let k = first; k <= last; k++) {
+      logDb[k] = (logSum[k] ?? 0) / Math.max(1, total);
+      const w = wsum[k] ?? 0;
+      // A bin that most bands could not judge (motor orders sweep over it) is left out.
+      if (w < 0.5 * total) continue;
+      excess[k] = (sum[k] ?? 0) / w;
+      sigma[k] = Math.sqrt(var2[k] ?? 0) / w;
+    }
+    const tonal = peaksAboveLocalMedian(logDb, binHz, baseline.minFreqHz, maxHz, MODE_TRACK_PROMINENCE_DB);
+    for (const p of tonal) {
+      // The largest excess within ±1 bin of the log's peak.
+      let best = Number.NaN;
+      let at = p.bin;
+      for (let k = p.bin - 1; k <= p.bin + 1; k++) {
+        const e = excess[k] ?? Number.NaN;
+        if (Number.isFinite(e) && !(e <= best)) {
+          best = e;
+          at = k;
+        }
+      }
+      const s = sigma[at] ?? Number.NaN;
+      if (!Number.isFinite(best) || !(best >= h.minSigma * s)) continue;
       const known =
-        baseline.peaks[axis].some((f) => Math.abs(f - p.freqHz) <= h.samePeakFraction * p.freqHz) ||
-        shifts.some((s) => Math.abs(s.freqHz - p.freqHz) <= h.samePeakFraction * p.freqHz);
+        baseline.peaks[axis].some((f) => Math.abs(f - p.freqHz) <= 0.02 * p.freqHz) ||
+        shifts.some((x) => Math.abs(x.freqHz - p.freqHz) <= h.samePeakFraction * p.freqHz || Math.abs((x.baselineFreqHz ?? 0) - p.freqHz) <= h.samePeakFraction * p.freqHz);
       if (known) continue;
-      const deltas = matched.map((m) => dbAt(m.log.axes[axis].psdDb, log.settings.binHz, p.freqHz) - atThrottle(baseline, m.log.meanThrottle, (b) => dbAt(b.axes[axis].psdDb, baseline.binHz, p.freqHz)));
-      const delta = weightedMean(deltas, matched.map((m) => m.log.segments));
-      const graded = Number.isFinite(delta) ? severityAndPoints(delta, h.levelDb, h) : null;
+      const graded = severityAndPoints(best, h.levelDb, h);
       if (!graded) continue;
       found.push({
         axis,
         kind: "new-peak",
         freqHz: round(p.freqHz, 1),
-        deltaDb: round(delta, 1),
+        deltaDb: round(best, 1),
         ...graded,
-        text: `new ${axis} peak at ${Math.round(p.freqHz)} Hz, ${delta.toFixed(0)} dB above the baseline there: something has come loose or is touching. Check the flight-controller stack, camera mount, antenna and battery strap.`,
+        text: `new ${axis} peak at ${Math.round(p.freqHz)} Hz, ${best.toFixed(0)} dB above the baseline there: something has come loose or is touching. Check the flight-controller stack, camera mount, antenna and battery strap.`,
       });
     }
   }
