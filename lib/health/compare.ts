@@ -386,16 +386,38 @@ function orderStandings(axes: readonly Axis[], matched: MatchedBand[], baseline:
  * the watch step. The magnitude graded is the rise over its own baseline (a strong tone leaks a
  * little into near-identical motors' orders, so the rise over the others understates it).
  */
-function standsOut(s: OrderStanding, h: HealthThresholds, excessSigmaDb: number): number {
-  if (!Number.isFinite(s.excessDb) || !(s.ownDb >= h.minSigma * s.sigmaDb) || !(s.excessDb >= h.minSigma * excessSigmaDb)) return Number.NaN;
+function standsOut(s: OrderStanding, h: HealthThresholds, excessSigmaDb: (s: OrderStanding) => number): number {
+  if (!Number.isFinite(s.excessDb) || !(s.ownDb >= h.minSigma * s.sigmaDb) || !(s.excessDb >= h.minSigma * excessSigmaDb(s))) return Number.NaN;
   return Math.min(s.ownDb, s.excessDb) >= h.levelDb.watch ? s.ownDb : Number.NaN;
 }
 
-/** 1.4826 × MAD of the rises over the other motors: a robust standard deviation, at least 0.5 dB. */
-function excessSigma(standings: OrderStanding[]): number {
-  const e = standings.map((s) => s.excessDb).filter(Number.isFinite);
+/** 1.4826 × MAD: a robust standard deviation (Rousseeuw & Croux 1993), at least 0.5 dB. */
+function robustSigma(values: readonly number[]): number {
+  const e = values.filter(Number.isFinite);
   const med = median(e);
   return Math.max(0.5, 1.4826 * median(e.map((x) => Math.abs(x - med))));
+}
+
+/**
+ * The scatter of the rises over the other motors, per order (and sidebands apart): the larger
+ * of that order's robust spread over the other motors' axes and the spread over every order. An
+ * order that the flight controller notches away is noise-like and wanders more than one that
+ * stands clear, so each is judged by its own kind.
+ */
+function excessSigma(standings: OrderStanding[]): (s: OrderStanding) => number {
+  const all = robustSigma(standings.map((s) => s.excessDb));
+  const perKey = new Map<string, number>();
+  // The spread of the order is taken over the other motors only: the motor judged is not
+  // allowed to widen the yardstick it is judged by.
+  return (s) => {
+    const key = `${s.motor}/${s.order}/${s.side}`;
+    let sigma = perKey.get(key);
+    if (sigma === undefined) {
+      sigma = robustSigma(standings.filter((x) => x.motor !== s.motor && x.order === s.order && x.side === s.side).map((x) => x.excessDb));
+      perKey.set(key, sigma);
+    }
+    return Math.max(all, sigma);
+  };
 }
 
 /** The order itself, at a whole multiple of the rotation (not its sidebands, not a half order). */
@@ -408,7 +430,7 @@ function orderName(order: number, bladeCount: number): string {
   return `${order}× its rotation rate`;
 }
 
-function motorOrders(standings: OrderStanding[], positions: Record<number, string>, bladeCount: number, h: HealthThresholds, sigmaX: number): Finding[] {
+function motorOrders(standings: OrderStanding[], positions: Record<number, string>, bladeCount: number, h: HealthThresholds, sigmaX: (s: OrderStanding) => number): Finding[] {
   const out: Finding[] = [];
   for (const motor of new Set(standings.map((s) => s.motor))) {
     const risen = standings
@@ -452,7 +474,7 @@ function motorOrders(standings: OrderStanding[], positions: Record<number, strin
 }
 
 /** The motor whose half orders (tones between its whole orders) rose most, against both references. */
-function bearingMotor(standings: OrderStanding[], h: HealthThresholds, sigmaX: number): OrderStanding | null {
+function bearingMotor(standings: OrderStanding[], h: HealthThresholds, sigmaX: (s: OrderStanding) => number): OrderStanding | null {
   let best: { s: OrderStanding; magnitude: number } | null = null;
   for (const s of standings) {
     if (isWhole(s)) continue;
@@ -467,9 +489,10 @@ function bearingMotor(standings: OrderStanding[], h: HealthThresholds, sigmaX: n
  * spectrum less the baseline's there, judged against the scatter expected of it — the Welch
  * estimate of K segments scatters about 4.34/√K dB per bin (χ² with 2K degrees of freedom;
  * Welch 1967), in the log and in the baseline, plus the baseline logs' own spread at that bin.
- * The excess is averaged over the bands (weighted by segments); a local maximum at least the
- * watch step up and minSigma expected deviations above zero, where the log shows a peak above
- * its local median, is a new peak. Bins near a motor's whole orders in a band (orders move with
+ * The excess is averaged over the bands (weighted by segments); where the log shows a peak above
+ * its local median, an excess at least the watch step and minSigma expected deviations up, that
+ * stands minSigma robust deviations above the excess around it, and that recurs in at least half
+ * of the bands judging it, is a new peak. Bins near a motor's whole orders in a band (orders move with
  * throttle and have their own finding), near a moved or lost mode, or at a known (recurring)
  * baseline peak are not counted.
  */
@@ -484,6 +507,9 @@ function newPeaks(axes: readonly Axis[], log: LogAnalysis, baseline: Baseline, m
     const wsum = new Float64Array(last + 1);
     const var2 = new Float64Array(last + 1);
     const logSum = new Float64Array(last + 1);
+    // Per band: the bins it judged and where it saw the watch step's excess (for the recurrence rule).
+    const judged = new Float64Array(last + 1);
+    const risen = new Float64Array(last + 1);
     for (const m of matched) {
       const orderFreqs = m.log.motors.flatMap((x) => x.orders.filter((o) => Number.isInteger(o.order)).map((o) => o.freqHz)).filter((f) => f > 0);
       // Within a throttle band each order sweeps as rpm does, rpm ∝ √throttle (thrust ∝ rpm²):
@@ -501,6 +527,8 @@ function newPeaks(axes: readonly Axis[], log: LogAnalysis, baseline: Baseline, m
         if (!Number.isFinite(level) || !Number.isFinite(base)) continue;
         const s = spread ? dbAt(spread, baseline.binHz, f) : 0;
         sum[k] = (sum[k] ?? 0) + w * (level - base);
+        judged[k] = (judged[k] ?? 0) + 1;
+        if (level - base >= h.levelDb.watch) risen[k] = (risen[k] ?? 0) + 1;
         wsum[k] = (wsum[k] ?? 0) + w;
         var2[k] = (var2[k] ?? 0) + w * w * (chi + (Number.isFinite(s) ? s * s : 0));
       }
@@ -517,6 +545,23 @@ function newPeaks(axes: readonly Axis[], log: LogAnalysis, baseline: Baseline, m
       excess[k] = (sum[k] ?? 0) / w;
       sigma[k] = Math.sqrt(var2[k] ?? 0) / w;
     }
+    // How this flight's spectrum wanders from the baseline's, bin to bin, around its own local
+    // level: the excess less its running median (a broadband rise is the floor's and the bands'
+    // finding), and the robust spread of that over the axis's bins. A new resonance is an
+    // outlier of it; the theoretical scatter alone underestimates a real flight's.
+    const local = new Float64Array(last + 1).fill(Number.NaN);
+    for (let k = first; k <= last; k++) {
+      const e = excess[k] ?? Number.NaN;
+      if (!Number.isFinite(e)) continue;
+      const half = Math.max(3, Math.round(0.15 * k));
+      const around: number[] = [];
+      for (let j = Math.max(first, k - half); j <= Math.min(last, k + half); j++) {
+        const v = excess[j] ?? Number.NaN;
+        if (Number.isFinite(v)) around.push(v);
+      }
+      local[k] = e - median(around);
+    }
+    const wander = robustSigma(Array.from(local));
     const tonal = peaksAboveLocalMedian(logDb, binHz, baseline.minFreqHz, maxHz, MODE_TRACK_PROMINENCE_DB);
     for (const p of tonal) {
       // The largest excess within ±1 bin of the log's peak.
@@ -530,9 +575,17 @@ function newPeaks(axes: readonly Axis[], log: LogAnalysis, baseline: Baseline, m
         }
       }
       const s = sigma[at] ?? Number.NaN;
-      if (!Number.isFinite(best) || !(best >= h.minSigma * s)) continue;
+      const above = local[at] ?? Number.NaN;
+      if (!Number.isFinite(best) || !(best >= h.minSigma * s) || !(above >= h.minSigma * wander) || !(above >= h.levelDb.watch)) continue;
+      // A resonance stays put across throttle: it must be up in at least half of the bands that
+      // judged the bin (and two of them, when two or more did), not only on average.
+      const bands = judged[at] ?? 0;
+      if (!((risen[at] ?? 0) >= Math.max(Math.min(2, bands), Math.ceil(bands / 2)))) continue;
+      // A frame mode shows on every axis it couples into: a known peak or mode of any axis is
+      // not new on this one (it may still be a band rise).
       const known =
-        baseline.peaks[axis].some((f) => Math.abs(f - p.freqHz) <= 0.02 * p.freqHz) ||
+        AXES.some((x) => baseline.peaks[x].some((f) => Math.abs(f - p.freqHz) <= h.samePeakFraction * p.freqHz)) ||
+        baseline.modes.some((m) => Math.abs(m.freqHz - p.freqHz) <= h.samePeakFraction * p.freqHz) ||
         shifts.some((x) => Math.abs(x.freqHz - p.freqHz) <= h.samePeakFraction * p.freqHz || Math.abs((x.baselineFreqHz ?? 0) - p.freqHz) <= h.samePeakFraction * p.freqHz);
       if (known) continue;
       const graded = severityAndPoints(best, h.levelDb, h);
