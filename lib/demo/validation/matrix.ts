@@ -135,6 +135,9 @@ export function matrixJobs(o: MatrixOptions): Job[] {
       const c = DAMAGE_CLASSES.indexOf(kind);
       const seed = 1000 * id + 10 * c;
       const mix = TEST_MIXES[(id + c) % TEST_MIXES.length] ?? "race";
+      // Every third airframe's ESC telemetry drops out now and then on one motor in its damage
+      // flights too, as real logs sometimes do.
+      const dropouts = id % 3 === 0 ? { dropouts: { motor: 1 + (c % 4), bursts: 3, minS: 0.1, maxS: 0.5 } } : {};
       for (const severity of o.severities) {
         jobs.push({
           id: `af${id}/${kind}/s${severity}`,
@@ -142,7 +145,7 @@ export function matrixJobs(o: MatrixOptions): Job[] {
           group: "damage",
           variant: kind,
           severity,
-          flight: { seed, durationS: o.durationS, mix },
+          flight: { seed, durationS: o.durationS, mix, ...dropouts },
           damage: { kind, severity, seed },
           style: airframe.headerStyle,
           pairs: same,
