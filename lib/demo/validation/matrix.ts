@@ -108,7 +108,7 @@ export function matrixJobs(o: MatrixOptions): Job[] {
     const same = o.rates.map((r) => ({ testRate: r, baselineRate: r }));
     const healthy = (variant: HealthyVariant, k: number, mix: FlightMix, extra: Partial<Job> = {}, flight: Partial<FlightSpec> = {}) =>
       jobs.push({
-        id: `af${id}/healthy/${variant}`,
+        id: `af${id}/healthy/${variant}${k >= 10 ? `-${Math.floor(k / 10) + 1}` : ""}`,
         airframe: id,
         group: "healthy",
         variant,
@@ -121,9 +121,16 @@ export function matrixJobs(o: MatrixOptions): Job[] {
       });
     o.healthy.forEach((v) => {
       const k = HEALTHY_VARIANTS.indexOf(v);
-      if (v === "repeat") healthy(v, k, "baseline");
-      else if (v === "hard") healthy(v, k, "hard");
-      else if (v === "phase-mix") healthy(v, k, "wash-heavy");
+      // Two flights each of the repeat and of another phase mix (the second with the mix the damage
+      // flights fly most), so healthy flying is sampled as widely as damaged flying.
+      if (v === "repeat") {
+        healthy(v, k, "baseline");
+        healthy(v, 10 + k, "baseline");
+      } else if (v === "hard") healthy(v, k, "hard");
+      else if (v === "phase-mix") {
+        healthy(v, k, "wash-heavy");
+        healthy(v, 10 + k, "freestyle");
+      }
       else if (v === "dropout") healthy(v, k, "race", {}, { dropouts: { motor: 1 + ((id * 3) % 4), bursts: 5, minS: 0.1, maxS: 0.8 } });
       else if (v === "other-rate") healthy(v, k, "race", { pairs: o.rates.map((r) => ({ testRate: otherRate(r), baselineRate: r })) });
       // The same flight as the repeat, written with another header: only the file format differs.
