@@ -404,10 +404,10 @@ export function formatSummary(s: MatrixSummary, options: MatrixOptions): string 
   out.push("healthy variants (a false alarm is inspect or ground)");
   out.push(table(["variant", "n", "ok", "watch", "inspect", "ground", "false alarms"], s.healthy.map((h) => [h.variant, String(h.n), String(h.statuses.ok), String(h.statuses.watch), String(h.statuses.inspect), String(h.statuses.ground), String(h.falseAlarms)])));
   out.push("");
-  out.push("damage (class: top finding points to it; axis, freq ±5 %, motor: some finding of that class is right; – : not part of the truth)");
+  out.push("damage (miss: scored ok · class ok: the finding with most points names the class · axis, freq (±5 %), motor ok: some finding of that class is right · –: not part of that class's truth)");
   out.push(
     table(
-      ["class", "sev", "n", "ok", "watch", "inspect", "ground", "miss", "class", "axis", "freq", "motor", "mean score"],
+      ["class", "sev", "n", "ok", "watch", "inspect", "ground", "miss", "class ok", "axis ok", "freq ok", "motor ok", "mean score"],
       s.damage.map((d) => [d.kind, String(d.severity), String(d.n), String(d.statuses.ok), String(d.statuses.watch), String(d.statuses.inspect), String(d.statuses.ground), String(d.misses), `${d.classRight}/${d.n}`, frac(d.axisRight), frac(d.freqRight), frac(d.motorRight), Number.isFinite(d.meanScore) ? d.meanScore.toFixed(0) : "–"]),
     ),
   );
