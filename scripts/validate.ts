@@ -112,7 +112,7 @@ async function main(): Promise<number> {
   try {
     parsed = optionsFrom(process.argv.slice(2));
   } catch (e) {
-    if (e instanceof UsageError || (e instanceof Error && e.name === "UsageError")) {
+    if (e instanceof UsageError) {
       process.stderr.write(`validate: ${e.message}\n`);
       return 2;
     }

@@ -236,23 +236,28 @@ describe("the simulated flight and its logs", () => {
     expect(Array.from(again.logs[0]?.gyro[0] ?? [])).toEqual(Array.from(log2k?.gyro[0] ?? []));
   });
 
-  it("the controller's 1× notch removes most of a bent prop's 1× tone from the logged gyro (below −14 dB)", () => {
-    // Demodulate the logged roll rate at motor 1's rotation angle, integrated from its true speed.
+  it("the controller's 1× notches remove most of a bent prop's 1× tone from the logged gyro (below −14 dB); its 2× stays", () => {
+    // Demodulate the logged roll rate (stick motion below 40 Hz taken out) at the bent motor's
+    // rotation angle, integrated from its true speed.
     const damage = { kind: "bent-prop" as const, severity: 3 as const, seed: 0 };
     const bent = applyDamage(airframe, damage).truth.motor ?? 1;
-    const amplitude = (notched: boolean) => {
+    const amplitude = (notched: boolean, damaged = true, order = 1) => {
       const a = cloneAirframe(airframe);
       a.fc.notchHarmonics = notched ? [1] : [];
-      const log = simulateFlight(a, flight, damage, [8000]).logs[0];
+      const log = simulateFlight(a, flight, damaged ? damage : null, [8000]).logs[0];
       const m = (log?.motors ?? []).indexOf(bent);
       let phi = 0;
       let re = 0;
       let im = 0;
+      let low = 0;
+      const k = (2 * Math.PI * 40) / 8000;
       const n = log?.timeS.length ?? 0;
       for (let i = 0; i < n; i++) {
-        const g = log?.gyro[0][i] ?? 0;
-        re += g * Math.cos(phi);
-        im -= g * Math.sin(phi);
+        const raw = log?.gyro[0][i] ?? 0;
+        low += k * (raw - low);
+        const g = raw - low;
+        re += g * Math.cos(order * phi);
+        im -= g * Math.sin(order * phi);
         phi += (2 * Math.PI * (log?.trueRpm[m]?.[i] ?? 0)) / 60 / 8000;
       }
       return (2 / n) * Math.hypot(re, im);
@@ -261,6 +266,9 @@ describe("the simulated flight and its logs", () => {
     const withNotch = amplitude(true);
     expect(without).toBeGreaterThan(0.3);
     expect(withNotch / without).toBeLessThan(0.2);
+    // 2× is not notched: the bent prop's 2× (×6 at severity 3, +15.6 dB) stands at least 6 dB
+    // above the healthy 2× in the logged gyro.
+    expect(amplitude(true, true, 2) / amplitude(true, false, 2)).toBeGreaterThan(2);
   });
 
   it("battery sag lowers the rpm at a given throttle over the flight", () => {

@@ -50,7 +50,7 @@ describe("the matrix's cases", () => {
     const jobs = matrixJobs(SMALL);
     const other = jobs.find((j) => j.variant === "other-rate");
     expect(other?.pairs[0]?.testRate).not.toBe(other?.pairs[0]?.baselineRate);
-    const repeat = jobs.find((j) => j.variant === "repeat");
+    const repeat = jobs.find((j) => j.id === "af1/healthy/repeat");
     const foreign = jobs.find((j) => j.variant === "foreign-header");
     expect(foreign?.style).not.toBe(repeat?.style);
     expect(foreign?.flight.seed).toBe(repeat?.flight.seed);
@@ -71,7 +71,8 @@ describe("a small matrix run end to end (bounded: 1 airframe, 2 kHz, 16 s flight
   });
 
   it("reads, analyses and compares every log, with the truth of its case", () => {
-    expect(results.length).toBe(4 + 2 * 3);
+    // repeat (two flights), dropout, other-rate, foreign-header; two classes at three severities.
+    expect(results.length).toBe(5 + 2 * 3);
     for (const r of results) {
       expect(r.error).toBeUndefined();
       expect(["ok", "watch", "inspect", "ground"]).toContain(r.verdict.status);

@@ -55,6 +55,14 @@ export interface FcFilterSpec {
   notchQ: number;
   /** Notches never go below this centre, Hz. */
   notchMinHz: number;
+  /**
+   * The controller's own estimate of each motor's speed, which the notches follow: the true speed
+   * delayS late, off by a steady relative bias of up to ±errorFraction per motor and a slow wander
+   * of half that size. A
+   * perfect estimate would notch a tone away entirely; a real one leaves a residual that grows
+   * with the tone.
+   */
+  rpmEstimate: { delayS: number; errorFraction: number };
 }
 
 /** How this airframe's logger writes its files. */
@@ -136,15 +144,19 @@ export function fleetAirframe(id: number): SimAirframe {
     kvFactor: 1 + 0.03 * (r() - 0.5),
     order1: m.order1 * between(r, 0.8, 1.25),
   }));
-  const harmonicsChoice: number[][] = [[1], [1, 2], [1, 2, 3]];
+  // Notches on 1× and, on some airframes, blade pass (3×). The four motors' 1× notches overlap
+  // (the motors spin within a few per cent of each other), so together they take a 1× tone away
+  // almost entirely; 2× is left to the low-passes, so a bent prop's 2× stays in the log.
+  const harmonicsChoice: number[][] = [[1], [1, 3]];
   const stepChoice = [10, 20, 50, 100];
   const fc: FcFilterSpec = {
     loopRateHz: 8000,
     lowPass1Hz: Math.round(between(r, 150, 250)),
     lowPass2Hz: r() < 0.7 ? Math.round(between(r, 200, 320)) : null,
-    notchHarmonics: harmonicsChoice[Math.floor(r() * 3)] ?? [1],
+    notchHarmonics: harmonicsChoice[Math.floor(r() * harmonicsChoice.length)] ?? [1],
     notchQ: between(r, 3, 6),
     notchMinHz: 80,
+    rpmEstimate: { delayS: between(r, 0.0005, 0.002), errorFraction: between(r, 0.002, 0.006) },
   };
   return {
     id,
@@ -177,7 +189,7 @@ export function cloneAirframe(a: SimAirframe): SimAirframe {
     ...a,
     modes: a.modes.map((m) => ({ ...m, shape: { ...m.shape } })),
     motors: a.motors.map((m) => ({ ...m, coupling: { ...m.coupling }, mix: { ...m.mix } })),
-    fc: { ...a.fc, notchHarmonics: [...a.fc.notchHarmonics] },
+    fc: { ...a.fc, notchHarmonics: [...a.fc.notchHarmonics], rpmEstimate: { ...a.fc.rpmEstimate } },
     telemetry: { ...a.telemetry },
     sensor: { ...a.sensor },
     bearingOrders: [a.bearingOrders[0], a.bearingOrders[1]],

@@ -42,15 +42,15 @@ export const CRACK_DAMPING = [1.3, 1.7, 2.4] as const;
 export const LOOSE_FRAME_DROP = [0.03, 0.06, 0.1] as const;
 export const LOOSE_FRAME_DAMPING = [1.5, 2.2, 3.2] as const;
 export const PROP_1X = [2, 4, 8] as const;
-export const PROP_2X = [1.3, 1.7, 2.5] as const;
+export const PROP_2X = [1.5, 3, 6] as const;
 export const LOOSE_MOTOR_1X = [1.5, 2.2, 3.5] as const;
 export const LOOSE_MOTOR_2X = [2, 3.5, 6] as const;
 export const LOOSE_MOTOR_HALF = [0.3, 0.6, 1.2] as const;
 export const LOOSE_MOTOR_AM = [0.2, 0.35, 0.5] as const;
-export const BEARING_NOISE = [3, 6, 12] as const;
+export const BEARING_NOISE = [4, 10, 25] as const;
 export const BEARING_TONE = [4, 8, 16] as const;
-export const STACK_GAIN = [1.2, 2.5, 5] as const;
-export const MOUNT_GAIN = [1.5, 3, 6] as const;
+export const STACK_GAIN = [1, 2, 4] as const;
+export const MOUNT_GAIN = [0.5, 1, 2] as const;
 
 /** Frequency windows for a new resonance that keep it at least 7 % from the design's modes. */
 const STACK_WINDOWS: readonly (readonly [number, number])[] = [[140, 154], [182, 205], [243, 272]];

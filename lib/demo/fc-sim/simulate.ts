@@ -66,6 +66,9 @@ const PILOT_RMS_DEGS = 40;
 const WASH_CENTRE_HZ = 50;
 const WASH_RMS_DEGS = 30;
 const MIX_GAIN = 1.5e-5;
+const BEARING_CENTRE_HZ = 800;
+/** Time constant of the wander of the controller's rpm-estimate error, s. */
+const ESTIMATE_TAU_S = 0.5;
 /** Slow parts of the model (pilot, motor share wander, notch centres) are updated every this many loop samples. */
 const SLOW_EVERY = 4;
 
@@ -168,7 +171,8 @@ export function simulateFlight(base: SimAirframe, flight: FlightSpec, damage: Da
   const stick = [0, 0, 0];
   const wash = AXES.map(() => Biquad.bandPass(WASH_CENTRE_HZ, 0.5, fs));
   const washScale = WASH_RMS_DEGS / Math.sqrt((2 * (WASH_CENTRE_HZ / 0.5)) / fs);
-  const bearingFilters = motors.map(() => Biquad.bandPass(1400, 0.7, fs));
+  // Worn-bearing noise is broadband, from a few hundred Hz to beyond a kHz.
+  const bearingFilters = motors.map(() => Biquad.bandPass(BEARING_CENTRE_HZ, 0.5, fs));
 
   const fc = airframe.fc;
   const harmonics = fc.notchHarmonics;
@@ -178,6 +182,12 @@ export function simulateFlight(base: SimAirframe, flight: FlightSpec, damage: Da
   const lpf2 = fc.lowPass2Hz === null ? null : new BiquadBank(lowPassCoefficients(fc.lowPass2Hz, Math.SQRT1_2, fs), 3);
 
   const rpm = motors.map(() => airframe.idleRpm);
+  const estimateDelay = Math.max(0, Math.round(fc.rpmEstimate.delayS * fs));
+  const rpmHistory = motors.map(() => new Float64Array(estimateDelay + 1).fill(airframe.idleRpm));
+  // Each motor's estimate is off by a steady bias (its own, kept from flight to flight) plus a
+  // slow wander of half that size.
+  const estimateBias = motors.map((m) => fc.rpmEstimate.errorFraction * (2 * mulberry32(0xb1a5 + 131 * airframe.id + m.motor)() - 1));
+  const estimateError = motors.map(() => 0);
   const phase = motors.map(() => rand() * 2 * Math.PI);
   const wander = motors.map(() => 0);
   const bodyRate = [0, 0, 0];
@@ -281,11 +291,16 @@ export function simulateFlight(base: SimAirframe, flight: FlightSpec, damage: Da
       vib[2] = (vib[2] ?? 0) + (shape[2] ?? 0) * y;
     }
 
-    // The controller's notches follow its own rotation estimate of each motor (taken as exact:
-    // it comes from the ESC at the loop rate, not from the logged telemetry).
+    // The controller's notches follow its own rotation estimate of each motor (from the ESC at the
+    // loop rate, not the logged telemetry): a little late and a little off.
+    for (let m = 0; m < motorCount; m++) (rpmHistory[m] as Float64Array)[n % (estimateDelay + 1)] = rpm[m] ?? 0;
     if (slow) {
+      const sdt = SLOW_EVERY * dt;
       for (let m = 0; m < motorCount; m++) {
-        const f1 = (rpm[m] ?? 0) / 60;
+        const e = (estimateError[m] ?? 0) * (1 - sdt / ESTIMATE_TAU_S) + 0.5 * fc.rpmEstimate.errorFraction * Math.sqrt((2 * sdt) / ESTIMATE_TAU_S) * gauss();
+        estimateError[m] = e;
+        const late = (rpmHistory[m] as Float64Array)[(n + 1) % (estimateDelay + 1)] ?? 0;
+        const f1 = (late * (1 + (estimateBias[m] ?? 0) + e)) / 60;
         for (let h = 0; h < harmonics.length; h++) {
           const centre = Math.min(0.45 * fs, Math.max(fc.notchMinHz, f1 * (harmonics[h] ?? 1)));
           setNotch(notchCoeffs[m * harmonics.length + h], centre, fc.notchQ, fs);
