@@ -74,8 +74,16 @@ export interface BaselineMode {
   bands?: { index: number; freqHz: number; levelDb: number }[];
 }
 
+/**
+ * 2: modes per band, every order with sidebands, per-bin log spread, recurring known peaks,
+ * unusable axes and untrusted motors. Fields added in 2 are optional, so stored baselines of
+ * version 1 still decode (their known-peak list is every peak they saw: set the baseline again
+ * to get the recurring ones).
+ */
+export const BASELINE_VERSION = 2;
+
 export interface Baseline {
-  version: 1;
+  version: 1 | 2;
   logs: number;
   sampleRateHz: number;
   binHz: number;
@@ -229,7 +237,7 @@ export function buildBaseline(analyses: readonly LogAnalysis[]): Baseline {
   }
 
   return {
-    version: 1,
+    version: BASELINE_VERSION,
     unusableAxes,
     untrustedMotors: motors.filter((motor) => analyses.some((a) => (a.motors.find((m) => m.motor === motor)?.maskedShare ?? 0) > DEFAULT_THRESHOLDS.maxMaskedShare)),
     logs: analyses.length,
