@@ -6,27 +6,40 @@ import { spectralPeaks } from "../signal/peaks";
 import { round } from "../signal/stats";
 import { SegmentPeriodogram, defaultNperseg, medianAcross, medianBias, resolveWelchOptions } from "../signal/welch";
 import { classifyPeaks } from "./classify";
-import { OrderTracker, type OrderBlock } from "./order-tracker";
+import { MASK_REASONS, OrderTracker, type MaskReason, type OrderBlock } from "./order-tracker";
 import {
   DEFAULT_ANALYSIS,
+  SIGNAL_CHECKS,
+  TELEMETRY_LIMITS,
   USABLE_NYQUIST_FRACTION,
+  trackedOrders,
   bandsBelow,
   floorCorner,
   welchOptionsOf,
   type AnalysisSettings,
 } from "./settings";
-import type {
-  AxisResult,
-  LogAnalysis,
-  MotorInBand,
-  MotorSummary,
-  MotorTrackPoint,
-  OrderLevel,
-  ThrottleBandAxis,
-  ThrottleBandResult,
+import {
+  ANALYSIS_VERSION,
+  type AxisResult,
+  type SignalCheck,
+  type LogAnalysis,
+  type MotorInBand,
+  type MotorSummary,
+  type MotorTrackPoint,
+  type OrderLevel,
+  type ThrottleBandAxis,
+  type ThrottleBandResult,
 } from "./types";
 
 const MAX_TRACK_POINTS = 300;
+
+/** Running extremes of one gyro axis and how many samples sat exactly at them. */
+interface SignalStats {
+  min: number;
+  max: number;
+  atMin: number;
+  atMax: number;
+}
 
 /** Accumulators of one throttle band. */
 interface BandAccumulator {
@@ -37,10 +50,13 @@ interface BandAccumulator {
   /** per axis, per analysis band: Σ dB and Σ dB² over segments */
   dbSum: Float64Array[];
   dbSqSum: Float64Array[];
-  /** per motor: Σ mean rpm of the order blocks */
+  /** per motor: Σ mean rpm of its measured (unmasked) order blocks, their count, the masked count */
   rpmSum: Float64Array;
-  /** per motor, per order, per axis: Σ power (linear) */
+  motorBlocks: Float64Array;
+  maskedBlocks: Float64Array;
+  /** per motor, per order, per axis: Σ power (linear), Σ sideband power (whole orders) */
   orderPowerSum: Float64Array[][];
+  orderSideSum: Float64Array[][];
   /** per motor, per order: order-tracking blocks that measured it (below the trusted top) */
   orderCount: Float64Array[];
   orderBlocks: number;
@@ -74,7 +90,11 @@ export class LogAnalyzer implements LogSink {
   private throttleSamples: Float64Array = new Float64Array(1);
   private tracks: MotorTrackPoint[][] = [];
   private orders: { order: number; label: OrderLevel["label"] }[] = [];
+  /** per motor, per mask reason: blocks masked; and all blocks of the log */
+  private masked: Record<MaskReason, number>[] = [];
+  private blocksSeen = 0;
   private tracker: OrderTracker | null = null;
+  private signal: SignalStats[] = [];
 
   constructor(settings: Partial<AnalysisSettings> = {}) {
     this.settings = { ...DEFAULT_ANALYSIS, ...settings };
@@ -101,13 +121,13 @@ export class LogAnalyzer implements LogSink {
     this.segmentPsd = AXES.map(() => new Float64Array(bins));
     this.overallSum = AXES.map(() => new Float64Array(bins));
     this.stored = AXES.map(() => []);
+    this.signal = AXES.map(() => ({ min: Infinity, max: -Infinity, atMin: 0, atMax: 0 }));
     this.throttleBandCount = info.hasThrottle ? this.settings.throttleBands : 1;
     this.throttleSamples = new Float64Array(this.throttleBandCount);
-    this.orders = [
-      { order: 1, label: "1x" },
-      { order: 2, label: "2x" },
-      { order: this.settings.bladeCount, label: "blade-pass" },
-    ];
+    this.orders = trackedOrders(this.settings.bladeCount).map((order) => ({
+      order,
+      label: order === this.settings.bladeCount ? "blade-pass" : `${order}x`,
+    }));
     this.accumulators = Array.from({ length: this.throttleBandCount }, () => ({
       segments: 0,
       samples: 0,
@@ -116,15 +136,28 @@ export class LogAnalyzer implements LogSink {
       dbSum: AXES.map(() => new Float64Array(this.bands.length)),
       dbSqSum: AXES.map(() => new Float64Array(this.bands.length)),
       rpmSum: new Float64Array(motors),
+      motorBlocks: new Float64Array(motors),
+      maskedBlocks: new Float64Array(motors),
       orderPowerSum: Array.from({ length: motors }, () => this.orders.map(() => new Float64Array(3))),
+      orderSideSum: Array.from({ length: motors }, () => this.orders.map(() => new Float64Array(3))),
       orderCount: Array.from({ length: motors }, () => new Float64Array(this.orders.length)),
       orderBlocks: 0,
     }));
     this.tracker =
       motors > 0
-        ? new OrderTracker(fs, motors, this.orders.map((o) => o.order), this.maxFreqHz, (b) => this.orderBlock(b))
+        ? new OrderTracker(
+            fs,
+            motors,
+            this.orders.map((o) => o.order),
+            this.settings.minFreqHz,
+            this.maxFreqHz,
+            TELEMETRY_LIMITS,
+            (b) => this.orderBlock(b),
+          )
         : null;
     this.tracks = Array.from({ length: motors }, () => []);
+    this.masked = Array.from({ length: motors }, () => ({ zero: 0, range: 0, stuck: 0, slew: 0 }));
+    this.blocksSeen = 0;
   }
 
   gap(_gap: Gap): void {
@@ -136,18 +169,33 @@ export class LogAnalyzer implements LogSink {
   private orderBlock(b: OrderBlock): void {
     const acc = this.accumulators[throttleBandOf(b.throttle, this.throttleBandCount)] as BandAccumulator;
     acc.orderBlocks++;
+    this.blocksSeen++;
+    const one = this.orders.findIndex((o) => o.order === 1);
     for (let m = 0; m < b.rotationHz.length; m++) {
-      // Per motor: a motor whose 1× is above the trusted range must not inherit another's level.
-      let order1Max = Number.NaN;
+      const reason = b.masked[m];
+      if (reason) {
+        // Untrustworthy telemetry is counted, never measured.
+        acc.maskedBlocks[m] = (acc.maskedBlocks[m] ?? 0) + 1;
+        const counts = this.masked[m];
+        if (counts) counts[reason]++;
+        continue;
+      }
+      acc.motorBlocks[m] = (acc.motorBlocks[m] ?? 0) + 1;
       acc.rpmSum[m] = (acc.rpmSum[m] ?? 0) + (b.rotationHz[m] ?? 0) * 60;
       const counts = acc.orderCount[m] as Float64Array;
+      let order1Max = Number.NaN;
       this.orders.forEach((_, j) => {
         const power = b.power[m]?.[j] as Float64Array;
         if (!Number.isFinite(power[0])) return;
         const sums = acc.orderPowerSum[m]?.[j] as Float64Array;
+        const sideSums = acc.orderSideSum[m]?.[j] as Float64Array;
+        const side = b.side[m]?.[j] as Float64Array;
         counts[j] = (counts[j] ?? 0) + 1;
-        for (let a = 0; a < 3; a++) sums[a] = (sums[a] ?? 0) + (power[a] ?? 0);
-        if (j === 0) order1Max = Math.max(power[0] ?? 0, power[1] ?? 0, power[2] ?? 0);
+        for (let a = 0; a < 3; a++) {
+          sums[a] = (sums[a] ?? 0) + (power[a] ?? 0);
+          sideSums[a] = (sideSums[a] ?? 0) + (Number.isFinite(side[a]) ? (side[a] ?? 0) : 0);
+        }
+        if (j === one) order1Max = Math.max(power[0] ?? 0, power[1] ?? 0, power[2] ?? 0);
       });
       this.tracks[m]?.push({ tS: b.tS, rotationHz: b.rotationHz[m] ?? 0, order1Db: Number.isNaN(order1Max) ? Number.NaN : toDb(order1Max) });
     }
@@ -159,6 +207,7 @@ export class LogAnalyzer implements LogSink {
     const buffers = this.buffers;
     const throttle = block.throttle;
     const bandCount = this.throttleBandCount;
+    for (let a = 0; a < 3; a++) trackExtremes(this.signal[a] as SignalStats, block.gyro[a] as Float64Array, n);
     for (let i = 0; i < n; i++) {
       if (this.fill === 0) this.bufferStartS = block.timeS[i] ?? 0;
       const f = this.fill;
@@ -280,16 +329,26 @@ export class LogAnalyzer implements LogSink {
         };
       });
       const motors: MotorInBand[] = info.motors.map((motor, m) => {
-        const meanRpm = acc.orderBlocks > 0 ? (acc.rpmSum[m] ?? 0) / acc.orderBlocks : 0;
+        const measured = acc.motorBlocks[m] ?? 0;
+        const meanRpm = measured > 0 ? (acc.rpmSum[m] ?? 0) / measured : 0;
         return {
           motor,
           meanRpm: round(meanRpm, 1),
+          blocks: acc.orderBlocks,
+          maskedBlocks: acc.maskedBlocks[m] ?? 0,
           orders: this.orders.map((o, j) => {
             const sums = acc.orderPowerSum[m]?.[j] as Float64Array;
             const clear = acc.orderCount[m]?.[j] ?? 0;
+            const sideSums = acc.orderSideSum[m]?.[j] as Float64Array;
             const powerDb = {} as Record<Axis, number>;
-            AXES.forEach((axis, a) => (powerDb[axis] = clear > 0 ? round(toDb((sums[a] ?? 0) / clear), 3) : Number.NaN));
-            return { order: o.order, label: o.label, freqHz: round((meanRpm / 60) * o.order, 2), powerDb };
+            const sideDb = {} as Record<Axis, number>;
+            AXES.forEach((axis, a) => {
+              powerDb[axis] = clear > 0 ? round(toDb((sums[a] ?? 0) / clear), 3) : Number.NaN;
+              sideDb[axis] = clear > 0 ? round(toDb((sideSums[a] ?? 0) / clear), 3) : Number.NaN;
+            });
+            const level: OrderLevel = { order: o.order, label: o.label, freqHz: round((meanRpm / 60) * o.order, 2), powerDb };
+            if (Number.isInteger(o.order)) level.sideDb = sideDb;
+            return level;
           }),
         };
       });
@@ -308,6 +367,13 @@ export class LogAnalyzer implements LogSink {
     const axes = {} as Record<Axis, AxisResult>;
     AXES.forEach((axis, a) => {
       const psd = psdOverall[a] as Float64Array;
+      const signal = checkSignal(this.signal[a] as SignalStats, summary.samples, psd, binHz, this.settings.minFreqHz, this.maxFreqHz);
+      if (!signal.usable) {
+        // Nothing of this axis is judged; its spectrum is kept only where it is a number.
+        for (let k = 0; k < bins; k++) if (!Number.isFinite(psd[k])) psd[k] = 0;
+        axes[axis] = { signal, psd: Array.from(psd), peaks: [], bandPower: this.bands.map(() => 0), floorDb: Number.NaN, rmsDegS: 0 };
+        return;
+      }
       const db = arrayToDb(psd);
       const peaks = spectralPeaks(db, binHz, {
         minFreqHz: this.settings.minFreqHz,
@@ -316,6 +382,7 @@ export class LogAnalyzer implements LogSink {
       });
       const usable = throttleBands.filter((b) => b.segments >= this.settings.minBandSegments);
       axes[axis] = {
+        signal,
         psd: Array.from(psd),
         peaks: classifyPeaks(peaks, axis, usable, binHz),
         bandPower: this.bands.map((b) => bandPower(psd, binHz, b)),
@@ -327,11 +394,19 @@ export class LogAnalyzer implements LogSink {
     const motors: MotorSummary[] = info.motors.map((motor, m) => {
       const track = this.tracks[m] ?? [];
       const meanRpm = track.length > 0 ? (track.reduce((s, p) => s + p.rotationHz, 0) / track.length) * 60 : 0;
-      return { motor, meanRpm: round(meanRpm, 1), track: decimateTrack(track, MAX_TRACK_POINTS) };
+      const masked = this.masked[m] ?? { zero: 0, range: 0, stuck: 0, slew: 0 };
+      const maskedBlocks = MASK_REASONS.reduce((s, r) => s + masked[r], 0);
+      return {
+        motor,
+        meanRpm: round(meanRpm, 1),
+        maskedShare: this.blocksSeen > 0 ? round(maskedBlocks / this.blocksSeen, 4) : 0,
+        maskedBlocks: masked,
+        track: decimateTrack(track, MAX_TRACK_POINTS),
+      };
     });
 
     return {
-      version: 1,
+      version: ANALYSIS_VERSION,
       sampleRateHz: round(fs, 3),
       durationS: round(summary.durationS, 3),
       samples: summary.samples,
@@ -359,6 +434,50 @@ export class LogAnalyzer implements LogSink {
       motors,
     };
   }
+}
+
+function trackExtremes(st: SignalStats, x: Float64Array, n: number): void {
+  let { min, max, atMin, atMax } = st;
+  for (let i = 0; i < n; i++) {
+    const v = x[i] as number;
+    if (v > max) {
+      max = v;
+      atMax = 1;
+    } else if (v === max) atMax++;
+    if (v < min) {
+      min = v;
+      atMin = 1;
+    } else if (v === min) atMin++;
+  }
+  st.min = min;
+  st.max = max;
+  st.atMin = atMin;
+  st.atMax = atMax;
+}
+
+/** Whether a gyro axis carries a signal worth comparing ({@link SIGNAL_CHECKS}). */
+function checkSignal(st: SignalStats, samples: number, psd: Float64Array, binHz: number, loHz: number, hiHz: number): SignalCheck {
+  const n = Math.max(1, samples);
+  const clippedShare = st.max === st.min ? 1 : Math.max(st.atMax, st.atMin) / n;
+  const base = { clippedShare: round(clippedShare, 4), minDegS: st.min, maxDegS: st.max };
+  const peak = Math.max(Math.abs(st.min), Math.abs(st.max));
+  let finite = true;
+  for (let k = 0; k < psd.length; k++) if (!Number.isFinite(psd[k])) finite = false;
+  if (!finite || !(peak <= SIGNAL_CHECKS.maxPlausibleDegS)) {
+    return { ...base, usable: false, problem: "out-of-range", text: `values reach ${peak.toPrecision(3)} deg/s, beyond any rate gyro's range (a broken cell or a wrong unit)` };
+  }
+  if (st.max === st.min) {
+    return { ...base, usable: false, problem: "constant", text: `every sample is ${st.max} deg/s: the gyro was not recording or is stuck` };
+  }
+  const rms = Math.sqrt(bandPower(psd, binHz, { loHz, hiHz }));
+  if (!(rms >= SIGNAL_CHECKS.flatRmsDegS)) {
+    return { ...base, usable: false, problem: "flat", text: `vibration above ${loHz} Hz is only ${rms.toPrecision(2)} deg/s rms, less than one step of a gyro: no signal to judge` };
+  }
+  if (clippedShare >= SIGNAL_CHECKS.clippedShare) {
+    const at = st.atMax >= st.atMin ? st.max : st.min;
+    return { ...base, usable: false, problem: "clipped", text: `${(clippedShare * 100).toFixed(1)} % of the samples sit at ${at} deg/s: the gyro is saturated (clipped), which spreads false vibration over the spectrum` };
+  }
+  return { ...base, usable: true };
 }
 
 /** Index of the throttle band a value in 0..1 falls in; values outside are clamped. */

@@ -42,6 +42,60 @@ export const DEFAULT_ANALYSIS: AnalysisSettings = {
   minBandSegments: 8,
 };
 
+/**
+ * When a gyro axis carries no usable signal (issue: a log of zeros or of a stuck sensor must not
+ * read as a quiet, healthy airframe). An axis failing any check is not compared, and says why.
+ */
+export const SIGNAL_CHECKS = {
+  /**
+   * Below this rms over the analysed range the axis is flat: less than a sixth of one step of a
+   * 16-bit gyro at ±2000 deg/s full scale (0.061 deg/s per LSB; common MEMS gyro setting, from
+   * memory). A flying quad's vibration is several deg/s.
+   */
+  flatRmsDegS: 0.01,
+  /**
+   * No rate gyro measures this far (MEMS parts top out at a few thousand deg/s, from memory); a
+   * value beyond it is a broken cell, and its square would swamp (or overflow) the spectrum.
+   */
+  maxPlausibleDegS: 1e5,
+  /**
+   * A signal that sits exactly at its own extreme for this share of its samples is clipped
+   * (saturated): a continuous signal reaches its maximum about once, a quantised one a handful
+   * of times; 1 % of a log is seconds of flat tops, which spread harmonics over the spectrum.
+   */
+  clippedShare: 0.01,
+} as const;
+
+/**
+ * rpm telemetry a motor cannot produce (ESC telemetry drops to 0 in bursts, sticks, glitches):
+ * a motor's order-tracking block with such a value is masked, never measured.
+ */
+export const TELEMETRY_LIMITS = {
+  /**
+   * Below this a propeller motor in flight is not turning (idle with props is a few thousand
+   * rpm; common practice). Below it the 1× would sit in the pilot's stick motion anyway.
+   */
+  minRpm: 600,
+  /** Above this no multirotor motor spins (the smallest high-kV motors reach about 60–80k; from memory). */
+  maxRpm: 100_000,
+  /**
+   * The fastest a motor can change its speed: about its top speed (≈ 40 000 rpm) over its
+   * mechanical time constant (≈ 20 ms for a racing motor with its prop; from memory), 2e6 rpm/s.
+   * Held telemetry is judged over the time since its value last changed.
+   */
+  maxSlewRpmPerS: 2e6,
+} as const;
+
+/**
+ * The orders each motor is tracked at: whole and half orders from 0.5× to 4× (the order spectrum
+ * between the whole orders shows rattle and bearing tones), and the blade pass when above 4×.
+ */
+export function trackedOrders(bladeCount: number): number[] {
+  const orders = [0.5, 1, 1.5, 2, 2.5, 3, 3.5, 4];
+  if (bladeCount > 4) orders.push(bladeCount);
+  return orders;
+}
+
 /** The share of Nyquist up to which a log's spectrum is trusted. */
 export const USABLE_NYQUIST_FRACTION = 0.9;
 

@@ -14,7 +14,23 @@ export interface LabelledPeak extends SpectralPeak {
   seenInBands: number[];
 }
 
+/** Why an axis's signal cannot be used: it is then not compared. */
+export type SignalProblem = "constant" | "flat" | "clipped" | "out-of-range";
+
+export interface SignalCheck {
+  usable: boolean;
+  problem?: SignalProblem;
+  /** One sentence for people, when not usable. */
+  text?: string;
+  /** Share of samples at the axis's own minimum or maximum value. */
+  clippedShare: number;
+  minDegS: number;
+  maxDegS: number;
+}
+
 export interface AxisResult {
+  /** Whether the axis carries a usable signal (absent in analyses stored before version 2). */
+  signal?: SignalCheck;
   /** One-sided PSD, (deg/s)²/Hz, on the shared frequency grid. */
   psd: number[];
   peaks: LabelledPeak[];
@@ -28,16 +44,27 @@ export interface AxisResult {
 
 /** The levels of one motor order in one throttle band: power in dB re 1 (deg/s)², per axis. */
 export interface OrderLevel {
-  /** 1, 2 or the blade count. */
+  /** A multiple of the motor's rotation: 0.5, 1, 1.5 … 4 and the blade pass (version 1: 1, 2, blade pass). */
   order: number;
-  label: "1x" | "2x" | "blade-pass";
+  /** "0.5x" … "4x", or "blade-pass" for the order equal to the blade count. */
+  label: string;
   freqHz: number;
+  /**
+   * Whole orders: the exact order's power. Half orders: the strongest tone within ±0.25 orders
+   * (the order spectrum between the whole orders).
+   */
   powerDb: Record<Axis, number>;
+  /** Whole orders (version 2): the strongest tone 0.05–0.25 orders away (sidebands), dB. */
+  sideDb?: Record<Axis, number>;
 }
 
 export interface MotorInBand {
   motor: number;
+  /** Mean rpm over the motor's measured blocks. */
   meanRpm: number;
+  /** Order-tracking blocks in this band, and how many of them this motor's telemetry masked. */
+  blocks?: number;
+  maskedBlocks?: number;
   orders: OrderLevel[];
 }
 
@@ -74,12 +101,22 @@ export interface MotorTrackPoint {
 export interface MotorSummary {
   motor: number;
   meanRpm: number;
+  /** Share of the log's order-tracking blocks whose rpm telemetry was not believable. */
+  maskedShare?: number;
+  /** Masked blocks by reason: rpm 0, outside the plausible range, stuck, changing impossibly fast. */
+  maskedBlocks?: Record<"zero" | "range" | "stuck" | "slew", number>;
   /** The motor's 1× order through the log, at most a few hundred points. */
   track: MotorTrackPoint[];
 }
 
+/**
+ * 2: signal checks per axis, rpm masking, more motor orders, per-bin scatter per throttle band.
+ * Every field added in 2 is optional in the type, so analyses stored as 1 still decode.
+ */
+export const ANALYSIS_VERSION = 2;
+
 export interface LogAnalysis {
-  version: 1;
+  version: 1 | 2;
   sampleRateHz: number;
   durationS: number;
   samples: number;

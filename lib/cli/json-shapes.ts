@@ -38,20 +38,22 @@ export function analyzeJson(a: LogAnalysis): AnalyzeJson {
     const r = a.axes[axis];
     axes[axis] = {
       freqHz: a.freqHz,
-      psd: r.psd.map((v) => Number(v.toPrecision(6))),
+      // As computed (full double precision): a user checking against scipy.signal.welch sees
+      // the engine's own error (≤ 1e-9 relative), not a rounding of ours.
+      psd: r.psd,
       peaks: r.peaks.map((p) => ({
         freqHz: round(p.freqHz, 2),
-        psd: Number((10 ** (p.levelDb / 10)).toPrecision(6)),
+        psd: 10 ** (p.levelDb / 10),
         prominenceDb: round(p.prominenceDb, 2),
         widthHz: round(p.widthHz, 2),
         kind: p.kind,
       })),
       bands: a.bands.map((b, i) => {
         const power = r.bandPower[i] ?? 0;
-        return { loHz: b.loHz, hiHz: b.hiHz, power: Number(power.toPrecision(6)), rms: round(Math.sqrt(power), 4) };
+        return { loHz: b.loHz, hiHz: b.hiHz, power, rms: Math.sqrt(power) };
       }),
       floorDb: r.floorDb,
-      rmsDegS: round(r.rmsDegS, 4),
+      rmsDegS: r.rmsDegS,
     };
   }
   return {

@@ -3,15 +3,13 @@ import { analyzeLog, type AnalyzeOptions } from "../analysis/analyze-log";
 import { analyzeLogInTwoThreads } from "../analysis/two-threads";
 import { DEFAULT_ANALYSIS, type AnalysisSettings } from "../analysis/settings";
 import type { LogAnalysis } from "../analysis/types";
-import { MOTOR_POSITIONS } from "../health/motor-positions";
 import { demoCsvChunks } from "../demo/demo-csv";
 import { SCENARIOS, type FlyingStyle, type Scenario } from "../demo/generator";
 import { InputError, UsageError, isDomainError } from "../errors";
-import { buildBaseline } from "../health/baseline";
-import { compareWithBaseline } from "../health/compare";
 import { parseColumnMap } from "../logs/columns";
 import type { ReadSummary } from "../logs/read-log";
 import { WINDOW_NAMES } from "../signal/windows";
+import { compareAnalyses } from "./compare-logs";
 import { choiceFlag, flag, hasSwitch, numberFlag, parseArgs, type ParsedArgs } from "./args";
 import { fileSource, userPath } from "./file-source";
 import { formatAnalysis, formatAssessment } from "./format";
@@ -131,7 +129,7 @@ async function compareCommand(args: ParsedArgs, io: CliIo, cli: CliOptions): Pro
   const good = [];
   for (const b of baselines) good.push((await analyzeFile(b, options, cli)).analysis);
   const log = (await analyzeFile(path, options, cli)).analysis;
-  const assessment = compareWithBaseline(log, buildBaseline(good), { motorPositions: MOTOR_POSITIONS });
+  const assessment = compareAnalyses(log, good);
   io.stdout(hasSwitch(args, "json") ? JSON.stringify(compareJson(assessment)) + "\n" : formatAssessment(path, assessment));
   return 0;
 }

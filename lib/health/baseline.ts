@@ -3,7 +3,9 @@ import type { LogAnalysis } from "../analysis/types";
 import { InputError } from "../errors";
 import { AXES, type Axis } from "../logs/columns";
 import type { FrequencyBand } from "../signal/bands";
+import { peaksAboveLocalMedian } from "../signal/peaks";
 import { mean, median, round, stdDev } from "../signal/stats";
+import { DEFAULT_THRESHOLDS } from "./thresholds";
 
 /**
  * An airframe's known-good reference, built from one or more logs flown when it was healthy.
@@ -21,6 +23,20 @@ export interface BaselineAxisBand {
   floorLogSpreadDb: number;
   /** Mean PSD in dB on a grid of binHz, for levels at any frequency. */
   psdDb: number[];
+  /** Per bin of psdDb: scatter of the per-log band spectra across logs, dB (version 2; 0 for one log). */
+  psdLogSpreadDb?: number[];
+}
+
+export interface BaselineOrder {
+  order: number;
+  /** Power per axis, dB re 1 (deg/s)², power mean over the logs' measured blocks. */
+  db: Record<Axis, number>;
+  /** Scatter of the per-log level across logs, dB, the largest over the axes (0 for one log). */
+  logSpreadDb: number;
+  /** Measured blocks behind the level, summed over the logs. */
+  blocks: number;
+  /** Whole orders: their sidebands' level per axis, dB. */
+  sideDb?: Record<Axis, number>;
 }
 
 export interface BaselineMotorBand {
@@ -29,6 +45,8 @@ export interface BaselineMotorBand {
   /** 1× order power per axis, dB. */
   order1Db: Record<Axis, number>;
   logSpreadDb: number;
+  /** Every tracked order (version 2). */
+  orders?: BaselineOrder[];
 }
 
 export interface BaselineThrottleBand {
@@ -52,10 +70,20 @@ export interface BaselineMode {
   spreadPct: number;
   /** Logs the mode was found in. */
   seenIn: number;
+  /** The mode in each baseline throttle band it shows in (version 2): where to look for it there. */
+  bands?: { index: number; freqHz: number; levelDb: number }[];
 }
 
+/**
+ * 2: modes per band, every order with sidebands, per-bin log spread, recurring known peaks,
+ * unusable axes and untrusted motors. Fields added in 2 are optional, so stored baselines of
+ * version 1 still decode (their known-peak list is every peak they saw: set the baseline again
+ * to get the recurring ones).
+ */
+export const BASELINE_VERSION = 2;
+
 export interface Baseline {
-  version: 1;
+  version: 1 | 2;
   logs: number;
   sampleRateHz: number;
   binHz: number;
@@ -68,12 +96,24 @@ export interface Baseline {
   motors: number[];
   throttleBands: BaselineThrottleBand[];
   modes: BaselineMode[];
-  /** Every peak frequency seen in any baseline log, per axis (for telling new peaks). */
+  /** Motors whose rpm telemetry was masked in more than half of some baseline log. */
+  untrustedMotors?: number[];
+  /** Axes that some baseline log could not use (no signal, clipped …): never compared. */
+  unusableAxes?: { axis: Axis; reason: string }[];
+  /**
+   * Known peaks per axis: the ones that recur (version 2; see {@link recurringPeaks}). Version 1
+   * kept every peak of every band and log, which covered most of the frequency axis.
+   */
   peaks: Record<Axis, number[]>;
 }
 
 /** A throttle band needs as many segments to enter a baseline as the analysis needs to search it. */
 const MIN_BAND_SEGMENTS = DEFAULT_ANALYSIS.minBandSegments;
+/**
+ * Prominence above the local median at which a known mode is followed (half the 6 dB gate for
+ * finding peaks anywhere): near a frequency where a mode is expected, a smaller bump is enough.
+ */
+export const MODE_TRACK_PROMINENCE_DB = 3;
 /** Modes within this fraction of each other across logs are one mode. */
 const MODE_CLUSTER_FRACTION = 0.04;
 
@@ -122,19 +162,31 @@ export function buildBaseline(analyses: readonly LogAnalysis[]): Baseline {
         psdDb: Array.from({ length: gridBins }, (_, k) =>
           round(mean(parts.map((p) => dbAt(p.band.axes[axis].psdDb, p.a.settings.binHz, k * binHz))), 2),
         ),
+        psdLogSpreadDb: Array.from({ length: gridBins }, (_, k) =>
+          round(stdDev(parts.map((p) => dbAt(p.band.axes[axis].psdDb, p.a.settings.binHz, k * binHz))), 1),
+        ),
       };
     }
     const motorBands: BaselineMotorBand[] = motors.map((motor) => {
       const found = parts.map((p) => p.band.motors.find((m) => m.motor === motor));
-      const order1 = found.map((m) => m?.orders[0]?.powerDb);
-      const order1Db = {} as Record<Axis, number>;
-      for (const axis of AXES) order1Db[axis] = mean(order1.map((o) => o?.[axis] ?? Number.NaN));
-      const strongest = order1.map((o) => (o ? Math.max(o.roll, o.pitch, o.yaw) : Number.NaN));
+      const orderSet = [...new Set(found.flatMap((m) => m?.orders.map((o) => o.order) ?? []))].sort((x, y) => x - y);
+      const orders: BaselineOrder[] = orderSet.map((order) => {
+        const levels = found.map((m) => m?.orders.find((o) => o.order === order)?.powerDb);
+        const db = {} as Record<Axis, number>;
+        for (const axis of AXES) db[axis] = powerMeanDb(levels.map((o) => o?.[axis] ?? Number.NaN));
+        const blocks = found.reduce((s, m) => s + Math.max(0, (m?.blocks ?? 0) - (m?.maskedBlocks ?? 0)), 0);
+        const sides = found.map((m) => m?.orders.find((o) => o.order === order)?.sideDb);
+        const sideDb = {} as Record<Axis, number>;
+        for (const axis of AXES) sideDb[axis] = powerMeanDb(sides.map((o) => o?.[axis] ?? Number.NaN));
+        return { order, db, sideDb, logSpreadDb: Math.max(...AXES.map((axis) => stdDev(levels.map((o) => o?.[axis] ?? Number.NaN)))), blocks };
+      });
+      const one = orders.find((o) => o.order === 1);
       return {
         motor,
-        meanRpm: mean(found.map((m) => m?.meanRpm ?? Number.NaN)),
-        order1Db,
-        logSpreadDb: stdDev(strongest),
+        meanRpm: mean(found.map((m) => (m && m.meanRpm > 0 ? m.meanRpm : Number.NaN))),
+        order1Db: one?.db ?? { roll: Number.NaN, pitch: Number.NaN, yaw: Number.NaN },
+        logSpreadDb: one?.logSpreadDb ?? 0,
+        orders,
       };
     });
     throttleBands.push({
@@ -158,11 +210,7 @@ export function buildBaseline(analyses: readonly LogAnalysis[]): Baseline {
   const peaks = {} as Record<Axis, number[]>;
   const modes: BaselineMode[] = [];
   for (const axis of AXES) {
-    const all = analyses.flatMap((a) => [
-      ...a.axes[axis].peaks.map((p) => p.freqHz),
-      ...a.throttleBands.flatMap((b) => b.axes[axis].peaks.map((p) => p.freqHz)),
-    ]);
-    peaks[axis] = [...new Set(all.map((f) => round(f, 1)))].filter((f) => f <= maxFreqHz).sort((x, y) => x - y);
+    peaks[axis] = recurringPeaks(analyses, axis, maxFreqHz);
     const structural = analyses.map((a) => a.axes[axis].peaks.filter((p) => p.kind === "structural" && p.freqHz <= maxFreqHz));
     for (const cluster of clusterModes(structural)) {
       // A mode must show in most baseline logs (all of two, two of three …) to be trusted.
@@ -175,12 +223,23 @@ export function buildBaseline(analyses: readonly LogAnalysis[]): Baseline {
         levelDb: round(mean(cluster.map((p) => p.levelDb)), 2),
         spreadPct: round(((Math.max(...freqs) - Math.min(...freqs)) / f) * 100, 2),
         seenIn: cluster.length,
+        bands: modeInBands(throttleBands, axis, f, binHz),
       });
     }
   }
 
+  const unusableAxes = AXES.flatMap((axis) => {
+    const bad = analyses.find((a) => a.axes[axis].signal?.usable === false);
+    return bad ? [{ axis, reason: bad.axes[axis].signal?.text ?? "no usable signal" }] : [];
+  });
+  if (unusableAxes.length === AXES.length) {
+    throw new InputError(`no gyro axis carries a usable signal in every baseline log (${unusableAxes.map((u) => `${u.axis}: ${u.reason}`).join("; ")}); choose other logs`);
+  }
+
   return {
-    version: 1,
+    version: BASELINE_VERSION,
+    unusableAxes,
+    untrustedMotors: motors.filter((motor) => analyses.some((a) => (a.motors.find((m) => m.motor === motor)?.maskedShare ?? 0) > DEFAULT_THRESHOLDS.maxMaskedShare)),
     logs: analyses.length,
     sampleRateHz,
     binHz,
@@ -194,6 +253,50 @@ export function buildBaseline(analyses: readonly LogAnalysis[]): Baseline {
     modes,
     peaks,
   };
+}
+
+/**
+ * Where a mode sits in each throttle band of the baseline: the peak above the local median
+ * nearest to its all-throttle frequency within ±MODE_CLUSTER_FRACTION, if any.
+ */
+function modeInBands(bands: BaselineThrottleBand[], axis: Axis, freqHz: number, binHz: number): { index: number; freqHz: number; levelDb: number }[] {
+  const out: { index: number; freqHz: number; levelDb: number }[] = [];
+  for (const b of bands) {
+    const found = peaksAboveLocalMedian(b.axes[axis].psdDb, binHz, freqHz * (1 - MODE_CLUSTER_FRACTION), freqHz * (1 + MODE_CLUSTER_FRACTION), MODE_TRACK_PROMINENCE_DB);
+    const best = found.sort((x, y) => Math.abs(x.freqHz - freqHz) - Math.abs(y.freqHz - freqHz))[0];
+    if (best) out.push({ index: b.index, freqHz: round(best.freqHz, 2), levelDb: round(best.levelDb, 2) });
+  }
+  return out;
+}
+
+/** A peak is known when it recurs in at least this share of the baseline's (log, band) spectra. */
+const KNOWN_PEAK_SHARE = 0.5;
+/** Peaks within this fraction of each other are one peak for the recurrence count. */
+const SAME_PEAK_FRACTION = 0.03;
+
+/**
+ * The peaks of a baseline that recur: a peak counts as known when, in at least half of the
+ * baseline's (log × throttle band) spectra with enough segments, and in at least two of them, a
+ * peak lies within ±3 % of it. A resonance of the airframe shows up in most of them; a noise
+ * peak of one sparse band falls at a random frequency and does not recur (with k spectra, a
+ * ±3 % coincidence by chance in half of them is rare), and a motor order moves with throttle.
+ */
+export function recurringPeaks(analyses: readonly LogAnalysis[], axis: Axis, maxFreqHz: number): number[] {
+  const cells = analyses.flatMap((a) => a.throttleBands.filter((b) => b.segments >= MIN_BAND_SEGMENTS).map((b) => b.axes[axis].peaks.map((p) => p.freqHz)));
+  const need = Math.max(2, Math.ceil(KNOWN_PEAK_SHARE * cells.length));
+  const known: number[] = [];
+  for (const f of cells.flat().sort((x, y) => x - y)) {
+    if (f > maxFreqHz || known.some((k) => Math.abs(k - f) <= SAME_PEAK_FRACTION * f)) continue;
+    const hits = cells.map((c) => c.filter((g) => Math.abs(g - f) <= SAME_PEAK_FRACTION * f)).filter((c) => c.length > 0);
+    if (hits.length >= need) known.push(round(median(hits.map((c) => c[0] ?? f)), 1));
+  }
+  return known;
+}
+
+/** Power mean of dB levels (the mean of the powers, in dB), skipping NaN. */
+function powerMeanDb(values: number[]): number {
+  const v = values.filter(Number.isFinite);
+  return v.length === 0 ? Number.NaN : 10 * Math.log10(v.reduce((s, x) => s + 10 ** (x / 10), 0) / v.length);
 }
 
 /** A log's per-band values re-indexed onto the baseline's bands (logs may have more bands). */

@@ -50,6 +50,11 @@ export function rankQueue(fleet: readonly AirframeFacts[]): QueueEntry[] {
       reasons.push(`${c.severity} crash on ${DAY.format(c.at)} UTC${c.positions.length ? ` (${c.positions.join(", ")})` : ""} with no inspection since`);
       status = worstStatus(status, c.severity === "minor" ? "inspect" : "ground");
     }
+    if (a.latest && a.latest.score === null) {
+      // No score is not a good score: a log without usable signal says nothing about the quad.
+      reasons.push("log unusable: the latest log could not be compared with the baseline (see its notes); fly a short check and upload it");
+      status = worstStatus(status, "watch");
+    }
     for (const f of a.latest?.findings.slice(0, 3) ?? []) reasons.push(f.text);
     for (const p of a.partsPastLife) {
       reasons.push(`${p.what} at ${p.position} has used ${Math.round(p.fraction * 100)} % of its life limit: replace it`);

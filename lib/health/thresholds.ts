@@ -36,6 +36,12 @@ export interface HealthThresholds {
   scoreInspect: number;
   /** Peaks this close (fraction of frequency) to a baseline peak are not new. */
   samePeakFraction: number;
+  /**
+   * A motor whose rpm telemetry is masked in more than this share of the log's order blocks is
+   * not compared: with most blocks gone, what remains is the flying where telemetry happened to
+   * work (e.g. gentle hover), not a fair match for the baseline. Half: the majority must be real.
+   */
+  maxMaskedShare: number;
 }
 
 export const DEFAULT_THRESHOLDS: HealthThresholds = {
@@ -48,6 +54,7 @@ export const DEFAULT_THRESHOLDS: HealthThresholds = {
   scoreWatch: 60,
   scoreInspect: 35,
   samePeakFraction: 0.05,
+  maxMaskedShare: 0.5,
 };
 
 /** The step a magnitude reaches, or null below watch. */

@@ -31,3 +31,45 @@ export class RealPowerSpectrum {
     }
   }
 }
+
+/**
+ * Squared magnitudes |X_k|² of the DFT of a complex sequence, k = 0..N−1, zero-padded to the
+ * transform length (fft.js's complex transform). One instance per length; not re-entrant.
+ */
+export class ComplexPowerSpectrum {
+  readonly size: number;
+  private readonly fft: FFT;
+  private readonly input: Float64Array;
+  private readonly out: Float64Array;
+  private readonly power: Float64Array;
+
+  constructor(size: number) {
+    if (!Number.isInteger(size) || size < 2 || (size & (size - 1)) !== 0) {
+      throw new RangeError(`FFT length must be a power of two ≥ 2, got ${size}`);
+    }
+    this.size = size;
+    this.fft = new FFT(size);
+    this.power = new Float64Array(size);
+    this.input = new Float64Array(2 * size);
+    this.out = new Float64Array(2 * size);
+  }
+
+  /**
+   * |X_k|², k = 0..size−1, of the sequence re[offset + i·stride] + i·im[offset + i·stride],
+   * i < count (count ≤ size; the rest is zero). The returned buffer is owned by this instance
+   * and overwritten by the next call.
+   */
+  powers(re: ArrayLike<number>, im: ArrayLike<number>, count: number, stride = 1, offset = 0): Float64Array {
+    const x = this.input;
+    x.fill(0);
+    for (let i = 0; i < count; i++) {
+      x[2 * i] = re[offset + i * stride] ?? 0;
+      x[2 * i + 1] = im[offset + i * stride] ?? 0;
+    }
+    this.fft.transform(this.out, x);
+    const out = this.out;
+    const p = this.power;
+    for (let k = 0, j = 0; k < this.size; k++, j += 2) p[k] = (out[j] as number) ** 2 + (out[j + 1] as number) ** 2;
+    return p;
+  }
+}

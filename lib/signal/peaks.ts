@@ -138,3 +138,56 @@ export function spectralPeaks(db: Float64Array, binHz: number, search: PeakSearc
   kept.sort((a, b) => a.freqHz - b.freqHz);
   return kept;
 }
+
+/**
+ * Peaks standing above the spectrum's local background, for following a known resonance. The
+ * background at each bin is the mean of the medians of its two flanks (from ±`relWidth`/3 to
+ * ±`relWidth` of its frequency, the core left out): robust to a neighbour's skirt, and exact on
+ * a straight slope (the two flank medians sit symmetrically about the bin), where a plain running
+ * median would follow the slope through the peak. Then scipy-style prominence ≥ `minProminenceDb`
+ * on the dB spectrum minus that background. A mode that moved onto the flank of another, or onto
+ * a filter's roll-off, is a shoulder without a maximum of its own in the plain spectrum; above
+ * its background it is a peak again. Only peaks within [loHz, hiHz] are searched; `levelDb` is
+ * the plain spectrum's level there.
+ */
+export function peaksAboveLocalMedian(
+  db: ArrayLike<number>,
+  binHz: number,
+  loHz: number,
+  hiHz: number,
+  minProminenceDb: number,
+  relWidth = 0.12,
+): SpectralPeak[] {
+  const first = Math.max(1, Math.floor(loHz / binHz));
+  const last = Math.min(db.length - 2, Math.ceil(hiHz / binHz));
+  if (last - first < 2) return [];
+  const residual = new Float64Array(last - first + 1);
+  const flank: number[] = [];
+  const medianOf = (from: number, to: number): number => {
+    flank.length = 0;
+    for (let j = Math.max(0, from); j <= Math.min(db.length - 1, to); j++) {
+      const v = db[j] ?? Number.NaN;
+      if (Number.isFinite(v)) flank.push(v);
+    }
+    flank.sort((a, b) => a - b);
+    return flank.length === 0 ? Number.NaN : (flank[flank.length >> 1] ?? Number.NaN);
+  };
+  for (let k = first; k <= last; k++) {
+    const outer = Math.max(6, Math.round(k * relWidth));
+    const inner = Math.max(2, Math.round(outer / 3));
+    const left = medianOf(k - outer, k - inner);
+    const right = medianOf(k + inner, k + outer);
+    const background = Number.isFinite(left) && Number.isFinite(right) ? (left + right) / 2 : Number.isFinite(left) ? left : right;
+    residual[k - first] = (db[k] ?? background) - (Number.isFinite(background) ? background : (db[k] ?? 0));
+  }
+  const out: SpectralPeak[] = [];
+  for (const i of localMaxima(residual)) {
+    const p = peakProminence(residual, i);
+    if (p.prominence < minProminenceDb) continue;
+    const k = i + first;
+    // Refined on the residual (the slope would pull the plain spectrum's vertex downhill).
+    const v = quadraticVertex(residual[i - 1] ?? 0, residual[i] ?? 0, residual[i + 1] ?? 0);
+    out.push({ freqHz: (k + v.offset) * binHz, levelDb: (db[k] ?? 0) + v.value - (residual[i] ?? 0), prominenceDb: p.prominence, widthHz: peakWidth(residual, i, p) * binHz, bin: k });
+  }
+  return out;
+}

@@ -1,5 +1,5 @@
 import { execFileSync, spawnSync } from "node:child_process";
-import { mkdtempSync, writeFileSync } from "node:fs";
+import { mkdtempSync, readFileSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { beforeAll, describe, expect, it } from "vitest";
@@ -56,6 +56,37 @@ describe("heatcheck analyze", () => {
     expect((await cli("analyze", good, "--bogus")).stderr).toMatch(/unknown option --bogus/);
     expect((await cli("frobnicate")).code).toBe(2);
     expect((await cli("compare", prop)).stderr).toMatch(/needs at least one --baseline/);
+  });
+});
+
+describe("analyze --json keeps the PSD's precision", () => {
+  // Source: scipy.signal.welch, fixtures by test/fixtures/make_welch_fixtures.py. The fixture's
+  // samples go through the whole command (CSV writer with round-trip decimal digits, the reader,
+  // the JSON output); tolerance ≤ 1e-9 relative wherever scipy's value is above 1e-12 of its maximum.
+  const fixtures = JSON.parse(readFileSync("test/fixtures/welch-scipy.json", "utf8")) as {
+    cases: { name: string; fs: number; options: Record<string, string | number>; x: number[]; freqHz: number[]; psd: number[] }[];
+  };
+  it.each(["resonance-4k-hann-2048", "two-tones-1k-hann-256", "hamming-2k-512-75pct"])("%s: ≤ 1e-9 relative to scipy", async (name) => {
+    const c = fixtures.cases.find((x) => x.name === name);
+    if (!c) throw new Error(`fixture ${name} missing`);
+    const file = join(dir, `${name}.csv`);
+    const stepUs = 1e6 / c.fs;
+    const rows = c.x.map((v, i) => `${i * stepUs},${v},${v},${v}`);
+    writeFileSync(file, `time_us,gyro_roll,gyro_pitch,gyro_yaw\n${rows.join("\n")}\n`);
+    const nperseg = Number(c.options.nperseg);
+    const overlap = c.options.noverlap === undefined ? 0.5 : Number(c.options.noverlap) / nperseg;
+    const window = c.options.window === "hamming" ? "hamming" : "hann";
+    const r = await cli("analyze", file, "--json", "--nperseg", String(nperseg), "--overlap", String(overlap), "--window", window);
+    expect(r.stderr).toBe("");
+    const j = JSON.parse(r.stdout) as { axes: { roll: { freqHz: number[]; psd: number[] } } };
+    expect(j.axes.roll.psd.length).toBe(c.psd.length);
+    const top = Math.max(...c.psd);
+    let worst = 0;
+    c.psd.forEach((ref, k) => {
+      if (ref > 1e-12 * top) worst = Math.max(worst, Math.abs((j.axes.roll.psd[k] ?? Number.NaN) - ref) / ref);
+      expect(Math.abs((j.axes.roll.freqHz[k] ?? Number.NaN) - (c.freqHz[k] ?? 0))).toBeLessThanOrEqual(1e-9 * c.fs);
+    });
+    expect(worst).toBeLessThanOrEqual(1e-9);
   });
 });
 
