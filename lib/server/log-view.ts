@@ -6,7 +6,9 @@ import { judgeAgainstFleet, memberFromLog, type FleetNote } from "@/lib/health/f
 import { motorPositionName } from "@/lib/health/motor-positions";
 import type { Status } from "@/lib/health/thresholds";
 import { NotFoundError } from "@/lib/errors";
+import { DEFAULT_ANALYSIS } from "@/lib/analysis/settings";
 import { AXES, type Axis } from "@/lib/logs/columns";
+import { toDb } from "@/lib/signal/bands";
 import type { Actor } from "@/lib/roles";
 import { db } from "./db";
 import { BAND_WORDS, fleetPlacement } from "./fleet";
@@ -64,6 +66,38 @@ export async function logView(actor: Actor, logId: string) {
       meanRpm: m.meanRpm,
       track: m.track.map((p) => ({ tS: Math.round(p.tS * 10) / 10, rotationHz: Math.round(p.rotationHz * 10) / 10, order1Db: Math.round(p.order1Db * 10) / 10 })),
     })),
+    orders: analysis ? orderTable(analysis) : null,
     fleet: { airframes: fleetAirframes, notes: fleetNotes },
   };
+}
+
+/**
+ * Each motor's order spectrum over the whole log: for every tracked order (0.5× … 4×, blade pass)
+ * the level on the loudest axis, averaged in power over the well-flown throttle bands weighted by
+ * their segments (dB re 1 (deg/s)²), with the share of the motor's telemetry that was masked.
+ */
+function orderTable(analysis: LogAnalysis) {
+  const bands = analysis.throttleBands.filter((b) => b.segments >= DEFAULT_ANALYSIS.minBandSegments);
+  const labels: string[] = [];
+  for (const b of bands) for (const m of b.motors) for (const o of m.orders) if (!labels.includes(o.label)) labels.push(o.label);
+  const orderOf = new Map<string, number>();
+  for (const b of bands) for (const m of b.motors) for (const o of m.orders) orderOf.set(o.label, o.order);
+  labels.sort((x, y) => (orderOf.get(x) ?? 0) - (orderOf.get(y) ?? 0));
+  const motors = analysis.motors.map((summary) => {
+    const levels = labels.map((label) => {
+      let power = 0;
+      let weight = 0;
+      for (const b of bands) {
+        const o = b.motors.find((m) => m.motor === summary.motor)?.orders.find((x) => x.label === label);
+        if (!o) continue;
+        const loudest = Math.max(...AXES.map((a) => o.powerDb[a]));
+        if (!Number.isFinite(loudest)) continue;
+        power += b.segments * 10 ** (loudest / 10);
+        weight += b.segments;
+      }
+      return weight > 0 ? Math.round(toDb(power / weight) * 10) / 10 : null;
+    });
+    return { motor: summary.motor, name: motorPositionName(summary.motor), meanRpm: Math.round(summary.meanRpm), maskedShare: summary.maskedShare ?? 0, levels };
+  });
+  return { labels, motors };
 }

@@ -118,6 +118,9 @@ describe("the crew at work (owner)", () => {
     await page.waitForSelector("[data-testid=spectrum-roll] svg path.recharts-curve");
     await page.waitForSelector("[data-testid=motor-orders] svg path.recharts-curve");
     expect(await page.locator("[data-testid=motor-orders] path.recharts-curve").count()).toBe(4);
+    // The order spectrum per motor: four motors, whole and half orders with the blade pass.
+    expect(await page.locator("[data-testid=order-table] tbody tr").count()).toBe(4);
+    expect(await page.locator("[data-testid=order-table] thead").innerText()).toMatch(/1x[\s\S]*2x[\s\S]*blade-pass/);
     expect(await page.locator("[data-testid=fleet-view]").innerText()).toMatch(/sister airframes|fleet/);
     expect(await page.locator("body").innerText()).toMatch(/motor 3 \(rear-right\) vibrates \d+ dB more/);
     await shot(page, "log");

@@ -82,6 +82,45 @@ export default async function LogPage({ params, searchParams }: { params: Promis
       <ThrottleMapCard analysis={analysis} axis={axis} href={`/logs/${log.id}`} />
 
       <h2>Motor orders</h2>
+      {view.orders && view.orders.motors.length > 0 ? (
+        <div className="card" style={{ overflowX: "auto", marginBottom: "1rem" }}>
+          <table data-testid="order-table">
+            <caption className="muted small" style={{ textAlign: "left" }}>
+              Each motor&apos;s order spectrum over the log: level on the loudest axis, dB re 1 (deg/s)², power-averaged over the throttle bands flown. The loudest motor of each order is in bold.
+            </caption>
+            <thead>
+              <tr>
+                <th scope="col">motor</th>
+                <th scope="col" className="num">mean rpm</th>
+                <th scope="col" className="num">telemetry masked</th>
+                {view.orders.labels.map((l) => (
+                  <th scope="col" className="num" key={l}>
+                    {l}
+                  </th>
+                ))}
+              </tr>
+            </thead>
+            <tbody>
+              {view.orders.motors.map((m) => (
+                <tr key={m.motor}>
+                  <th scope="row">{m.name}</th>
+                  <td className="num">{m.meanRpm}</td>
+                  <td className="num">{Math.round(m.maskedShare * 100)} %</td>
+                  {m.levels.map((v, i) => {
+                    const column = view.orders?.motors.map((x) => x.levels[i] ?? -Infinity) ?? [];
+                    const loudest = v !== null && v === Math.max(...column);
+                    return (
+                      <td className="num" key={i} style={loudest ? { fontWeight: 800 } : undefined}>
+                        {v === null ? "–" : v.toFixed(1)}
+                      </td>
+                    );
+                  })}
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </div>
+      ) : null}
       <div className="card">
         <MotorOrdersChart motors={view.motors} />
         {view.motors.length > 0 ? <p className="muted small">1× order (once per revolution) of each motor through the flight, measured by order tracking from its rpm column.</p> : null}
