@@ -467,7 +467,7 @@ function motorOrders(standings: OrderStanding[], positions: Record<number, strin
       cause: rattle ? "motor-mount" : "prop",
       deltaDb: round(s.ownDb, 1),
       ...graded,
-      text: `motor ${motor}${where} vibrates ${s.ownDb.toFixed(0)} dB more at ${at} than in the baseline, and more than the other motors, ${advice}`,
+      text: `motor ${motor}${where} vibrates ${s.ownDb.toFixed(0)} dB more at ${at} than in the baseline, and more than the other motors: ${advice}`,
     });
   }
   return out;
