@@ -142,6 +142,25 @@ describe("the crew at work (owner)", () => {
     await page.setViewportSize({ width: 1440, height: 900 });
   });
 
+  it("screenshots of the queue, an airframe with trends, the fleet's design view and a log at 390, 1024 and 1366 px", async () => {
+    const airframe = await airframeUrl(page, "HV-03");
+    await page.goto(airframe);
+    const logHref = await page.locator("a:has-text('Open the latest log')").getAttribute("href");
+    const screens = { queue: `${app.url}/`, airframe, fleet: `${app.url}/fleet`, log: `${app.url}${logHref ?? ""}` };
+    for (const width of [390, 1024, 1366]) {
+      await page.setViewportSize({ width, height: 900 });
+      for (const [name, url] of Object.entries(screens)) {
+        await page.goto(url);
+        if (name === "airframe") await page.waitForSelector("[data-testid=trend-modes] svg path.recharts-curve");
+        if (name === "log") await page.waitForSelector("[data-testid=spectrum-pitch] svg path.recharts-curve");
+        // Nothing wider than the screen: every screen reflows down to a phone.
+        expect(await page.evaluate(() => document.documentElement.scrollWidth - window.innerWidth)).toBeLessThanOrEqual(1);
+        await shot(page, `${name}-${width}`);
+      }
+    }
+    await page.setViewportSize({ width: 1440, height: 900 });
+  });
+
   it("the queue and the airframe screen fit a 390 px phone", async () => {
     await page.setViewportSize({ width: 390, height: 844 });
     await page.goto(`${app.url}/`);

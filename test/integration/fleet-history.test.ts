@@ -81,6 +81,46 @@ describe("the fleet as its own reference", () => {
   });
 });
 
+describe("the reference's size (1, 2, 3 and 8 airframes of one design)", () => {
+  // An independent computation of the statistics the reference must report, written out here
+  // (sort, middle, absolute deviations) rather than calling the module under test.
+  const mid = (v: number[]) => {
+    const s = [...v].sort((a, b) => a - b);
+    const n = s.length;
+    return n % 2 ? (s[(n - 1) / 2] ?? NaN) : ((s[n / 2 - 1] ?? NaN) + (s[n / 2] ?? NaN)) / 2;
+  };
+
+  it("is not enough with 1 and 2, enough from 3, and at 8 reports the median and 1.4826·MAD of the baselines' own modes", async () => {
+    const ids8: string[] = [];
+    for (let i = 0; i < 8; i++) {
+      const name = `S-${i + 1}`;
+      const id = (await createAirframe(actors.tech, { name, frameDesign: "size frame", serial: "", notes: "" })).id;
+      const csv = demoCsv({ seed: 700 + i, durationS: 24, sampleRateHz: 2000, airframeSeed: 20 + i }, { airframe: name, flownAt: new Date(Date.UTC(2026, 10, 3, 10, i)).toISOString() });
+      const r = await ingestLog(actors.pilot, { fileName: `${name}.csv`, body: Readable.from([Buffer.from(csv)]) });
+      await analysesSettled();
+      await setBaseline(actors.tech, id, [r.logId], "known-good");
+      ids8.push(id);
+      if (![1, 2, 3, 8].includes(i + 1)) continue;
+      const design = (await fleetDesignView(actors.viewer)).find((d) => d.design === "size frame");
+      expect(design?.airframes).toBe(i + 1);
+      expect(design?.enough).toBe(i + 1 >= 3);
+    }
+    const { designs } = await fleetPlacement(actors.viewer);
+    const ref = designs.find((d) => d.design === "size frame");
+    const baselines = await db.baseline.findMany({ where: { airframeId: { in: ids8 }, active: true } });
+    const yaw = baselines.map((b) => (JSON.parse(b.json) as { modes: { axis: string; freqHz: number }[] }).modes.filter((m) => m.axis === "yaw").map((m) => m.freqHz));
+    // The demo frame has one yaw mode (lib/demo/airframe-model.ts); each airframe's baseline shows it once.
+    expect(yaw.every((v) => v.length === 1)).toBe(true);
+    const f = yaw.map((v) => v[0] ?? NaN);
+    const median = mid(f);
+    const mad = mid(f.map((x) => Math.abs(x - median)));
+    const mode = ref?.modes.find((m) => m.axis === "yaw");
+    expect(mode?.members).toHaveLength(8);
+    expect(mode?.medianHz).toBeCloseTo(median, 9);
+    expect(mode?.sigmaHz).toBeCloseTo(1.4826 * mad, 9);
+  }, 120_000);
+});
+
 describe("history export", () => {
   it("has every record and writes RFC 4180 CSV (quotes doubled, fields with commas quoted)", async () => {
     await logCrash(actors.pilot, { airframeId: ids["F-2"] ?? "", at: new Date("2026-11-20T12:00:00Z"), heatId: null, severity: "minor", positions: ["props"], note: 'clipped the "blue" gate, props chipped', ground: false });
