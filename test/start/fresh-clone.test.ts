@@ -29,8 +29,9 @@ beforeAll(() => {
 
 afterAll(async () => {
   await app?.stop();
+  // Deleting the copied node_modules takes minutes on a loaded 2-core machine.
   if (workdir) rmSync(workdir, { recursive: true, force: true });
-});
+}, 600_000);
 
 describe("a fresh clone", () => {
   it("comes up with `npm install && npm start` and shows the demo fleet ranked", async () => {
