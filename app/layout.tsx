@@ -1,5 +1,7 @@
 import type { Metadata, Viewport } from "next";
+import { headers } from "next/headers";
 import type { ReactNode } from "react";
+import { demoAccountsExist } from "@/lib/server/demo-mode";
 import "./globals.css";
 
 export const metadata: Metadata = {
@@ -10,10 +12,20 @@ export const metadata: Metadata = {
 
 export const viewport: Viewport = { width: "device-width", initialScale: 1 };
 
-export default function RootLayout({ children }: { children: ReactNode }) {
+export default async function RootLayout({ children }: { children: ReactNode }) {
+  // Reading the request makes every page render per request, so each gets its CSP nonce (proxy.ts).
+  await headers();
+  const demo = await demoAccountsExist();
   return (
     <html lang="en">
-      <body>{children}</body>
+      <body>
+        {demo ? (
+          <div className="demo-banner" role="note" data-testid="demo-banner">
+            Demo server: the invented demo team&apos;s accounts exist and their passwords are published. Do not keep a real team&apos;s records here.
+          </div>
+        ) : null}
+        {children}
+      </body>
     </html>
   );
 }

@@ -26,4 +26,6 @@ export interface Actor {
   /** shown in the audit trail */
   name: string;
   via: "session" | "token";
+  /** the signed-in session (lib/server/sessions.ts), when via is "session" and a request made it */
+  sessionId?: string;
 }

@@ -47,6 +47,10 @@ const POSITIONS: { position: string; kind: PartKind; model: string; lifeFlights?
 ];
 
 async function main(): Promise<void> {
+  if (process.env.HEATCHECK_DEMO === "0") {
+    console.log("seed: HEATCHECK_DEMO=0, no demo team (create the first owner with `npm run accounts -- first-owner`)");
+    return;
+  }
   if ((await db.team.count()) > 0) {
     console.log("seed: the database already has a team; nothing to do");
     return;
@@ -108,9 +112,15 @@ async function seedTeam(teamId: string): Promise<void> {
   await createParts(tech, { kind: "camera", model: "Micro camera 1.8 mm", label: "spare-cam", supplier: "Lenslane", cost: 28, acquiredAt: new Date(autumn), lifeFlights: null, lifeMinutes: null, quantity: 1, notes: "" });
 
   const names = Array.from({ length: 8 }, (_, i) => `HV-0${i + 1}`);
+  // HV-04 has flown with a hairline crack in its rear-right arm since before its autumn baseline
+  // (a hard landing nobody logged): its own baseline hides it, its sisters do not.
+  const hv04SoftArm: Partial<DemoLogOptions> = { scenario: "cracked-arm", severity: 2, position: 3 };
+  const history = (name: string): Partial<DemoLogOptions> => (name === "HV-04" ? hv04SoftArm : {});
   const ids: Record<string, string> = {};
-  for (const [i, name] of names.entries()) {
-    const a = await createAirframe(tech, { name, frameDesign: FRAME, serial: `HVQ-2026-${String(101 + i)}`, notes: i === 7 ? "Practice quad; motors from last season." : "" });
+  const notes: Record<string, string> = { "HV-08": "Practice quad; motors from last season.", "HV-09": "New build for the winter series; no baseline flown yet." };
+  // HV-09 is built from the same kit but has only flown practice and today's heat: no baseline.
+  for (const [i, name] of [...names, "HV-09"].entries()) {
+    const a = await createAirframe(tech, { name, frameDesign: FRAME, serial: `HVQ-2026-${String(101 + i)}`, notes: notes[name] ?? "" });
     ids[name] = a.id;
     for (const p of POSITIONS) {
       const [part] = await createParts(tech, { kind: p.kind, model: p.model, label: `${name}-${p.position.split(" ")[0]}`, supplier: "Vale Carbon Works", cost: null, acquiredAt: new Date(autumn - 10 * DAY), lifeFlights: p.lifeFlights ?? null, lifeMinutes: null, quantity: 1, notes: "" });
@@ -122,7 +132,7 @@ async function seedTeam(teamId: string): Promise<void> {
   const autumnEvent = await createEvent(tech, { name: "Vale Autumn Open", venue: "Harrow Vale sports field", startsAt: new Date(autumn) });
   const goodLogs: Record<string, string> = {};
   for (const [i, name] of names.entries()) {
-    goodLogs[name] = await upload(name, autumn + HOUR + i * 10 * 60_000, {}, "known-good after the autumn rebuild", i);
+    goodLogs[name] = await upload(name, autumn + HOUR + i * 10 * 60_000, history(name), "known-good after the autumn rebuild", i);
   }
   await createHeat(tech, { eventId: autumnEvent.id, name: "Final", startsAt: new Date(autumn + 5 * HOUR) });
   await analysesSettled();
@@ -141,9 +151,10 @@ async function seedTeam(teamId: string): Promise<void> {
   // Practice between the events: short 2 kHz logs (the logger was set lower), all healthy.
   for (const daysAgo of [12, 5]) {
     for (const [i, name] of names.entries()) {
-      await upload(name, now - daysAgo * DAY + i * 5 * 60_000, { sampleRateHz: 2000, durationS: 20 }, "practice session", i);
+      await upload(name, now - daysAgo * DAY + i * 5 * 60_000, { sampleRateHz: 2000, durationS: 20, ...history(name) }, "practice session", i);
     }
   }
+  await upload("HV-09", now - 5 * DAY + 45 * 60_000, { sampleRateHz: 2000, durationS: 20 }, "first practice on the new build", 8);
 
   // Today: Winter Series round 1. Earlier heats flown; the next heat starts soon.
   const winter = await createEvent(tech, { name: "Winter Series round 1", venue: "Copse Lane indoor arena", startsAt: new Date(now - 4 * HOUR) });
@@ -153,23 +164,30 @@ async function seedTeam(teamId: string): Promise<void> {
   }
   await setHeatEntries(tech, heats[0]?.id ?? "", [ids["HV-01"], ids["HV-02"], ids["HV-03"], ids["HV-04"]].map(String));
   await setHeatEntries(tech, heats[1]?.id ?? "", [ids["HV-05"], ids["HV-06"], ids["HV-07"], ids["HV-08"]].map(String));
-  await setHeatEntries(tech, heats[2]?.id ?? "", [ids["HV-01"], ids["HV-03"], ids["HV-05"], ids["HV-07"]].map(String));
+  await setHeatEntries(tech, heats[2]?.id ?? "", [ids["HV-01"], ids["HV-03"], ids["HV-05"], ids["HV-07"], ids["HV-09"]].map(String));
   await setHeatEntries(tech, heats[3]?.id ?? "", [ids["HV-02"], ids["HV-04"], ids["HV-06"], ids["HV-08"]].map(String));
 
   const today: { name: string; options: Partial<DemoLogOptions>; note: string; heat: number }[] = [
     { name: "HV-01", options: {}, note: "heat 1", heat: 0 },
     { name: "HV-02", options: { style: "hard" }, note: "heat 1, pushed hard all race", heat: 0 },
     { name: "HV-03", options: { scenario: "cracked-arm", severity: 2, position: 2 }, note: "heat 1, felt soft on pitch", heat: 0 },
-    { name: "HV-04", options: {}, note: "heat 1", heat: 0 },
+    { name: "HV-04", options: hv04SoftArm, note: "heat 1", heat: 0 },
     { name: "HV-05", options: { scenario: "bent-prop", severity: 2, position: 3 }, note: "heat 2, touched a flag", heat: 1 },
     { name: "HV-06", options: { scenario: "worn-bearing", severity: 3, position: 1 }, note: "heat 2, grinding noise on landing", heat: 1 },
     { name: "HV-07", options: {}, note: "heat 2, before the crash", heat: 1 },
     { name: "HV-08", options: {}, note: "heat 2", heat: 1 },
+    { name: "HV-09", options: {}, note: "heat 2, first race on the new build", heat: 1 },
   ];
   for (const [i, t] of today.entries()) {
     const heatStart = now + (t.heat === 0 ? -3 : -1.5) * HOUR;
     await upload(t.name, heatStart + 5 * 60_000 + i * 60_000, t.options, t.note, i);
   }
+  // HV-02 clipped a flag in heat 1: rear-right arm replaced between heats and inspected; it flies
+  // heat 4 on a baseline that no longer describes it.
+  await logCrash(pilot, { airframeId: hv02, at: new Date(now - 2.6 * HOUR), heatId: heats[0]?.id ?? null, severity: "minor", positions: ["arm rear-right"], note: "clipped the flag pole, arm split at the motor mount", ground: false });
+  const secondSpareArm = await db.part.findFirst({ where: { teamId: team.id, label: "spare-arm-2" } });
+  if (secondSpareArm) await swapPart(tech, { airframeId: hv02, position: "arm rear-right", newPartId: secondSpareArm.id, reason: "arm split in the heat 1 flag strike", removedStatus: "damaged", at: new Date(now - 2.3 * HOUR) });
+  await recordInspection(tech, { airframeId: hv02, at: new Date(now - 2.1 * HOUR), findings: "Rear-right arm replaced; the other arms flexed, no cracks; props replaced.", checklist: ["props off and battery disconnected before starting", "every arm checked by eye and gently flexed for cracks and delamination", "frame and arm screws checked for tightness"], returnToService: true });
   await logCrash(pilot, { airframeId: ids["HV-07"] ?? "", at: new Date(now - 1.4 * HOUR), heatId: heats[1]?.id ?? null, severity: "hard", positions: ["arm rear-left", "props"], note: "cartwheeled off the dive gate", ground: true });
 
   // HV-08 flies old motors: push motor 4 past its life with the practice flights it has done.

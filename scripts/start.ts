@@ -133,8 +133,12 @@ async function main(): Promise<void> {
   console.log(`
 heatcheck is starting on ${env.NEXTAUTH_URL} (listening on ${host}:${port}; prepared in ${seconds(startedAt)})
   database: ${env.DATABASE_URL}
-  demo sign-in, while the demo team exists:
-${DEMO_ACCOUNTS.map((a) => `    ${a.role.padEnd(6)} ${a.email} / ${a.password}`).join("\n")}
+${
+  process.env.HEATCHECK_DEMO === "0"
+    ? "  demo off (HEATCHECK_DEMO=0); first owner of an empty server: npm run accounts -- first-owner"
+    : `  DEMO MODE (HEATCHECK_DEMO=0 turns it off); demo sign-in, while the demo team exists:
+${DEMO_ACCOUNTS.map((a) => `    ${a.role.padEnd(6)} ${a.email} / ${a.password}`).join("\n")}`
+}
   The score is a decision aid, not an airworthiness certificate.
 `);
 }

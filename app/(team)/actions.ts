@@ -3,16 +3,16 @@
 import { revalidatePath } from "next/cache";
 import { cookies } from "next/headers";
 import { z } from "zod";
-import { assertMemberOf, changePassword } from "@/lib/server/account";
+import { answerInvitation, assertMemberOf, changePassword } from "@/lib/server/account";
 import { createAirframe, setAirframeRetired, setAirframeStatus } from "@/lib/server/airframes";
-import { TEAM_COOKIE } from "@/lib/server/guard";
+import { requireUser, TEAM_COOKIE, TEAM_COOKIE_OPTIONS } from "@/lib/server/guard";
 import { runAction, type ActionState } from "@/lib/server/actions";
 import { setBaseline } from "@/lib/server/baselines";
 import { logCrash, recordInspection } from "@/lib/server/crashes";
 import { createEvent, createHeat, setHeatEntries } from "@/lib/server/events";
 import { reanalyseLog } from "@/lib/server/ingest";
 import { createParts, setPartStatus, swapPart } from "@/lib/server/parts";
-import { addMember, changeRole, createToken, revokeToken, saveProfile } from "@/lib/server/team";
+import { changeRole, confirmToken, createToken, inviteMember, removeMember, revokeToken, saveProfile, withdrawInvitation } from "@/lib/server/team";
 import { airframeSchema, airframeStatusSchema } from "@/lib/validations/airframe";
 import { baselineSchema } from "@/lib/validations/baseline";
 import { idField, optionalText } from "@/lib/validations/common";
@@ -20,7 +20,9 @@ import { crashSchema } from "@/lib/validations/crash";
 import { eventSchema, heatEntriesSchema, heatSchema } from "@/lib/validations/event";
 import { inspectionSchema } from "@/lib/validations/inspection";
 import { partSchema, partStatusSchema, swapSchema } from "@/lib/validations/part";
-import { importProfileSchema, memberSchema, passwordChangeSchema, roleChangeSchema, switchTeamSchema, tokenSchema } from "@/lib/validations/team";
+import { importProfileSchema, invitationSchema, memberSchema, membershipSchema, passwordChangeSchema, roleChangeSchema, switchTeamSchema, tokenSchema } from "@/lib/validations/team";
+import { isDomainError } from "@/lib/errors";
+import { formToObject } from "@/lib/validations/common";
 
 // Every action: guard (role) → zod → service, via runAction. The service checks role and team again.
 
@@ -138,12 +140,56 @@ export async function setHeatEntriesAction(_: ActionState, form: FormData): Prom
   });
 }
 
-export async function addMemberAction(_: ActionState, form: FormData): Promise<ActionState> {
-  return runAction("addMember", "owner", memberSchema, form, async (actor, input) => {
-    await addMember(actor, input);
+export async function inviteMemberAction(_: ActionState, form: FormData): Promise<ActionState> {
+  return runAction("inviteMember", "owner", memberSchema, form, async (actor, input) => {
+    const message = await inviteMember(actor, input);
     revalidatePath("/team");
-    return `${input.email} added as ${input.role}.`;
+    return message;
   });
+}
+
+export async function withdrawInvitationAction(_: ActionState, form: FormData): Promise<ActionState> {
+  return runAction("withdrawInvitation", "owner", invitationSchema, form, async (actor, input) => {
+    await withdrawInvitation(actor, input.invitationId);
+    revalidatePath("/team");
+    return "Invitation withdrawn.";
+  });
+}
+
+export async function removeMemberAction(_: ActionState, form: FormData): Promise<ActionState> {
+  return runAction("removeMember", "owner", membershipSchema, form, async (actor, input) => {
+    const r = await removeMember(actor, input.membershipId);
+    revalidatePath("/team");
+    return r.pausedTokens > 0
+      ? `${r.name} removed; their sessions ended. ${r.pausedTokens} token(s) they created are paused until another owner confirms them.`
+      : `${r.name} removed; their sessions ended.`;
+  });
+}
+
+export async function confirmTokenAction(_: ActionState, form: FormData): Promise<ActionState> {
+  return runAction("confirmToken", "owner", z.object({ tokenId: idField }), form, async (actor, input) => {
+    await confirmToken(actor, input.tokenId);
+    revalidatePath("/team");
+    return "Token confirmed: it works again.";
+  });
+}
+
+/** Accepts or declines an invitation: needs a signed-in person, not a team (they may have none yet). */
+export async function answerInvitationAction(_: ActionState, form: FormData): Promise<ActionState> {
+  try {
+    const user = await requireUser();
+    const parsed = invitationSchema.safeParse(formToObject(form));
+    if (!parsed.success) return { ok: false, message: "Choose an invitation." };
+    const accept = parsed.data.answer === "accept";
+    const { teamId } = await answerInvitation(user.userId, parsed.data.invitationId, accept);
+    if (accept) (await cookies()).set(TEAM_COOKIE, teamId, TEAM_COOKIE_OPTIONS);
+    revalidatePath("/", "layout");
+    return { ok: true, message: accept ? "Welcome to the team." : "Invitation declined." };
+  } catch (e) {
+    if (isDomainError(e)) return { ok: false, message: e.message };
+    console.error("server action answerInvitation failed", e);
+    return { ok: false, message: "Something went wrong on the server; nothing was changed. Try again." };
+  }
 }
 
 export async function changeRoleAction(_: ActionState, form: FormData): Promise<ActionState> {
@@ -181,15 +227,15 @@ export async function saveProfileAction(_: ActionState, form: FormData): Promise
 
 export async function changePasswordAction(_: ActionState, form: FormData): Promise<ActionState> {
   return runAction("changePassword", "viewer", passwordChangeSchema, form, async (actor, input) => {
-    await changePassword(actor, input.current, input.next);
-    return "Password changed. Use the new one next time you sign in.";
+    const r = await changePassword(actor, input.current, input.next);
+    return `Password changed; ${r.endedSessions} other session(s) of yours ended. Use the new one next time you sign in.`;
   });
 }
 
 export async function switchTeamAction(_: ActionState, form: FormData): Promise<ActionState> {
   return runAction("switchTeam", "viewer", switchTeamSchema, form, async (actor, input) => {
     await assertMemberOf(actor, input.teamId);
-    (await cookies()).set(TEAM_COOKIE, input.teamId, { httpOnly: true, sameSite: "lax", path: "/" });
+    (await cookies()).set(TEAM_COOKIE, input.teamId, TEAM_COOKIE_OPTIONS);
     revalidatePath("/", "layout");
     return "Team switched.";
   });

@@ -1,8 +1,8 @@
 import { redirect } from "next/navigation";
 import type { ReactNode } from "react";
-import { UnauthenticatedError } from "@/lib/errors";
+import { ForbiddenError, UnauthenticatedError } from "@/lib/errors";
 import { db } from "@/lib/server/db";
-import { requireMember } from "@/lib/server/guard";
+import { NO_TEAM_MESSAGE, requireMember } from "@/lib/server/guard";
 import { Nav } from "./_components/nav";
 
 export const dynamic = "force-dynamic";
@@ -13,6 +13,8 @@ export default async function TeamLayout({ children }: { children: ReactNode }) 
     actor = await requireMember("viewer");
   } catch (e) {
     if (e instanceof UnauthenticatedError) redirect("/signin");
+    // Signed in but in no team (yet, or no longer): the page of invitations.
+    if (e instanceof ForbiddenError && e.message === NO_TEAM_MESSAGE) redirect("/welcome");
     throw e;
   }
   const team = await db.team.findUnique({ where: { id: actor.teamId } });

@@ -193,7 +193,7 @@ export function judgeAgainstFleet(reference: FleetReference, subject: FleetMembe
   const t = options.thresholds ?? DEFAULT_THRESHOLDS;
   const notes: FleetNote[] = [];
   const whose = options.what === "baseline" ? `${subject.name}'s baseline` : `${subject.name}'s log (judged against the fleet, no baseline of its own)`;
-  const fleetWords = `the fleet's median for ${reference.design} (over ${reference.airframes} airframes)`;
+  const fleetWords = `the median of ${reference.airframes} sister airframes of ${reference.design}`;
   for (const mode of reference.modes) {
     const window = SEARCH_WINDOW_FRACTION * mode.medianHz;
     const candidates = subject.modes.filter((m) => m.axis === mode.axis && Math.abs(m.freqHz - mode.medianHz) <= window);
@@ -232,7 +232,7 @@ export function judgeAgainstFleet(reference: FleetReference, subject: FleetMembe
       z: round1(z),
       // Questioning a baseline is a prompt to look, not damage found: it stays at watch.
       severity: options.what === "baseline" ? "watch" : step,
-      text: `${whose} ${AXIS_WORD[mode.axis]} mode at ${Math.round(nearest.freqHz)} Hz sits ${Math.abs(round1(deviationPct))} % ${side} ${fleetWords}, ${Math.round(mode.medianHz)} Hz — ${question}`,
+      text: `${whose} ${AXIS_WORD[mode.axis]} mode at ${Math.round(nearest.freqHz)} Hz sits ${Math.abs(round1(deviationPct))} % ${side} ${fleetWords} (${Math.round(mode.medianHz)} Hz) — ${question}`,
     });
   }
   if (options.what === "log") {

@@ -13,6 +13,8 @@ export interface AirframeFacts {
   state: string;
   latest: { status: Status; score: number | null; findings: Finding[]; flownAt: Date } | null;
   hasBaseline: boolean;
+  /** The fleet's view: of the baseline (questioned when off its sisters) or, with none, of the latest log. */
+  fleet?: { judged: "baseline" | "log" | null; notes: { text: string; severity: Exclude<Status, "ok"> }[] } | null;
   /** Set when parts that change the spectrum were fitted after the baseline's flights. */
   staleBaseline?: { reason: string } | null;
   openCrashes: { at: Date; severity: string; positions: string[] }[];
@@ -53,7 +55,8 @@ export function rankQueue(fleet: readonly AirframeFacts[]): QueueEntry[] {
       reasons.push(`${p.what} at ${p.position} has used ${Math.round(p.fraction * 100)} % of its life limit: replace it`);
       status = worstStatus(status, "watch");
     }
-    if (a.noLogSince) {
+    // A stale baseline already says "fly one log"; the plain no-log reason would say it twice.
+    if (a.noLogSince && !a.staleBaseline) {
       reasons.push(`no log flown since the ${a.noLogSince.what} on ${DAY.format(a.noLogSince.at)} UTC: fly a short check and upload it`);
       status = worstStatus(status, "watch");
     }
@@ -62,8 +65,18 @@ export function rankQueue(fleet: readonly AirframeFacts[]): QueueEntry[] {
       reasons.push(a.staleBaseline.reason);
       status = worstStatus(status, "watch");
     }
+    for (const n of a.fleet?.notes.slice(0, 2) ?? []) {
+      reasons.push(n.text);
+      status = worstStatus(status, n.severity);
+    }
     if (!a.hasBaseline) {
-      reasons.push("no baseline set, so vibration is not judged: choose known-good logs for one");
+      // Unjudged, or judged only against its sisters: never ok until it has a baseline of its own.
+      reasons.push(
+        a.fleet?.judged === "log"
+          ? "no baseline of its own: its latest log was judged against the fleet only — choose known-good logs for a baseline"
+          : "no baseline set, so vibration is not judged: choose known-good logs for one",
+      );
+      status = worstStatus(status, "watch");
     } else if (!a.latest) {
       reasons.push("no log analysed since the baseline");
     }

@@ -156,6 +156,12 @@ export function canonicalMap(headers: readonly string[]): ColumnMap | undefined 
   return map;
 }
 
+/** True when column `i` of the rows has at least two values and each is larger than the one before. */
+function rises(rows: readonly (readonly (number | null)[])[], i: number): boolean {
+  const v = rows.map((r) => r[i]).filter((x): x is number => typeof x === "number");
+  return v.length >= 2 && v.every((x, k) => k === 0 || x > (v[k - 1] ?? Infinity));
+}
+
 export interface MapProposal {
   map: ColumnMap;
   /** One plain sentence per guess, to show the user before the import. */
@@ -172,10 +178,11 @@ const AXIS_WORDS: Record<Axis, RegExp> = {
 
 /**
  * Proposes a map from header words: time/us/ms, gyro (or rate) with roll/x, pitch/y, yaw/z,
- * throttle/thr, rpm or motor with a number (0-based numbering is shifted to 1-based). It is a
- * proposal: the user confirms it, and every guess is said in words.
+ * throttle/thr, rpm or motor/mot/esc with a number and rpm or Hz (0-based numbering is shifted to
+ * 1-based); without a time word, a column with a time unit in its name whose first values (`rows`,
+ * when given) only rise. It is a proposal: the user confirms it, and every guess is said in words.
  */
-export function proposeColumnMap(headers: readonly string[]): MapProposal {
+export function proposeColumnMap(headers: readonly string[], rows: readonly (readonly (number | null)[])[] = []): MapProposal {
   const canonical = canonicalMap(headers);
   if (canonical) return { map: canonical, guesses: [], missing: [] };
   const map: ColumnMap = [];
@@ -196,6 +203,14 @@ export function proposeColumnMap(headers: readonly string[]): MapProposal {
     const unit: TimeUnit = /\bus\b|usec|micro|\(us\)|_us/.test(h) ? "us" : /ms|milli/.test(h) ? "ms" : /\(s\)|_s\b|sec/.test(h) ? "s" : "us";
     bind(header, { kind: "time", unit }, unit === "us" && !/us/.test(h) ? "no unit in the name, assumed µs" : "time word");
   });
+  // No time word: a column with a time unit as a word of its name whose first values only rise.
+  if (!taken.has("time")) {
+    lower.forEach((h, i) => {
+      const unit: TimeUnit | null = /(^|[\s_(\[])(us|usec)([\s_)\]]|$)/.test(h) ? "us" : /(^|[\s_(\[])ms([\s_)\]]|$)/.test(h) ? "ms" : /(^|[\s_(\[])(s|sec)([\s_)\]]|$)/.test(h) ? "s" : null;
+      if (!unit || !rises(rows, i)) return;
+      bind(headers[i] ?? "", { kind: "time", unit }, `${unit} in the name and its values only rise`);
+    });
+  }
   const gyroLike = lower.map((h) => /gyro|rate|gyr/.test(h) && !/setpoint|target|rc/.test(h));
   const anyGyro = gyroLike.some(Boolean);
   lower.forEach((h, i) => {
@@ -214,7 +229,7 @@ export function proposeColumnMap(headers: readonly string[]): MapProposal {
     if (/throttle|\bthr\b|thrust/.test(h)) bind(header, { kind: "throttle", unit: "auto" }, "scale told by the values");
   });
   const rpmHeaders = lower
-    .map((h, i) => ({ h, i, n: /(?:rpm|motor|mot)\D*(\d)/.exec(h) }))
+    .map((h, i) => ({ h, i, n: /(?:rpm|motor|mot|esc)\D*(\d)/.exec(h) }))
     .filter((x) => x.n && /rpm|hz|freq/.test(x.h) && !/erpm/.test(x.h));
   const zeroBased = rpmHeaders.some((x) => x.n?.[1] === "0");
   for (const r of rpmHeaders) {

@@ -2,7 +2,7 @@ import "server-only";
 import { DEFAULT_ANALYSIS, throttleBandLabel } from "@/lib/analysis/settings";
 import type { LogAnalysis } from "@/lib/analysis/types";
 import type { Baseline } from "@/lib/health/baseline";
-import { buildFleetReference, judgeAgainstFleet, memberFromBaseline, memberFromLog, OUTLIER_Z, type FleetMember } from "@/lib/health/fleet-reference";
+import { buildFleetReference, judgeAgainstFleet, memberFromBaseline, memberFromLog, OUTLIER_Z, type FleetMember, type FleetNote, type FleetReference } from "@/lib/health/fleet-reference";
 import type { Status } from "@/lib/health/thresholds";
 import type { Actor } from "@/lib/roles";
 import { db } from "./db";
@@ -54,8 +54,41 @@ export const BAND_WORDS = {
  * against them. The reference each is judged by leaves it out. Grounded airframes do not count
  * towards a reference (they are known not to be healthy).
  */
-export async function fleetPlacement(actor: Actor) {
-  const airframes = await db.airframe.findMany({
+export interface AirframePlacement {
+  airframeId: string;
+  name: string;
+  design: string;
+  /** What was judged against the fleet: the airframe's baseline, its latest log (no baseline), or nothing. */
+  judged: "baseline" | "log" | null;
+  logId: string | null;
+  /** The design's reference without this airframe. */
+  reference: FleetReference;
+  notes: FleetNote[];
+}
+
+export interface FleetPlacement {
+  placements: AirframePlacement[];
+  /** Each design's reference over all its healthy airframes (for the fleet screen). */
+  designs: FleetReference[];
+}
+
+export async function fleetPlacement(actor: Actor): Promise<FleetPlacement> {
+  // The placement parses every active baseline of the team: keep the last one per team and
+  // reuse it while nothing it rests on has changed (the queue asks for it on every refresh).
+  const sources = await placementSources(actor);
+  const fingerprint = sources.map((r) => [r.id, r.name, r.frameDesign, r.status, r.baselines[0]?.id ?? "", r.logs[0]?.id ?? ""].join("|")).join(";");
+  const cached = placementCache.get(actor.teamId);
+  if (cached && cached.fingerprint === fingerprint) return cached.value;
+  const value = await computePlacement(sources);
+  placementCache.set(actor.teamId, { fingerprint, value });
+  return value;
+}
+
+const placementCache = ((globalThis as unknown as { heatcheckFleetCache?: Map<string, { fingerprint: string; value: FleetPlacement }> }).heatcheckFleetCache ??= new Map());
+
+/** What the placement rests on, read cheaply: airframes, their state and design, active baseline, latest analysed log. */
+function placementSources(actor: Actor) {
+  return db.airframe.findMany({
     where: { teamId: actor.teamId, retired: false },
     orderBy: { name: "asc" },
     select: {
@@ -63,24 +96,37 @@ export async function fleetPlacement(actor: Actor) {
       name: true,
       frameDesign: true,
       status: true,
-      baselines: { where: { active: true }, orderBy: { createdAt: "desc" }, take: 1, select: { json: true } },
-      logs: { where: { status: "analysed" }, orderBy: { flownAt: "desc" }, take: 1, select: { id: true, analysis: { select: { json: true } } } },
+      baselines: { where: { active: true }, orderBy: { createdAt: "desc" }, take: 1, select: { id: true } },
+      logs: { where: { status: "analysed" }, orderBy: { flownAt: "desc" }, take: 1, select: { id: true } },
     },
   });
+}
+
+async function computePlacement(airframes: Awaited<ReturnType<typeof placementSources>>): Promise<FleetPlacement> {
+  const baselineIds = airframes.flatMap((a) => a.baselines.map((b) => b.id));
+  const logIds = airframes.filter((a) => a.baselines.length === 0).flatMap((a) => a.logs.map((l) => l.id));
+  const [baselineRows, analysisRows] = await Promise.all([
+    db.baseline.findMany({ where: { id: { in: baselineIds } }, select: { id: true, json: true } }),
+    db.analysis.findMany({ where: { logId: { in: logIds } }, select: { logId: true, json: true } }),
+  ]);
+  const baselineJson = new Map(baselineRows.map((b) => [b.id, b.json]));
+  const analysisJson = new Map(analysisRows.map((a) => [a.logId, a.json]));
   const members = new Map<string, FleetMember[]>();
   const subjects = airframes.map((a) => {
-    const baselineJson = a.baselines[0]?.json;
-    const analysisJson = a.logs[0]?.analysis?.json;
-    const fromBaseline = baselineJson ? memberFromBaseline(a.id, a.name, JSON.parse(baselineJson) as Baseline) : null;
+    const bJson = baselineJson.get(a.baselines[0]?.id ?? "");
+    const logId = a.logs[0]?.id ?? null;
+    const aJson = logId ? analysisJson.get(logId) : undefined;
+    const fromBaseline = bJson ? memberFromBaseline(a.id, a.name, JSON.parse(bJson) as Baseline) : null;
     if (fromBaseline && a.status !== "grounded") members.set(a.frameDesign, [...(members.get(a.frameDesign) ?? []), fromBaseline]);
-    const fromLog = !fromBaseline && analysisJson ? memberFromLog(a.id, a.name, JSON.parse(analysisJson) as LogAnalysis) : null;
-    return { airframe: a, fromBaseline, fromLog, logId: a.logs[0]?.id ?? null };
+    const fromLog = !fromBaseline && aJson ? memberFromLog(a.id, a.name, JSON.parse(aJson) as LogAnalysis) : null;
+    return { airframe: a, fromBaseline, fromLog, logId };
   });
   const placements = subjects.map(({ airframe, fromBaseline, fromLog, logId }) => {
     const reference = buildFleetReference(airframe.frameDesign, members.get(airframe.frameDesign) ?? [], airframe.id);
     const subject = fromBaseline ?? fromLog;
     const notes = subject ? judgeAgainstFleet(reference, subject, { what: fromBaseline ? "baseline" : "log", ...BAND_WORDS }) : [];
-    return { airframeId: airframe.id, name: airframe.name, design: airframe.frameDesign, judged: fromBaseline ? ("baseline" as const) : fromLog ? ("log" as const) : null, logId, reference, notes };
+    const placement: AirframePlacement = { airframeId: airframe.id, name: airframe.name, design: airframe.frameDesign, judged: fromBaseline ? "baseline" : fromLog && reference.enough ? "log" : null, logId, reference, notes };
+    return placement;
   });
   const designs = [...new Set(airframes.map((a) => a.frameDesign))].map((design) => buildFleetReference(design, members.get(design) ?? []));
   return { placements, designs };

@@ -1,11 +1,12 @@
 import "server-only";
 import { getServerSession } from "next-auth";
-import { cookies } from "next/headers";
+import { cookies, headers } from "next/headers";
 import { ForbiddenError, UnauthenticatedError } from "@/lib/errors";
 import { isRole, type Actor, type Role } from "@/lib/roles";
 import { authOptions } from "./auth-options";
 import { assertRole, hashToken } from "./authorize";
 import { db } from "./db";
+import { assertSessionOpen } from "./sessions";
 
 export { assertRole, hashToken };
 
@@ -16,16 +17,60 @@ export { assertRole, hashToken };
  * query by actor.teamId, which is therefore never undefined.
  */
 
-export const TEAM_COOKIE = "hc-team";
+/**
+ * The active-team cookie follows the session cookie's rules: behind HTTPS (NEXTAUTH_URL starts
+ * with https://) it is Secure and named with the __Secure- prefix, as next-auth names its own.
+ */
+export const SECURE_COOKIES = (process.env.NEXTAUTH_URL ?? "").startsWith("https://");
+export const TEAM_COOKIE = SECURE_COOKIES ? "__Secure-hc-team" : "hc-team";
+export const TEAM_COOKIE_OPTIONS = { httpOnly: true, sameSite: "lax", path: "/", secure: SECURE_COOKIES } as const;
 
 /** A signed-in member of the active team with at least `minimum` role. */
 export async function requireMember(minimum: Role = "viewer"): Promise<Actor> {
+  const h = await headers();
+  // A server action is a cookie-authenticated write: the same origin rule as the API's writes.
+  if (h.has("next-action")) assertSameOrigin(h);
   const session = await getServerSession(authOptions);
   const userId = session?.user?.id;
-  if (typeof userId !== "string" || userId === "") throw new UnauthenticatedError();
+  const sessionId = session?.sid;
+  if (typeof userId !== "string" || userId === "" || typeof sessionId !== "string") throw new UnauthenticatedError();
+  await assertSessionOpen(sessionId, userId);
   const wanted = (await cookies()).get(TEAM_COOKIE)?.value;
-  return actorForUser(userId, wanted, minimum);
+  const actor = await actorForUser(userId, wanted, minimum);
+  return { ...actor, sessionId };
 }
+
+/**
+ * Cross-site request forgery defence for writes made with the session cookie (OWASP ASVS 4.0
+ * §4.2.2), the rule Next applies to server actions: the Origin header must name this server,
+ * either the address people open (NEXTAUTH_URL) or the Host the request was sent to. A browser
+ * always sends Origin on a cross-site POST and a page cannot forge it; a request without one is
+ * refused. Bearer-token requests carry no ambient credential and are not checked.
+ */
+export function assertSameOrigin(h: Headers): void {
+  const origin = h.get("origin");
+  const refuse = () => new ForbiddenError("This request came from another site; open heatcheck itself and try again.");
+  if (!origin || origin === "null") throw refuse();
+  let originUrl: URL;
+  try {
+    originUrl = new URL(origin);
+  } catch {
+    throw refuse();
+  }
+  const configured = process.env.NEXTAUTH_URL;
+  if (configured) {
+    try {
+      if (new URL(configured).origin === originUrl.origin) return;
+    } catch {
+      // a malformed NEXTAUTH_URL leaves only the Host rule
+    }
+  }
+  const host = h.get("x-forwarded-host") ?? h.get("host");
+  if (host && host === originUrl.host) return;
+  throw refuse();
+}
+
+export const NO_TEAM_MESSAGE = "Your account is not a member of any team. Ask a team owner to invite you.";
 
 /**
  * The membership of a user: in the wanted team if they belong to it, else their first team.
@@ -38,7 +83,7 @@ export async function actorForUser(userId: string, wantedTeamId: string | undefi
     orderBy: { id: "asc" },
   });
   const m = memberships.find((x) => x.teamId === wantedTeamId) ?? memberships[0];
-  if (!m) throw new ForbiddenError("Your account is not a member of any team. Ask a team owner to add you.");
+  if (!m) throw new ForbiddenError(NO_TEAM_MESSAGE);
   if (!isRole(m.role)) throw new ForbiddenError();
   const actor: Actor = { teamId: m.teamId, role: m.role, userId, name: m.user.name, via: "session" };
   assertRole(actor, minimum);
@@ -55,6 +100,7 @@ export async function requireToken(request: Request, minimum: Role = "viewer"): 
   if (!m?.[1]) throw new UnauthenticatedError("Send an API token as: Authorization: Bearer <token>.");
   const token = await db.apiToken.findUnique({ where: { tokenHash: hashToken(m[1]) } });
   if (!token || token.revokedAt) throw new UnauthenticatedError("That API token is not valid or has been revoked.");
+  if (token.suspendedAt) throw new UnauthenticatedError("That API token is paused until another team owner confirms it.");
   // Best effort and at most once a minute: a read must not depend on a write (a full disk).
   if (!token.lastUsedAt || Date.now() - token.lastUsedAt.getTime() > 60_000) {
     void db.apiToken.update({ where: { id: token.id }, data: { lastUsedAt: new Date() } }).catch(() => undefined);
@@ -64,8 +110,26 @@ export async function requireToken(request: Request, minimum: Role = "viewer"): 
   return actor;
 }
 
-/** A route handler's caller: a bearer token when one is sent, else the signed-in session. */
+/**
+ * A route handler's caller: a bearer token when one is sent, else the signed-in session, whose
+ * writes (any method but GET and HEAD) must come from this server's own pages.
+ */
 export async function requireApiCaller(request: Request, minimum: Role = "viewer"): Promise<Actor> {
   if (request.headers.has("authorization")) return requireToken(request, minimum);
+  if (request.method !== "GET" && request.method !== "HEAD") assertSameOrigin(request.headers);
   return requireMember(minimum);
+}
+
+/** A signed-in person, whether or not they belong to a team yet (for accepting invitations). */
+export async function requireUser(): Promise<{ userId: string; sessionId: string; name: string; email: string }> {
+  const h = await headers();
+  if (h.has("next-action")) assertSameOrigin(h);
+  const session = await getServerSession(authOptions);
+  const userId = session?.user?.id;
+  const sessionId = session?.sid;
+  if (typeof userId !== "string" || userId === "" || typeof sessionId !== "string") throw new UnauthenticatedError();
+  await assertSessionOpen(sessionId, userId);
+  const user = await db.user.findUnique({ where: { id: userId }, select: { name: true, email: true } });
+  if (!user) throw new UnauthenticatedError();
+  return { userId, sessionId, name: user.name, email: user.email };
 }

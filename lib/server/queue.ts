@@ -5,6 +5,7 @@ import { repairsSince, staleBaselineReason } from "@/lib/health/repair-effects";
 import type { Status } from "@/lib/health/thresholds";
 import type { Actor } from "@/lib/roles";
 import { db } from "./db";
+import { fleetPlacement } from "./fleet";
 import { lifeOfParts } from "./parts";
 
 /** The next heat of the team that has not started more than an hour ago, with its airframes. */
@@ -66,6 +67,7 @@ async function rankTeam(actor: Actor): Promise<Ranked> {
     },
   });
   // Life is counted over each part's whole history, as on the parts screens, in one go for the fleet.
+  const fleet = new Map((await fleetPlacement(actor)).placements.map((p) => [p.airframeId, p]));
   const limited = airframes.flatMap((a) => a.installations.filter((i) => i.part.lifeFlights || i.part.lifeMinutes));
   const life = await lifeOfParts(limited.map((i) => i.part));
   const facts: AirframeFacts[] = [];
@@ -109,6 +111,7 @@ async function rankTeam(actor: Actor): Promise<Ranked> {
         : null,
       hasBaseline: !!baseline,
       staleBaseline,
+      fleet: fleet.get(a.id) ?? null,
       openCrashes: a.crashes
         .filter((c) => c.at > lastInspection)
         .map((c) => ({ at: c.at, severity: c.severity, positions: JSON.parse(c.positions) as string[] })),

@@ -67,7 +67,7 @@ describe("the crew at work (owner)", () => {
 
   it("the queue shows the demo ranking with reasons in words", async () => {
     const rows = page.locator("[data-testid=queue] > li");
-    await expect.poll(() => rows.count(), { timeout: 15_000 }).toBe(8);
+    await expect.poll(() => rows.count(), { timeout: 15_000 }).toBe(9);
     const names = await rows.evaluateAll((els) => els.map((e) => e.getAttribute("data-airframe")));
     // The crashed, uninspected quad first; then the three damaged ones; healthy ones last.
     expect(names[0]).toBe("HV-07");
@@ -188,17 +188,49 @@ describe("the crew at work (owner)", () => {
     await page.goto(`${app.url}/upload`);
     await page.setInputFiles("[data-testid=file-input]", [file]);
     await page.waitForSelector("[data-testid=map-step]");
-    const map = await page.locator("[data-testid=map-step] input").first().inputValue();
+    const map = await page.locator('[data-testid=map-step] label:has-text("Map text") input').first().inputValue();
     expect(map).toContain("time=Time (ms)|ms");
     expect(map).toContain("roll=Gyro X (rad/s)|rad/s");
     expect(await page.locator("[data-testid=upload-list]").innerText()).toMatch(/matched by file name/);
     await page.fill('[data-testid=map-step] input[placeholder="logger model"]', "other logger");
     await page.click('[data-testid=map-step] button:has-text("Save profile")');
-    await expect.poll(() => page.locator("[data-testid=map-step] .form-message").innerText()).toMatch(/Import profile "other logger" saved/);
+    await expect.poll(() => page.locator("[data-testid=profile-note]").innerText()).toMatch(/Import profile "other logger" saved/);
     await page.click("[data-testid=import-all]");
     await expect.poll(async () => page.locator('[data-testid=upload-list] tr[data-phase="done"]').count(), { timeout: 60_000 }).toBe(1);
     await page.goto(`${app.url}/team`);
     expect(await page.locator("main").innerText()).toMatch(/other logger/);
+  });
+
+  it("a foreign log's column map is finished in the table, with no syntax typed", async () => {
+    // Headers of an invented logger: time with a unit but no time word, rad/s rates, one of them
+    // named so that no guess can tell its axis, throttle as a pulse width, motor speed in Hz.
+    const lines = demoCsv({ seed: 905, durationS: 12, sampleRateHz: 2000, airframeSeed: 7 }, { airframe: "HV-08" }).trim().split("\n");
+    const rows = lines.filter((l) => !l.startsWith("#")).slice(1).map((l) => {
+      const [t, r, p, y, thr, ...rpm] = l.split(",").map(Number);
+      const rad = (v: number | undefined) => (((v ?? 0) * Math.PI) / 180).toFixed(6);
+      return [t ?? 0, rad(r), rad(p), rad(y), (1000 + (thr ?? 0) * 1000).toFixed(0), ...rpm.map((v) => (v / 60).toFixed(2))].join(",");
+    });
+    const file = join(app.dataDir, "HV-08 bench logger.csv");
+    writeFileSync(file, ["clock us,rate X rad,rate Y rad,turn rate rad,thr pwm,esc1 Hz,esc2 Hz,esc3 Hz,esc4 Hz", ...rows].join("\n"));
+    await page.goto(`${app.url}/upload`);
+    await page.setInputFiles("[data-testid=file-input]", [file]);
+    await page.waitForSelector("[data-testid=map-table]");
+    expect(await page.locator("[data-testid=map-check]").innerText()).toMatch(/Still to do: the map needs a column for yaw/);
+    expect(await page.locator("[data-testid=import-all]").isDisabled()).toBe(true);
+    // The guesses are already in the table: time from its unit and rising values, rpm from esc + Hz.
+    expect(await page.locator('select[aria-label="column for time"]').inputValue()).toBe("clock us");
+    expect(await page.locator('select[aria-label="column for motor 3 speed"]').inputValue()).toBe("esc3 Hz");
+    await page.selectOption('select[aria-label="column for gyro yaw"]', "turn rate rad");
+    await page.selectOption('select[aria-label="unit of gyro yaw"]', "rad/s");
+    await expect.poll(() => page.locator("[data-testid=map-check]").innerText()).toMatch(/Every needed field has a column/);
+    // The preview shows the first rows as heatcheck reads them: time from 0 s, rpm from Hz.
+    expect(await page.locator("[data-testid=map-table]").innerText()).toMatch(/0, 0\.0005, 0\.001 s from the first row/);
+    await shot(page, "upload-map-table");
+    await page.setViewportSize({ width: 390, height: 844 });
+    await shot(page, "upload-map-table-phone");
+    await page.setViewportSize({ width: 1440, height: 900 });
+    await page.click("[data-testid=import-all]");
+    await expect.poll(async () => page.locator('[data-testid=upload-list] tr[data-phase="done"]').count(), { timeout: 60_000 }).toBe(1);
   });
 
   it("setting a baseline from the uploaded good log scores the later one against it", async () => {

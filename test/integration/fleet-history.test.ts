@@ -4,6 +4,7 @@ import { demoCsv } from "@/lib/demo/demo-csv";
 import type { DemoLogOptions } from "@/lib/demo/generator";
 import type { Actor, Role } from "@/lib/roles";
 import { freshDatabase } from "../support/test-db";
+import { makeTeam } from "../support/team";
 
 // The fleet as its own reference and the history export, on a real SQLite file through the same
 // services the screens use. The logs are the demo generator's (invented airframes): each airframe
@@ -17,7 +18,6 @@ const { setBaseline } = await import("@/lib/server/baselines");
 const { fleetPlacement, fleetDesignView } = await import("@/lib/server/fleet");
 const { logCrash } = await import("@/lib/server/crashes");
 const { airframeHistory, historyCsv } = await import("@/lib/server/airframe-history");
-const { actorForUser } = await import("@/lib/server/guard");
 
 const actors = {} as Record<Role, Actor>;
 const ids: Record<string, string> = {};
@@ -30,12 +30,7 @@ async function upload(name: string, options: Partial<DemoLogOptions>, airframeSe
 }
 
 beforeAll(async () => {
-  const team = await db.team.create({ data: { name: "Fleet test club" } });
-  for (const role of ["owner", "tech", "pilot", "viewer"] as const) {
-    const user = await db.user.create({ data: { email: `${role}@fleet.test`, name: `fleet ${role}`, passwordHash: "x" } });
-    await db.membership.create({ data: { userId: user.id, teamId: team.id, role } });
-    actors[role] = await actorForUser(user.id, team.id, "viewer");
-  }
+  Object.assign(actors, await makeTeam("Fleet test club"));
   const names = ["F-1", "F-2", "F-3", "F-4", "F-5", "F-6"];
   for (const name of names) ids[name] = (await createAirframe(actors.tech, { name, frameDesign: "test frame", serial: "", notes: "" })).id;
   // F-1..F-4 healthy baselines; F-5's baseline flown with a cracked arm (severity 3); F-6 has none.
@@ -57,7 +52,7 @@ describe("the fleet as its own reference", () => {
     // The generator lowers the pitch bending mode by the crack; the reference is the other four.
     expect(note?.axis).toBe("pitch");
     expect(note?.deviationPct ?? 0).toBeLessThan(-3);
-    expect(note?.text).toMatch(/^F-5's baseline pitch mode at \d+ Hz sits [\d.]+ % below the fleet's median for test frame \(over 4 airframes\)/);
+    expect(note?.text).toMatch(/^F-5's baseline pitch mode at \d+ Hz sits [\d.]+ % below the median of 4 sister airframes of test frame \(\d+ Hz\)/);
     expect(flagged[0]?.reference.airframes).toBe(4);
   });
 
@@ -99,10 +94,7 @@ describe("history export", () => {
   });
 
   it("finds no airframe of another team", async () => {
-    const team = await db.team.create({ data: { name: "Other" } });
-    const user = await db.user.create({ data: { email: "o@other.test", name: "other", passwordHash: "x" } });
-    await db.membership.create({ data: { userId: user.id, teamId: team.id, role: "owner" } });
-    const outsider = await actorForUser(user.id, team.id, "viewer");
-    await expect(airframeHistory(outsider, "F-2")).rejects.toThrow();
+    const outsider = (await makeTeam("Other")).owner;
+    await expect(airframeHistory(outsider, "F-2")).rejects.toThrow(/was not found/);
   });
 });

@@ -19,7 +19,7 @@ const { analysesSettled } = await import("@/lib/server/analysis-jobs");
 const { storedFileOf } = await import("@/lib/server/data-folder");
 const { setBaseline } = await import("@/lib/server/baselines");
 const { inspectionQueue } = await import("@/lib/server/queue");
-const { createToken, revokeToken, addMember } = await import("@/lib/server/team");
+const { createToken, revokeToken, inviteMember } = await import("@/lib/server/team");
 const { actorForUser, requireToken } = await import("@/lib/server/guard");
 const { createEvent } = await import("@/lib/server/events");
 const { changePassword, assertMemberOf, myTeams } = await import("@/lib/server/account");
@@ -163,7 +163,7 @@ describe("the guard: roles and teams", () => {
     await expect(event(actors.tech)).resolves.toBeTruthy();
     await expect(token(actors.tech)).rejects.toBeInstanceOf(ForbiddenError);
     await expect(token(actors.owner)).resolves.toBeTruthy();
-    await expect(addMember(actors.tech, { email: "x@y.test", name: "x", role: "viewer", password: "0123456789" })).rejects.toBeInstanceOf(ForbiddenError);
+    await expect(inviteMember(actors.tech, { email: "x@y.test", name: "x", role: "viewer", password: "gravel-pit-lantern-9" })).rejects.toBeInstanceOf(ForbiddenError);
     await expect(ingestLog(actors.viewer, { fileName: "v.csv", body: csvBody({}, "Kite-1", "2026-11-09T00:00:00Z") })).rejects.toBeInstanceOf(ForbiddenError);
   });
 
@@ -204,10 +204,10 @@ describe("accounts", () => {
   it("changing a password needs the current one and stores only a new bcrypt hash", async () => {
     const id = actors.pilot.userId ?? "";
     await db.user.update({ where: { id }, data: { passwordHash: await hashPassword("first-password-1") } });
-    await expect(changePassword(actors.pilot, "wrong", "second-password-2")).rejects.toBeInstanceOf(InputError);
-    await changePassword(actors.pilot, "first-password-1", "second-password-2");
+    await expect(changePassword(actors.pilot, "wrong", "second-pass-word-2")).rejects.toBeInstanceOf(InputError);
+    await changePassword(actors.pilot, "first-password-1", "second-pass-word-2");
     const user = await db.user.findUnique({ where: { id } });
-    expect(user?.passwordHash).not.toContain("second-password-2");
-    expect(await bcrypt.compare("second-password-2", user?.passwordHash ?? "")).toBe(true);
+    expect(user?.passwordHash).not.toContain("second-pass-word-2");
+    expect(await bcrypt.compare("second-pass-word-2", user?.passwordHash ?? "")).toBe(true);
   });
 });

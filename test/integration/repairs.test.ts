@@ -4,6 +4,7 @@ import { demoCsv } from "@/lib/demo/demo-csv";
 import type { DemoLogOptions } from "@/lib/demo/generator";
 import type { Actor, Role } from "@/lib/roles";
 import { freshDatabase } from "../support/test-db";
+import { makeTeam } from "../support/team";
 
 // The baseline's life across a repair, on a real SQLite file through the services the screens
 // use: swap an arm → the queue says the baseline is stale → the first post-repair log has its
@@ -19,7 +20,6 @@ const { analysesSettled } = await import("@/lib/server/analysis-jobs");
 const { setBaseline } = await import("@/lib/server/baselines");
 const { createParts, swapPart } = await import("@/lib/server/parts");
 const { inspectionQueue } = await import("@/lib/server/queue");
-const { actorForUser } = await import("@/lib/server/guard");
 
 const actors = {} as Record<Role, Actor>;
 let airframeId = "";
@@ -47,12 +47,7 @@ async function queueRow() {
 }
 
 beforeAll(async () => {
-  const team = await db.team.create({ data: { name: "Repair test club" } });
-  for (const role of ["owner", "tech", "pilot", "viewer"] as const) {
-    const user = await db.user.create({ data: { email: `${role}@repairs.test`, name: `repairs ${role}`, passwordHash: "x" } });
-    await db.membership.create({ data: { userId: user.id, teamId: team.id, role } });
-    actors[role] = await actorForUser(user.id, team.id, "viewer");
-  }
+  Object.assign(actors, await makeTeam("Repair test club"));
   airframeId = (await createAirframe(actors.tech, { name: "R-1", frameDesign: "test frame", serial: "", notes: "" })).id;
   const [arm, spare] = await createParts(actors.tech, { kind: "arm", model: "test arm", label: "arm", supplier: "", cost: null, acquiredAt: null, lifeFlights: null, lifeMinutes: null, quantity: 2, notes: "" });
   if (!arm || !spare) throw new Error("parts not created");

@@ -53,9 +53,9 @@ describe("a fresh clone", () => {
     const html = await page.text();
     const ranked = [...html.matchAll(/data-airframe="(HV-\d\d)"/g)].map((m) => m[1]);
     startMs = Date.now() - t;
-    // The demo club has eight quads (prisma/seed.ts); all are on the queue, each once.
-    expect(new Set(ranked).size).toBe(8);
-    expect(ranked).toHaveLength(8);
+    // The demo club has nine quads (prisma/seed.ts); all are on the queue, each once.
+    expect(new Set(ranked).size).toBe(9);
+    expect(ranked).toHaveLength(9);
     // The demo story puts a damaged quad first, not a healthy one: the top row needs pulling.
     expect(html).toMatch(/class="queue-row (ground|inspect)"/);
     const steps = app.output().split("\n").filter((l) => /^heatcheck: .* done in /.test(l));

@@ -74,7 +74,7 @@ describe("the fleet reference", () => {
     const notes = judgeAgainstFleet(ref, members[6] as FleetMember, { what: "baseline", ...labels });
     expect(notes).toHaveLength(1);
     expect(notes[0]).toMatchObject({ kind: "mode-off-fleet", axis: "yaw", fleetHz: 310, deviationPct: -6.5, z: -6.5, severity: "watch" });
-    expect(notes[0]?.text).toContain("HV-07's baseline yaw (torsion) mode at 290 Hz sits 6.5 % below the fleet's median for test frame (over 7 airframes)");
+    expect(notes[0]?.text).toContain("HV-07's baseline yaw (torsion) mode at 290 Hz sits 6.5 % below the median of 7 sister airframes of test frame (310 Hz)");
     expect(notes[0]?.text).toContain("was the baseline taken after damage");
 
     // A sister that sits 0.6 % off (z = −2/3.1 = −0.65) is not questioned.

@@ -1,11 +1,12 @@
-import { db } from "@/lib/server/db";
+import { DEMO_ACCOUNTS } from "@/lib/demo/accounts";
+import { demoAccountsExist, demoMode } from "@/lib/server/demo-mode";
 import { SignInForm } from "./sign-in-form";
 
 export const dynamic = "force-dynamic";
 
-/** Sign-in. While the invented demo team's accounts exist, their sign-in is shown here. */
+/** Sign-in. In demo mode, while the invented demo team's accounts exist, their sign-in is shown here. */
 export default async function SignInPage() {
-  const demo = await db.user.findUnique({ where: { email: "owner@heatcheck.test" } });
+  const demo = demoMode() && (await demoAccountsExist());
   return (
     <main className="signin">
       <div className="card">
@@ -16,11 +17,13 @@ export default async function SignInPage() {
           <div className="demo-accounts">
             <h3>Demo team</h3>
             <p>
-              Owner: <code>owner@heatcheck.test</code> / <code>pitwall-owner-2026</code>
-              <br />
-              Viewer: <code>viewer@heatcheck.test</code> / <code>pitwall-viewer-2026</code>
+              {DEMO_ACCOUNTS.map((a) => (
+                <span key={a.email}>
+                  {a.role}: <code>{a.email}</code> / <code>{a.password}</code>
+                  <br />
+                </span>
+              ))}
             </p>
-            <p className="muted small">Also tech@ and pilot@heatcheck.test (passwords pitwall-tech-2026, pitwall-pilot-2026).</p>
           </div>
         ) : null}
       </div>

@@ -19,7 +19,8 @@ export function SignInForm() {
       router.push("/");
       router.refresh();
     } else {
-      setError("That email and password do not match an account.");
+      // A throttled attempt says how long to wait; any other failure gets the one sentence.
+      setError(r?.error?.startsWith("Too many") ? r.error : "That email and password do not match an account.");
     }
   }
   return (

@@ -4,6 +4,7 @@ import { SelectField, TextField } from "@/app/_components/fields";
 import { roleAtLeast } from "@/lib/roles";
 import { db } from "@/lib/server/db";
 import { requireMember } from "@/lib/server/guard";
+import { orNotFound } from "@/lib/server/pages";
 import { partHistory, stockSummary } from "@/lib/server/parts";
 import { PART_KINDS } from "@/lib/validations/part";
 import { addPartsAction, setPartStatusAction } from "../actions";
@@ -23,7 +24,7 @@ export default async function PartsPage({ searchParams }: { searchParams: Promis
     return text ? `/parts?${text}` : "/parts";
   };
   const summary = await stockSummary(actor);
-  const history = partId ? await partHistory(actor, partId) : null;
+  const history = partId ? await orNotFound(partHistory(actor, partId)) : null;
   const canTech = roleAtLeast(actor.role, "tech");
   const parts = await db.part.findMany({
     where: {

@@ -2,9 +2,20 @@ import { ActionForm } from "@/app/_components/action-form";
 import { SelectField, TextField } from "@/app/_components/fields";
 import { ROLES, roleAtLeast } from "@/lib/roles";
 import { requireMember } from "@/lib/server/guard";
-import { myTeams } from "@/lib/server/account";
-import { listMembers, listProfiles, listTokens, recentAudit } from "@/lib/server/team";
-import { addMemberAction, changePasswordAction, changeRoleAction, createTokenAction, revokeTokenAction, switchTeamAction } from "../actions";
+import { myInvitations, myTeams } from "@/lib/server/account";
+import { listMembers, listProfiles, listTokens, pendingInvitations, recentAudit } from "@/lib/server/team";
+import {
+  answerInvitationAction,
+  changePasswordAction,
+  changeRoleAction,
+  confirmTokenAction,
+  createTokenAction,
+  inviteMemberAction,
+  removeMemberAction,
+  revokeTokenAction,
+  switchTeamAction,
+  withdrawInvitationAction,
+} from "../actions";
 import { WHEN_SHORT as WHEN } from "@/app/_components/dates";
 
 export const dynamic = "force-dynamic";
@@ -12,12 +23,14 @@ export const dynamic = "force-dynamic";
 export default async function TeamPage() {
   const actor = await requireMember("viewer");
   const isOwner = roleAtLeast(actor.role, "owner");
-  const [members, tokens, profiles, audit, teams] = await Promise.all([
+  const [members, invited, tokens, profiles, audit, teams, invitations] = await Promise.all([
     isOwner ? listMembers(actor) : Promise.resolve([]),
+    isOwner ? pendingInvitations(actor) : Promise.resolve([]),
     isOwner ? listTokens(actor) : Promise.resolve([]),
     listProfiles(actor),
     recentAudit(actor),
     myTeams(actor),
+    actor.userId ? myInvitations(actor.userId) : Promise.resolve([]),
   ]);
   return (
     <>
@@ -46,27 +59,46 @@ export default async function TeamPage() {
                         </select>
                       </ActionForm>
                     </td>
+                    <td>
+                      <ActionForm action={removeMemberAction} submitLabel={m.userId === actor.userId ? "Leave team" : "Remove"} danger compact>
+                        <input type="hidden" name="membershipId" value={m.id} />
+                      </ActionForm>
+                    </td>
+                  </tr>
+                ))}
+                {invited.map((i) => (
+                  <tr key={i.id}>
+                    <td>
+                      <strong>{i.email}</strong>
+                      <div className="muted small">invited as {i.role} · {WHEN.format(i.createdAt)} · not yet accepted</div>
+                    </td>
+                    <td colSpan={2}>
+                      <ActionForm action={withdrawInvitationAction} submitLabel="Withdraw" compact>
+                        <input type="hidden" name="invitationId" value={i.id} />
+                      </ActionForm>
+                    </td>
                   </tr>
                 ))}
               </tbody>
             </table>
             <details className="action">
-              <summary>Add a member</summary>
-              <ActionForm action={addMemberAction} submitLabel="Add member">
+              <summary>Invite a member</summary>
+              <p className="muted small">The person joins when they accept, after signing in. An email with no account yet gets one with the first password you give.</p>
+              <ActionForm action={inviteMemberAction} submitLabel="Invite">
                 <div className="row">
                   <TextField label="Name" name="name" />
                   <TextField label="Email" name="email" type="email" />
                 </div>
                 <div className="row">
                   <SelectField label="Role" name="role" options={ROLES} defaultValue="pilot" />
-                  <TextField label="First password (10+ characters)" name="password" type="password" autoComplete="new-password" />
+                  <TextField label="First password for a new account (12+ characters)" name="password" type="password" autoComplete="new-password" />
                 </div>
               </ActionForm>
             </details>
           </section>
           <section className="card">
             <h2 style={{ marginTop: 0 }}>API tokens for scripted uploads</h2>
-            <p className="muted small">A token may upload logs and read the queue and the airframes. Only a hash is stored.</p>
+            <p className="muted small">A token belongs to the team: it may upload logs and read the queue and the airframes. Only a hash is stored. When its creator stops being an owner it pauses until another owner confirms it.</p>
             <table data-testid="tokens">
               <tbody>
                 {tokens.map((t) => (
@@ -74,13 +106,18 @@ export default async function TeamPage() {
                     <td>
                       <strong>{t.name}</strong> <code>{t.prefix}…</code>
                       <div className="muted small">
-                        created {WHEN.format(t.createdAt)}
+                        created by {t.createdByName} {WHEN.format(t.createdAt)}
                         {t.lastUsedAt ? ` · last used ${WHEN.format(t.lastUsedAt)}` : " · never used"}
                       </div>
                     </td>
                     <td>
                       {t.revokedAt ? (
                         <span className="muted">revoked {WHEN.format(t.revokedAt)}</span>
+                      ) : t.suspendedAt ? (
+                        <ActionForm action={confirmTokenAction} submitLabel="Confirm: keep it working" compact>
+                          <span className="muted small">paused since {WHEN.format(t.suspendedAt)}: its creator is no longer an owner </span>
+                          <input type="hidden" name="tokenId" value={t.id} />
+                        </ActionForm>
                       ) : (
                         <ActionForm action={revokeTokenAction} submitLabel="Revoke" danger compact>
                           <input type="hidden" name="tokenId" value={t.id} />
@@ -100,6 +137,21 @@ export default async function TeamPage() {
       <div className="grid two" style={{ marginTop: "1rem" }}>
         <section className="card" data-testid="account">
           <h2 style={{ marginTop: 0 }}>Your account</h2>
+          {invitations.map((i) => (
+            <div key={i.id} className="row" data-testid="invitation">
+              <span>
+                Invitation to <strong>{i.team.name}</strong> as {i.role}
+              </span>
+              <ActionForm action={answerInvitationAction} submitLabel="Accept" compact>
+                <input type="hidden" name="invitationId" value={i.id} />
+                <input type="hidden" name="answer" value="accept" />
+              </ActionForm>
+              <ActionForm action={answerInvitationAction} submitLabel="Decline" compact>
+                <input type="hidden" name="invitationId" value={i.id} />
+                <input type="hidden" name="answer" value="decline" />
+              </ActionForm>
+            </div>
+          ))}
           {teams.length > 1 ? (
             <ActionForm action={switchTeamAction} submitLabel="Switch team" compact>
               <SelectField label="Team" name="teamId" defaultValue={actor.teamId} options={teams.map((t) => ({ value: t.teamId, label: `${t.team.name} (${t.role})` }))} />
@@ -110,7 +162,7 @@ export default async function TeamPage() {
             <ActionForm action={changePasswordAction} submitLabel="Change password">
               <TextField label="Current password" name="current" type="password" autoComplete="current-password" />
               <div className="row">
-                <TextField label="New password (10+ characters)" name="next" type="password" autoComplete="new-password" />
+                <TextField label="New password (12+ characters)" name="next" type="password" autoComplete="new-password" />
                 <TextField label="New password again" name="confirm" type="password" autoComplete="new-password" />
               </div>
             </ActionForm>

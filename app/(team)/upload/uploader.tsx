@@ -2,8 +2,10 @@
 
 import { useRouter } from "next/navigation";
 import { useCallback, useRef, useState, type DragEvent } from "react";
-import { formatColumnMap } from "@/lib/logs/columns";
+import { formatColumnMap, proposeColumnMap } from "@/lib/logs/columns";
+import { draftOf, draftToMap, previewRows } from "@/lib/logs/map-preview";
 import { matchAirframe, sniffLogHead } from "@/lib/logs/sniff";
+import { ColumnMapTable } from "./_components/column-map-table";
 import { saveProfileAction } from "../actions";
 
 export interface UploaderProps {
@@ -21,6 +23,8 @@ interface Item {
   canonical: boolean;
   mapText: string;
   headers: string[];
+  /** The first data rows, for the column-map table's preview. */
+  rows: (number | null)[][];
   guesses: string[];
   phase: Phase;
   uploadFraction: number;
@@ -29,7 +33,14 @@ interface Item {
   logId?: string;
 }
 
-const HEAD_BYTES = 64 * 1024;
+// As far into a file as the reader looks for the header row (lib/logs/preamble.ts), so that long
+// metadata is read the same here as on the server.
+const HEAD_BYTES = 4 * 1024 * 1024;
+
+/** True when a map text binds every needed field, once each. */
+function mapComplete(mapText: string): boolean {
+  return mapText !== "" && draftToMap(draftOf(mapText)).problem === null;
+}
 
 export function Uploader({ airframes, profiles }: UploaderProps) {
   const router = useRouter();
@@ -49,15 +60,18 @@ export function Uploader({ airframes, profiles }: UploaderProps) {
     for (const file of files) {
       const key = `${file.name}-${file.size}-${file.lastModified}-${Math.random()}`;
       if (!/\.(csv|txt)$/i.test(file.name)) {
-        fresh.push({ key, file, airframeId: "", matchedBy: "", canonical: false, mapText: "", headers: [], guesses: [], phase: "skipped", uploadFraction: 0, analysisFraction: 0, message: "not a .csv log; skipped" });
+        fresh.push({ key, file, airframeId: "", matchedBy: "", canonical: false, mapText: "", headers: [], rows: [], guesses: [], phase: "skipped", uploadFraction: 0, analysisFraction: 0, message: "not a .csv log; skipped" });
         continue;
       }
-      const head = sniffLogHead(await file.slice(0, HEAD_BYTES).text());
+      const text = await file.slice(0, HEAD_BYTES).text();
+      const head = sniffLogHead(text);
+      const rows = head ? previewRows(text, head.line) : [];
       const match = matchAirframe(airframes.map((a) => a.name), { metadataAirframe: head?.metadata.airframe, fileName: file.name });
       const airframeId = match ? (airframes.find((a) => a.name === match.name)?.id ?? "") : "";
       const canonical = head?.canonical ?? false;
-      const proposal = head?.proposal;
-      const mapText = !canonical && proposal && proposal.missing.length === 0 ? formatColumnMap(proposal.map) : "";
+      // The proposal again with the first rows, so a time column can also be told by rising values.
+      const proposal = head ? proposeColumnMap(head.headers, rows) : undefined;
+      const mapText = !canonical && proposal ? formatColumnMap(proposal.map) : "";
       fresh.push({
         key,
         file,
@@ -66,6 +80,7 @@ export function Uploader({ airframes, profiles }: UploaderProps) {
         canonical,
         mapText,
         headers: head?.headers ?? [],
+        rows,
         guesses: proposal?.guesses ?? [],
         phase: !head ? "failed" : !airframeId ? "needs-airframe" : canonical ? "ready" : "needs-map",
         uploadFraction: 0,
@@ -134,7 +149,7 @@ export function Uploader({ airframes, profiles }: UploaderProps) {
   }
 
   async function importAll() {
-    const queue = itemsRef.current.filter((i) => i.phase === "ready" || (i.phase === "needs-map" && i.mapText));
+    const queue = itemsRef.current.filter((i) => i.phase === "ready" || (i.phase === "needs-map" && mapComplete(i.mapText)));
     // Two at a time: the pit laptop's link and the analysis workers both stay busy.
     const workers = [0, 1].map(async () => {
       for (let next = queue.shift(); next; next = queue.shift()) await upload(next);
@@ -152,7 +167,7 @@ export function Uploader({ airframes, profiles }: UploaderProps) {
   }
 
   const pendingMaps = items.filter((i) => i.phase === "needs-map");
-  const importable = items.filter((i) => i.phase === "ready" || (i.phase === "needs-map" && i.mapText)).length;
+  const importable = items.filter((i) => i.phase === "ready" || (i.phase === "needs-map" && mapComplete(i.mapText))).length;
 
   return (
     <div data-testid="uploader">
@@ -188,25 +203,32 @@ export function Uploader({ airframes, profiles }: UploaderProps) {
 
       {pendingMaps.length > 0 ? (
         <section className="card" style={{ marginTop: "1rem" }} data-testid="map-step">
-          <h2 style={{ marginTop: 0 }}>Column map for foreign headers</h2>
-          <p className="muted small">
-            Syntax: <code>time=Time (us)|us,roll=GyroX|rad/s,…</code> · units: us ms s · deg/s rad/s · fraction percent pulse-us auto · rpm hz
-          </p>
+          <h2 style={{ marginTop: 0 }}>Which column is which</h2>
+          <p className="muted small">These files do not use heatcheck&apos;s own column names. Check each field&apos;s column and unit; the last column shows the first rows as heatcheck will read them.</p>
           {pendingMaps.map((i) => (
             <div key={i.key} style={{ marginBottom: "0.8rem" }}>
-              <strong>{i.file.name}</strong> <span className="muted small">headers: {i.headers.slice(0, 10).join(", ")}</span>
               {i.guesses.length > 0 ? (
-                <ul className="small">
-                  {i.guesses.map((g) => (
-                    <li key={g}>guessed: {g}</li>
-                  ))}
-                </ul>
+                <details className="small">
+                  <summary>What was guessed from the headers ({i.guesses.length})</summary>
+                  <ul>
+                    {i.guesses.map((g) => (
+                      <li key={g}>{g}</li>
+                    ))}
+                  </ul>
+                </details>
               ) : null}
+              <ColumnMapTable fileName={i.file.name} headers={i.headers} rows={i.rows} mapText={i.mapText} onChange={(mapText) => update(i.key, { mapText, message: mapComplete(mapText) ? "" : "the column map is not complete yet" })} />
               <div className="row">
-                <label style={{ flex: "3 1 400px" }}>
-                  Map
-                  <input value={i.mapText} onChange={(e) => update(i.key, { mapText: e.target.value })} />
-                </label>
+                <details style={{ flex: "3 1 400px" }}>
+                  <summary className="small">The same map as text (for the command line and import profiles)</summary>
+                  <label>
+                    Map text
+                    <input value={i.mapText} onChange={(e) => update(i.key, { mapText: e.target.value })} />
+                  </label>
+                  <p className="muted small">
+                    <code>key=Header|unit</code> entries separated by commas, e.g. <code>time=Time (us)|us,roll=GyroX|rad/s</code>
+                  </p>
+                </details>
                 {profiles.length > 0 ? (
                   <label>
                     Import profile
@@ -232,7 +254,7 @@ export function Uploader({ airframes, profiles }: UploaderProps) {
               </div>
             </div>
           ))}
-          {profileNote ? <p className="form-message">{profileNote}</p> : null}
+          {profileNote ? <p className="form-message" data-testid="profile-note">{profileNote}</p> : null}
         </section>
       ) : null}
 

@@ -7,6 +7,7 @@ import { roleAtLeast } from "@/lib/roles";
 import { airframeView } from "@/lib/server/airframe-view";
 import { db } from "@/lib/server/db";
 import { requireMember } from "@/lib/server/guard";
+import { orNotFound } from "@/lib/server/pages";
 import { trendView } from "@/lib/server/trend-view";
 import { LogsTable } from "./_components/logs-table";
 import { TrendCharts } from "./_components/trend-charts";
@@ -20,7 +21,7 @@ export default async function AirframePage({ params, searchParams }: { params: P
   const { id } = await params;
   const wanted = (await searchParams).axis;
   const heatAxis: Axis = AXES.find((a) => a === wanted) ?? "pitch";
-  const view = await airframeView(actor, id);
+  const view = await orNotFound(airframeView(actor, id));
   const trends = await trendView(view.airframe.id, actor.teamId, view.baseline);
   const { airframe, latest, analysis, baseline } = view;
   const canPilot = roleAtLeast(actor.role, "pilot");

@@ -1,6 +1,7 @@
 "use client";
 
 import { useRouter } from "next/navigation";
+import { lineStyle } from "@/app/_components/line-styles";
 import { CartesianGrid, Legend, Line, LineChart, ReferenceLine, ResponsiveContainer, Tooltip, XAxis, YAxis } from "recharts";
 
 type Row = { logId: string; fileName: string; t: number } & Record<string, number | string | null>;
@@ -14,15 +15,6 @@ export interface TrendChartsProps {
 }
 
 const DATE = new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "short", timeZone: "UTC" });
-// Distinct dashes as well as colours, so the lines are told apart without colour.
-const STYLES = [
-  { stroke: "#14313d", dash: "" },
-  { stroke: "#b7791f", dash: "6 3" },
-  { stroke: "#1d7a4a", dash: "2 3" },
-  { stroke: "#8f1d1d", dash: "10 3 2 3" },
-  { stroke: "#5b4a8a", dash: "4 4" },
-  { stroke: "#56666e", dash: "1 2" },
-];
 const STEP_LINES = (t: Steps, sign: 1 | -1) =>
   (["watch", "inspect", "ground"] as const).map((k) => ({ y: sign * t[k], label: k, colour: k === "watch" ? "var(--watch)" : k === "inspect" ? "var(--inspect)" : "var(--ground)" }));
 
@@ -52,7 +44,7 @@ function TrendChart({ rows, series, steps, unit, events, testId }: { rows: Row[]
             <ReferenceLine key={i} x={e.t} stroke="#9fb3bb" label={{ value: e.label, angle: -90, position: "insideTopLeft", fontSize: 9 }} />
           ))}
           {series.map((s, i) => {
-            const style = STYLES[i % STYLES.length] ?? { stroke: "#000", dash: "" };
+            const style = lineStyle(i);
             return <Line key={s.key} dataKey={s.key} name={s.name} stroke={style.stroke} strokeDasharray={style.dash} isAnimationActive={false} connectNulls={false} />;
           })}
         </LineChart>

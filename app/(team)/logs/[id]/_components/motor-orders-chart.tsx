@@ -1,18 +1,12 @@
 "use client";
 
+import { lineStyle } from "@/app/_components/line-styles";
 import { CartesianGrid, Legend, Line, LineChart, ResponsiveContainer, Tooltip, XAxis, YAxis } from "recharts";
 
 export interface MotorOrdersChartProps {
   motors: { motor: number; name: string; track: { tS: number; order1Db: number }[] }[];
 }
 
-// Line styles differ by dash as well as colour, so the motors are told apart without colour.
-const STYLES = [
-  { stroke: "#14313d", dash: "" },
-  { stroke: "#b7791f", dash: "6 3" },
-  { stroke: "#1d7a4a", dash: "2 3" },
-  { stroke: "#8f1d1d", dash: "10 3 2 3" },
-];
 
 /** Each motor's 1× order level through the flight, dB re 1 (deg/s)²: the odd motor stands out. */
 export function MotorOrdersChart({ motors }: MotorOrdersChartProps) {
@@ -36,7 +30,7 @@ export function MotorOrdersChart({ motors }: MotorOrdersChartProps) {
           <Tooltip formatter={(v) => `${Number(v).toFixed(1)} dB`} labelFormatter={(t) => `${t} s`} />
           <Legend />
           {motors.map((m, i) => {
-            const style = STYLES[i % STYLES.length] ?? { stroke: "#000", dash: "" };
+            const style = lineStyle(i);
             return <Line key={m.motor} dataKey={`m${m.motor}`} name={m.name} stroke={style.stroke} strokeDasharray={style.dash} dot={false} isAnimationActive={false} connectNulls />;
           })}
         </LineChart>

@@ -11,7 +11,8 @@ export const dynamic = "force-dynamic";
 export async function GET(request: Request, { params }: { params: Promise<{ name: string }> }) {
   return jsonRoute("GET /api/v1/airframes/:name", async () => {
     const actor = await requireApiCaller(request, "viewer");
-    const airframe = await airframeByName(actor, decodeURIComponent((await params).name));
+    // Next has already decoded the path segment once; decoding again would read "%25" as "%" and fail.
+    const airframe = await airframeByName(actor, (await params).name);
     const [parts, crashes, inspections, logs, baseline] = await Promise.all([
       installedParts(actor, airframe.id),
       db.crash.findMany({ where: { airframeId: airframe.id }, orderBy: { at: "desc" } }),
