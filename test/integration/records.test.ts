@@ -7,6 +7,7 @@ import type { DemoLogOptions } from "@/lib/demo/generator";
 import { ConflictError, ForbiddenError, InputError, LimitExceededError, NotFoundError, UnauthenticatedError } from "@/lib/errors";
 import type { Actor, Role } from "@/lib/roles";
 import { freshDatabase } from "../support/test-db";
+import { makeTeam } from "../support/team";
 
 // Integration tests on a real SQLite file migrated with the committed migrations: no mocks.
 const { dir } = freshDatabase("records");
@@ -28,17 +29,6 @@ const bcrypt = (await import("bcryptjs")).default;
 
 const actors = {} as Record<Role, Actor>;
 let other: Actor;
-
-async function makeTeam(name: string): Promise<Record<Role, Actor>> {
-  const team = await db.team.create({ data: { name } });
-  const out = {} as Record<Role, Actor>;
-  for (const role of ["owner", "tech", "pilot", "viewer"] as const) {
-    const user = await db.user.create({ data: { email: `${role}@${team.id}.test`, name: `${name} ${role}`, passwordHash: "x" } });
-    await db.membership.create({ data: { userId: user.id, teamId: team.id, role } });
-    out[role] = await actorForUser(user.id, team.id, "viewer");
-  }
-  return out;
-}
 
 function csvBody(options: Partial<DemoLogOptions>, airframe: string, flownAt: string): AsyncIterable<Uint8Array> {
   return Readable.from([Buffer.from(demoCsv({ seed: 1, durationS: 16, sampleRateHz: 2000, ...options }, { airframe, flownAt }))]);

@@ -1,3 +1,4 @@
+import { mulberry32 } from "@/lib/demo/random";
 import { createHash } from "node:crypto";
 import { existsSync, readFileSync } from "node:fs";
 import { join } from "node:path";
@@ -21,17 +22,8 @@ export interface TrialReport {
   restartMs: number[];
 }
 
-/** Deterministic pseudo-random numbers (mulberry32), so a failing trial can be replayed. */
-export function seeded(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+/** Deterministic pseudo-random numbers (mulberry32, lib/demo/random.ts), so a failing trial can be replayed. */
+export const seeded = mulberry32;
 
 export function integrity(dataDir: string, answeredIds: ReadonlySet<string>): { problems: string[]; lost: number; pending: number } {
   const problems: string[] = [];
