@@ -20,6 +20,7 @@ const run = promisify(execFile);
 let app: RunningApp;
 let token: string;
 const work = mkdtempSync(join(tmpdir(), "heatcheck-backup-test-"));
+const made: string[] = [work];
 
 function tableCounts(dbFile: string): Record<string, number> {
   const db = openSqlite(dbFile, true);
@@ -46,6 +47,7 @@ beforeAll(async () => {
 afterAll(async () => {
   await app?.stop();
   if (app) rmSync(app.dataDir, { recursive: true, force: true });
+  for (const d of made) rmSync(d, { recursive: true, force: true });
 });
 
 describe("backup and restore", () => {
@@ -68,6 +70,7 @@ describe("backup and restore", () => {
     const countsBefore = tableCounts(join(app.dataDir, "heatcheck.db"));
 
     const target = newDataDir("backup-dst");
+    made.push(target);
     const env = { ...app.env, HEATCHECK_DATA_DIR: target, DATABASE_URL: `file:${join(target, "heatcheck.db")}` };
     const restored = await run("npm", ["run", "-s", "restore", "--", archive2], { env });
     expect(restored.stdout).toMatch(/restored/);
@@ -87,6 +90,7 @@ describe("backup and restore", () => {
 
     // The first archive (taken mid-upload) is consistent too: every log it records has its original.
     const mid = newDataDir("backup-mid");
+    made.push(mid);
     await run("npm", ["run", "-s", "restore", "--", archive], { env: { ...app.env, HEATCHECK_DATA_DIR: mid, DATABASE_URL: `file:${join(mid, "heatcheck.db")}` } });
     const mdb = openSqlite(join(mid, "heatcheck.db"), true);
     for (const l of mdb.prepare(`SELECT "storedPath" AS p, "contentHash" AS h FROM "FlightLog"`).all()) expect(sha256(join(mid, String(l.p)))).toBe(l.h);

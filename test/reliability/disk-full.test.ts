@@ -82,7 +82,17 @@ beforeAll(async () => {
 afterAll(async () => {
   unfill();
   await app?.stop();
-  if (mounted) execFileSync("umount", [mount]);
+  // The server's last process may still hold the database for a moment after the group leader
+  // exits: try a few times, then detach the mount lazily so nothing is left mounted.
+  for (let i = 0; mounted && i < 20; i++) {
+    try {
+      execFileSync("umount", [mount]);
+      mounted = false;
+    } catch {
+      await new Promise((r) => setTimeout(r, 250));
+    }
+  }
+  if (mounted) execFileSync("umount", ["-l", mount]);
   rmSync(mount, { recursive: true, force: true });
 });
 
