@@ -158,7 +158,7 @@ export async function fleetDesignView(actor: Actor) {
         hiHz: m.medianHz + OUTLIER_Z * sigma,
         dots: m.members.map((x) => {
           const placement = placements.find((p) => p.airframeId === x.id);
-          return { name: nameOf.get(x.id) ?? "?", freqHz: x.freqHz, outlier: placement?.notes.some((n) => n.kind === "mode-off-fleet" && n.axis === m.axis) ?? false };
+          return { name: nameOf.get(x.id) ?? "?", freqHz: x.freqHz, outlier: placement?.notes.some((n) => n.kind === "mode-off-fleet" && n.axis === m.axis && Math.abs((n.freqHz ?? 0) - x.freqHz) < 0.1) ?? false };
         }),
       };
     }),

@@ -47,7 +47,7 @@ export function ModeStrips({ design, airframes, enough, strips }: ModeStripsProp
                 d.outlier ? (
                   <g key={d.name}>
                     <rect x={x(d.freqHz) - 5} y={y - 5} width={10} height={10} transform={`rotate(45 ${x(d.freqHz)} ${y})`} fill="#fff" stroke="var(--ground)" strokeWidth={2.5} />
-                    <text x={x(d.freqHz)} y={y + 22} fontSize={11} textAnchor="middle" fill="var(--ground)" fontWeight={700}>
+                    <text x={x(d.freqHz)} y={y - 12} fontSize={11} textAnchor="middle" fill="var(--ground)" fontWeight={700}>
                       {d.name} {Math.round(d.freqHz)} Hz
                     </text>
                   </g>
