@@ -141,6 +141,27 @@ export interface ModeStrip {
   dots: { name: string; freqHz: number; outlier: boolean }[];
 }
 
+/**
+ * The dots of one mode's strip: every member's frequency, plus each airframe whose baseline the
+ * fleet questions for this mode, at the frequency the judgement found (a mode that moved far can
+ * fall out of the cluster the reference is built from, and must still be seen on its strip).
+ */
+function stripDots(mode: FleetReference["modes"][number], judged: AirframePlacement[], nameOf: Map<string, string>): ModeStrip["dots"] {
+  const offFor = (p: AirframePlacement) =>
+    p.notes.find((n) => n.kind === "mode-off-fleet" && n.axis === mode.axis && Math.abs((n.fleetHz ?? 0) - mode.medianHz) <= 0.15 * mode.medianHz);
+  const dots = mode.members.map((x) => ({ name: nameOf.get(x.id) ?? "?", freqHz: x.freqHz, outlier: false, id: x.id }));
+  for (const p of judged) {
+    const note = offFor(p);
+    if (!note || note.freqHz === undefined) continue;
+    const had = dots.find((d) => d.id === p.airframeId);
+    if (had) {
+      had.freqHz = note.freqHz;
+      had.outlier = true;
+    } else dots.push({ name: p.name, freqHz: note.freqHz, outlier: true, id: p.airframeId });
+  }
+  return dots.map(({ name, freqHz, outlier }) => ({ name, freqHz, outlier }));
+}
+
 /** The fleet screen's view of each design: one strip per fleet mode with every airframe's baseline frequency. */
 export async function fleetDesignView(actor: Actor) {
   const { designs, placements } = await fleetPlacement(actor);
@@ -156,10 +177,7 @@ export async function fleetDesignView(actor: Actor) {
         medianHz: m.medianHz,
         loHz: m.medianHz - OUTLIER_Z * sigma,
         hiHz: m.medianHz + OUTLIER_Z * sigma,
-        dots: m.members.map((x) => {
-          const placement = placements.find((p) => p.airframeId === x.id);
-          return { name: nameOf.get(x.id) ?? "?", freqHz: x.freqHz, outlier: placement?.notes.some((n) => n.kind === "mode-off-fleet" && n.axis === m.axis && Math.abs((n.freqHz ?? 0) - x.freqHz) < 0.1) ?? false };
-        }),
+        dots: stripDots(m, placements.filter((p) => p.design === ref.design && p.judged === "baseline"), nameOf),
       };
     }),
     // Airframes judged against the fleet because they have no baseline, with what the fleet says.
