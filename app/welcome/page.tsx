@@ -1,9 +1,8 @@
 import { redirect } from "next/navigation";
-import { ActionForm } from "@/app/_components/action-form";
+import { InvitationAnswer } from "@/app/_components/invitation-answer";
 import { UnauthenticatedError } from "@/lib/errors";
 import { myInvitations } from "@/lib/server/account";
 import { requireUser } from "@/lib/server/guard";
-import { answerInvitationAction } from "../(team)/actions";
 
 export const dynamic = "force-dynamic";
 
@@ -30,14 +29,7 @@ export default async function WelcomePage() {
                 <span>
                   <strong>{i.team.name}</strong> invites you as {i.role}
                 </span>
-                <ActionForm action={answerInvitationAction} submitLabel="Accept" compact>
-                  <input type="hidden" name="invitationId" value={i.id} />
-                  <input type="hidden" name="answer" value="accept" />
-                </ActionForm>
-                <ActionForm action={answerInvitationAction} submitLabel="Decline" compact>
-                  <input type="hidden" name="invitationId" value={i.id} />
-                  <input type="hidden" name="answer" value="decline" />
-                </ActionForm>
+                <InvitationAnswer invitationId={i.id} />
               </li>
             ))}
           </ul>

@@ -25,16 +25,24 @@ export const SECURE_COOKIES = (process.env.NEXTAUTH_URL ?? "").startsWith("https
 export const TEAM_COOKIE = SECURE_COOKIES ? "__Secure-hc-team" : "hc-team";
 export const TEAM_COOKIE_OPTIONS = { httpOnly: true, sameSite: "lax", path: "/", secure: SECURE_COOKIES } as const;
 
-/** A signed-in member of the active team with at least `minimum` role. */
-export async function requireMember(minimum: Role = "viewer"): Promise<Actor> {
+/**
+ * The signed-in person's open session: a server action (a cookie-authenticated write) must come
+ * from this origin, like the API's writes, and the session row must still be open.
+ */
+async function openSession(): Promise<{ userId: string; sessionId: string }> {
   const h = await headers();
-  // A server action is a cookie-authenticated write: the same origin rule as the API's writes.
   if (h.has("next-action")) assertSameOrigin(h);
   const session = await getServerSession(authOptions);
   const userId = session?.user?.id;
   const sessionId = session?.sid;
   if (typeof userId !== "string" || userId === "" || typeof sessionId !== "string") throw new UnauthenticatedError();
   await assertSessionOpen(sessionId, userId);
+  return { userId, sessionId };
+}
+
+/** A signed-in member of the active team with at least `minimum` role. */
+export async function requireMember(minimum: Role = "viewer"): Promise<Actor> {
+  const { userId, sessionId } = await openSession();
   const wanted = (await cookies()).get(TEAM_COOKIE)?.value;
   const actor = await actorForUser(userId, wanted, minimum);
   return { ...actor, sessionId };
@@ -122,13 +130,7 @@ export async function requireApiCaller(request: Request, minimum: Role = "viewer
 
 /** A signed-in person, whether or not they belong to a team yet (for accepting invitations). */
 export async function requireUser(): Promise<{ userId: string; sessionId: string; name: string; email: string }> {
-  const h = await headers();
-  if (h.has("next-action")) assertSameOrigin(h);
-  const session = await getServerSession(authOptions);
-  const userId = session?.user?.id;
-  const sessionId = session?.sid;
-  if (typeof userId !== "string" || userId === "" || typeof sessionId !== "string") throw new UnauthenticatedError();
-  await assertSessionOpen(sessionId, userId);
+  const { userId, sessionId } = await openSession();
   const user = await db.user.findUnique({ where: { id: userId }, select: { name: true, email: true } });
   if (!user) throw new UnauthenticatedError();
   return { userId, sessionId, name: user.name, email: user.email };

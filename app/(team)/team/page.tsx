@@ -1,11 +1,11 @@
 import { ActionForm } from "@/app/_components/action-form";
+import { InvitationAnswer } from "@/app/_components/invitation-answer";
 import { SelectField, TextField } from "@/app/_components/fields";
 import { ROLES, roleAtLeast } from "@/lib/roles";
 import { requireMember } from "@/lib/server/guard";
 import { myInvitations, myTeams } from "@/lib/server/account";
 import { listMembers, listProfiles, listTokens, pendingInvitations, recentAudit } from "@/lib/server/team";
 import {
-  answerInvitationAction,
   changePasswordAction,
   changeRoleAction,
   confirmTokenAction,
@@ -142,14 +142,7 @@ export default async function TeamPage() {
               <span>
                 Invitation to <strong>{i.team.name}</strong> as {i.role}
               </span>
-              <ActionForm action={answerInvitationAction} submitLabel="Accept" compact>
-                <input type="hidden" name="invitationId" value={i.id} />
-                <input type="hidden" name="answer" value="accept" />
-              </ActionForm>
-              <ActionForm action={answerInvitationAction} submitLabel="Decline" compact>
-                <input type="hidden" name="invitationId" value={i.id} />
-                <input type="hidden" name="answer" value="decline" />
-              </ActionForm>
+              <InvitationAnswer invitationId={i.id} />
             </div>
           ))}
           {teams.length > 1 ? (
