@@ -16,12 +16,19 @@ function isPublic(pathname: string): boolean {
 
 export async function proxy(request: NextRequest): Promise<NextResponse> {
   const { pathname, search } = request.nextUrl;
-  const https = request.nextUrl.protocol === "https:" || request.headers.get("x-forwarded-proto") === "https";
+  const https =
+    request.nextUrl.protocol === "https:" || request.headers.get("x-forwarded-proto") === "https";
   const nonce = btoa(crypto.randomUUID());
-  const csp = contentSecurityPolicy(nonce, { https, development: process.env.NODE_ENV === "development" });
+  const csp = contentSecurityPolicy(nonce, {
+    https,
+    development: process.env.NODE_ENV === "development",
+  });
 
   let response: NextResponse;
-  if (!isPublic(pathname) && !(await getToken({ req: request, secret: process.env.NEXTAUTH_SECRET }))) {
+  if (
+    !isPublic(pathname) &&
+    !(await getToken({ req: request, secret: process.env.NEXTAUTH_SECRET }))
+  ) {
     const signIn = new URL("/signin", request.nextUrl.origin);
     signIn.searchParams.set("callbackUrl", `${pathname}${search}`);
     response = NextResponse.redirect(signIn);

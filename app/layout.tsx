@@ -21,7 +21,8 @@ export default async function RootLayout({ children }: { children: ReactNode }) 
       <body>
         {demo ? (
           <div className="demo-banner" role="note" data-testid="demo-banner">
-            Demo server: the invented demo team&apos;s accounts exist and their passwords are published. Do not keep a real team&apos;s records here.
+            Demo server: the invented demo team&apos;s accounts exist and their passwords are
+            published. Do not keep a real team&apos;s records here.
           </div>
         ) : null}
         {children}

@@ -6,7 +6,10 @@ export default function NotFound() {
     <main className="plain-page">
       <div className="card">
         <h1>Not found</h1>
-        <p>There is nothing at this address in your team: the airframe, part or page may have been removed, or the link is wrong.</p>
+        <p>
+          There is nothing at this address in your team: the airframe, part or page may have been
+          removed, or the link is wrong.
+        </p>
         <p>
           <Link href="/">Back to the inspection queue</Link>
         </p>

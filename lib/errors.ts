@@ -134,7 +134,9 @@ export class TooManyRequestsError extends DomainError {
 export class InsufficientStorageError extends DomainError {
   readonly code = "insufficient-storage" as const;
   readonly httpStatus = 507;
-  constructor(message = "The server's disk is full, so nothing was kept; free some space on the server and try again.") {
+  constructor(
+    message = "The server's disk is full, so nothing was kept; free some space on the server and try again.",
+  ) {
     super(message);
     this.name = "InsufficientStorageError";
   }

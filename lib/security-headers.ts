@@ -11,7 +11,8 @@ export const FIXED_HEADERS: { key: string; value: string }[] = [
   { key: "Cross-Origin-Opener-Policy", value: "same-origin" },
   {
     key: "Permissions-Policy",
-    value: "camera=(), microphone=(), geolocation=(), payment=(), usb=(), serial=(), bluetooth=(), midi=(), accelerometer=(), gyroscope=(), magnetometer=()",
+    value:
+      "camera=(), microphone=(), geolocation=(), payment=(), usb=(), serial=(), bluetooth=(), midi=(), accelerometer=(), gyroscope=(), magnetometer=()",
   },
 ];
 
@@ -23,7 +24,10 @@ export const HSTS = "max-age=31536000; includeSubDomains";
  * chunks). Styles allow inline style attributes, which React's style props and the charts write
  * and which a nonce cannot cover; no inline script is allowed. Nothing may frame the app.
  */
-export function contentSecurityPolicy(nonce: string, options: { https: boolean; development: boolean }): string {
+export function contentSecurityPolicy(
+  nonce: string,
+  options: { https: boolean; development: boolean },
+): string {
   return [
     "default-src 'self'",
     `script-src 'self' 'nonce-${nonce}' 'strict-dynamic'${options.development ? " 'unsafe-eval'" : ""}`,

@@ -19,7 +19,10 @@ async function askPassword(): Promise<string> {
 }
 
 async function firstOwner(email: string, name: string, teamName: string): Promise<void> {
-  if ((await db.user.count()) > 0) throw new Error("This server already has accounts: owners invite the next people from the Team screen.");
+  if ((await db.user.count()) > 0)
+    throw new Error(
+      "This server already has accounts: owners invite the next people from the Team screen.",
+    );
   const password = await askPassword();
   await assertAcceptablePassword(password, { email, field: "password" });
   const passwordHash = await hashPassword(password);
@@ -27,25 +30,48 @@ async function firstOwner(email: string, name: string, teamName: string): Promis
     const team = await tx.team.create({ data: { name: teamName } });
     const user = await tx.user.create({ data: { email: email.toLowerCase(), name, passwordHash } });
     await tx.membership.create({ data: { userId: user.id, teamId: team.id, role: "owner" } });
-    await tx.auditEntry.create({ data: { teamId: team.id, userId: null, userName: "server operator", action: "first owner", entity: "user", entityId: user.id, detail: name } });
+    await tx.auditEntry.create({
+      data: {
+        teamId: team.id,
+        userId: null,
+        userName: "server operator",
+        action: "first owner",
+        entity: "user",
+        entityId: user.id,
+        detail: name,
+      },
+    });
   });
-  console.log(`${email} is the owner of "${teamName}". Sign in and invite the rest of the team from the Team screen.`);
+  console.log(
+    `${email} is the owner of "${teamName}". Sign in and invite the rest of the team from the Team screen.`,
+  );
 }
 
 async function setDisabled(email: string, disabled: boolean): Promise<void> {
   const user = await db.user.findUnique({ where: { email: email.toLowerCase() } });
   if (!user) throw new Error(`No account has the email ${email}.`);
-  await db.user.update({ where: { id: user.id }, data: { disabledAt: disabled ? new Date() : null } });
+  await db.user.update({
+    where: { id: user.id },
+    data: { disabledAt: disabled ? new Date() : null },
+  });
   const ended = disabled ? await endUserSessions(user.id, "account disabled") : 0;
-  console.log(disabled ? `${email} is disabled; ${ended} open session(s) ended.` : `${email} may sign in again.`);
+  console.log(
+    disabled
+      ? `${email} is disabled; ${ended} open session(s) ended.`
+      : `${email} may sign in again.`,
+  );
 }
 
 async function main(): Promise<number> {
   const [command, ...args] = process.argv.slice(2);
-  if (command === "first-owner" && args.length === 3) await firstOwner(args[0] ?? "", args[1] ?? "", args[2] ?? "");
-  else if ((command === "disable" || command === "enable") && args.length === 1) await setDisabled(args[0] ?? "", command === "disable");
+  if (command === "first-owner" && args.length === 3)
+    await firstOwner(args[0] ?? "", args[1] ?? "", args[2] ?? "");
+  else if ((command === "disable" || command === "enable") && args.length === 1)
+    await setDisabled(args[0] ?? "", command === "disable");
   else {
-    console.error('usage: npm run accounts -- first-owner <email> "<name>" "<team name>" | disable <email> | enable <email>');
+    console.error(
+      'usage: npm run accounts -- first-owner <email> "<name>" "<team name>" | disable <email> | enable <email>',
+    );
     return 2;
   }
   return 0;

@@ -20,7 +20,11 @@ async function main(): Promise<number> {
   const cwd = process.env.INIT_CWD ?? process.cwd();
   const out = resolve(cwd, target);
   const dataDir = resolve(process.env.HEATCHECK_DATA_DIR ?? join(process.cwd(), "data"));
-  const dbFile = resolve((process.env.DATABASE_URL ?? `file:${join(dataDir, "heatcheck.db")}`).replace(/^file:/, "").replace(/\?.*$/, ""));
+  const dbFile = resolve(
+    (process.env.DATABASE_URL ?? `file:${join(dataDir, "heatcheck.db")}`)
+      .replace(/^file:/, "")
+      .replace(/\?.*$/, ""),
+  );
   const work = await mkdtemp(join(tmpdir(), "heatcheck-backup-"));
   const t0 = Date.now();
   try {
@@ -43,7 +47,13 @@ async function main(): Promise<number> {
     });
     gzip.pipe(file);
     const tar = new TarWriter(gzip);
-    const manifest = { format: BACKUP_FORMAT, version: 1, createdAt: new Date().toISOString(), database: "heatcheck.db", originals: logs.length };
+    const manifest = {
+      format: BACKUP_FORMAT,
+      version: 1,
+      createdAt: new Date().toISOString(),
+      database: "heatcheck.db",
+      originals: logs.length,
+    };
     await tar.bytes("heatcheck-backup.json", JSON.stringify(manifest, null, 2) + "\n");
     await tar.file("heatcheck.db", snapshot);
     let bytes = 0;
@@ -69,7 +79,10 @@ async function main(): Promise<number> {
     console.log(
       `heatcheck: backup written to ${out}: database and ${seen.size - missing.length} originals (${(bytes / 1e6).toFixed(1)} MB) in ${((Date.now() - t0) / 1000).toFixed(1)} s`,
     );
-    if (missing.length > 0) console.error(`heatcheck: ${missing.length} originals named in the database were missing on disk: ${missing.slice(0, 5).join(", ")}`);
+    if (missing.length > 0)
+      console.error(
+        `heatcheck: ${missing.length} originals named in the database were missing on disk: ${missing.slice(0, 5).join(", ")}`,
+      );
     return 0;
   } catch (e) {
     await rm(out, { force: true }).catch(() => undefined);

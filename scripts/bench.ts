@@ -16,14 +16,22 @@ mkdirSync(OUT, { recursive: true });
 /** The README's command, and the linked one. */
 const COMMANDS = {
   npx: { label: "`npx heatcheck analyze`", command: "npx", prefix: ["heatcheck"] },
-  linked: { label: "`heatcheck analyze` (after npm link)", command: process.execPath, prefix: ["scripts/heatcheck.mjs"] },
+  linked: {
+    label: "`heatcheck analyze` (after npm link)",
+    command: process.execPath,
+    prefix: ["scripts/heatcheck.mjs"],
+  },
 } as const;
 
 function makeLog(name: string, durationS: number): string {
   const file = join(OUT, name);
   if (!existsSync(file)) {
     console.error(`making ${file} (${durationS} s at 4 kHz)…`);
-    const r = spawnSync(process.execPath, ["scripts/heatcheck.mjs", "demo-log", file, "--seed", "42", "--duration", String(durationS)], { stdio: "inherit" });
+    const r = spawnSync(
+      process.execPath,
+      ["scripts/heatcheck.mjs", "demo-log", file, "--seed", "42", "--duration", String(durationS)],
+      { stdio: "inherit" },
+    );
     if (r.status !== 0) throw new Error("demo-log failed");
   }
   return file;
@@ -78,8 +86,22 @@ function median(values: number[]): number {
 // First run builds the bundle if needed; it is not timed.
 spawnSync(process.execPath, ["scripts/heatcheck.mjs", "--help"], { stdio: "ignore" });
 const cases = [
-  { label: "300 s × 4 kHz", file: makeLog("bench-300s.csv", 300), runs: RUNS, targetS: 0.7, targetRss: 150, python: true },
-  { label: "~1 GB", file: makeLog("bench-1gb.csv", 3960), runs: Math.max(1, Math.min(3, RUNS)), targetS: Number.NaN, targetRss: 200, python: false },
+  {
+    label: "300 s × 4 kHz",
+    file: makeLog("bench-300s.csv", 300),
+    runs: RUNS,
+    targetS: 0.7,
+    targetRss: 150,
+    python: true,
+  },
+  {
+    label: "~1 GB",
+    file: makeLog("bench-1gb.csv", 3960),
+    runs: Math.max(1, Math.min(3, RUNS)),
+    targetS: Number.NaN,
+    targetRss: 200,
+    python: false,
+  },
 ];
 const rows: string[] = [];
 for (const c of cases) {
@@ -96,7 +118,11 @@ for (const c of cases) {
     console.error(`${c.label}, ${how}: runs ${runs.map((r) => r.wallS.toFixed(2)).join(", ")} s`);
   }
 }
-console.log(`\nheatcheck analyze, whole process (node ${process.version}, ${RUNS} runs, median wall, peak RSS of any run)\n`);
-console.log("| log | size | command | wall (median) | throughput | peak RSS | target | pandas + scipy (Welch only) |");
+console.log(
+  `\nheatcheck analyze, whole process (node ${process.version}, ${RUNS} runs, median wall, peak RSS of any run)\n`,
+);
+console.log(
+  "| log | size | command | wall (median) | throughput | peak RSS | target | pandas + scipy (Welch only) |",
+);
 console.log("|---|---|---|---|---|---|---|---|");
 for (const r of rows) console.log(r);

@@ -19,7 +19,11 @@ async function main(): Promise<number> {
   const teams = await db.team.findMany({ where: { OR: [{ id: which }, { name: which }] } });
   const team = teams[0];
   if (!team || teams.length > 1) {
-    console.error(teams.length > 1 ? `heatcheck: more than one team is named "${which}"; give its id.` : `heatcheck: there is no team "${which}".`);
+    console.error(
+      teams.length > 1
+        ? `heatcheck: more than one team is named "${which}"; give its id.`
+        : `heatcheck: there is no team "${which}".`,
+    );
     return 1;
   }
   const out = resolve(process.env.INIT_CWD ?? process.cwd(), target);
@@ -33,7 +37,9 @@ async function main(): Promise<number> {
   try {
     const r = await writeTeamExport(team.id, gzip);
     await done;
-    console.log(`heatcheck: ${team.name} exported to ${out}: ${r.records} records, ${r.originals} original logs${r.missing ? `, ${r.missing} originals missing on disk` : ""}`);
+    console.log(
+      `heatcheck: ${team.name} exported to ${out}: ${r.records} records, ${r.originals} original logs${r.missing ? `, ${r.missing} originals missing on disk` : ""}`,
+    );
     return 0;
   } catch (e) {
     await rm(out, { force: true });

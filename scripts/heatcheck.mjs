@@ -26,14 +26,21 @@ function stale() {
 
 if (stale()) {
   const tsx = join(root, "node_modules", "tsx", "dist", "cli.mjs");
-  const r = spawnSync(process.execPath, [tsx, join(root, "scripts", "build-bundles.ts"), "cli"], { cwd: root, stdio: ["ignore", "ignore", "inherit"] });
+  const r = spawnSync(process.execPath, [tsx, join(root, "scripts", "build-bundles.ts"), "cli"], {
+    cwd: root,
+    stdio: ["ignore", "ignore", "inherit"],
+  });
   if (r.status !== 0) {
-    process.stderr.write("heatcheck: the command line could not be built; run `npm install` in the heatcheck folder.\n");
+    process.stderr.write(
+      "heatcheck: the command line could not be built; run `npm install` in the heatcheck folder.\n",
+    );
     process.exit(1);
   }
 }
 // For `npm run bench`: the peak memory of this whole process (both threads), told on exit.
 if (process.env.HEATCHECK_REPORT_RSS === "1") {
-  process.on("exit", () => process.stderr.write(`\nHEATCHECK_MAX_RSS_KB ${process.resourceUsage().maxRSS}\n`));
+  process.on("exit", () =>
+    process.stderr.write(`\nHEATCHECK_MAX_RSS_KB ${process.resourceUsage().maxRSS}\n`),
+  );
 }
 await import(pathToFileURL(bundle).href);

@@ -11,7 +11,8 @@ const n = (name: string, fallback: number) => {
   const v = Number(process.env[name]);
   return Number.isFinite(v) && v >= 0 ? v : fallback;
 };
-const ms = (s: Stats) => `p50 ${s.p50.toFixed(0)} ms, p95 ${s.p95.toFixed(0)} ms, p99 ${s.p99.toFixed(0)} ms (n = ${s.count})`;
+const ms = (s: Stats) =>
+  `p50 ${s.p50.toFixed(0)} ms, p95 ${s.p95.toFixed(0)} ms, p99 ${s.p99.toFixed(0)} ms (n = ${s.count})`;
 
 const dir = seededDataDir("soak");
 let app = await startThroughScript(dir);
@@ -40,7 +41,11 @@ load: ${load.options.readers} readers + ${load.options.uploaders} uploaders of $
     console.log(`
 kill -9: ${report.trials} trials, uploads answered 200 ${report.answered200}, lost ${report.lost}, integrity failures ${report.integrityFailures.length}${report.integrityFailures.length ? ` (${report.integrityFailures.slice(0, 5).join("; ")})` : ""}
   files left behind after restarts ${report.leftovers}, logs still pending at the end ${report.stuckPending}, median restart ${((restart[Math.floor(restart.length / 2)] ?? 0) / 1000).toFixed(1)} s`);
-    failed ||= report.lost > 0 || report.integrityFailures.length > 0 || report.leftovers > 0 || report.stuckPending > 0;
+    failed ||=
+      report.lost > 0 ||
+      report.integrityFailures.length > 0 ||
+      report.leftovers > 0 ||
+      report.stuckPending > 0;
   }
 } finally {
   await app.stop();

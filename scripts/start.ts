@@ -37,7 +37,13 @@ function seconds(since: number): string {
 }
 
 /** Runs one step as a child process, its output prefixed so that parallel steps stay readable. */
-function step(what: string, command: string, args: string[], env: NodeJS.ProcessEnv, hint: string): Promise<void> {
+function step(
+  what: string,
+  command: string,
+  args: string[],
+  env: NodeJS.ProcessEnv,
+  hint: string,
+): Promise<void> {
   const t = Date.now();
   say(`${what}…`);
   return new Promise((done) => {
@@ -66,7 +72,8 @@ function step(what: string, command: string, args: string[], env: NodeJS.Process
 /** A signing secret kept in the data folder, so sessions survive restarts. */
 function authSecret(): string {
   const file = join(dataDir, ".auth-secret");
-  if (!existsSync(file)) writeFileSync(file, randomBytes(32).toString("base64url"), { mode: 0o600 });
+  if (!existsSync(file))
+    writeFileSync(file, randomBytes(32).toString("base64url"), { mode: 0o600 });
   return readFileSync(file, "utf8").trim();
 }
 
@@ -93,7 +100,9 @@ async function main(): Promise<void> {
   try {
     mkdirSync(dataDir, { recursive: true, mode: 0o700 });
   } catch {
-    fail(`the data folder ${dataDir} cannot be created; set HEATCHECK_DATA_DIR to a folder you can write to.`);
+    fail(
+      `the data folder ${dataDir} cannot be created; set HEATCHECK_DATA_DIR to a folder you can write to.`,
+    );
   }
   const env: NodeJS.ProcessEnv = {
     ...process.env,
@@ -105,29 +114,61 @@ async function main(): Promise<void> {
   };
   const npx = process.platform === "win32" ? "npx.cmd" : "npx";
 
-  await step("database migration", npx, ["prisma", "migrate", "deploy"], env,
-    `the database (${env.DATABASE_URL}) could not be created or migrated; check that the data folder is writable and not full, and that no other program holds the file.`);
+  await step(
+    "database migration",
+    npx,
+    ["prisma", "migrate", "deploy"],
+    env,
+    `the database (${env.DATABASE_URL}) could not be created or migrated; check that the data folder is writable and not full, and that no other program holds the file.`,
+  );
 
   // The seed analyses its demo logs on the worker threads, so the worker comes before the seed.
   const workerBundle = join(root, "generated", "worker", "analysis-worker.mjs");
   if (stale(workerBundle, ["lib"])) {
-    await step("analysis worker build", npx, ["tsx", "scripts/build-bundles.ts", "worker"], env,
-      "the analysis worker could not be built; run `npm install` again, then `npm start`.");
+    await step(
+      "analysis worker build",
+      npx,
+      ["tsx", "scripts/build-bundles.ts", "worker"],
+      env,
+      "the analysis worker could not be built; run `npm install` again, then `npm start`.",
+    );
   }
 
   // Seeding (33 demo analyses) and building the app are independent: run them side by side.
   const buildId = join(root, ".next", "BUILD_ID");
-  const needsBuild = stale(buildId, ["app", "lib", "prisma", "public", "package.json", "next.config.ts", "proxy.ts", "instrumentation.ts"]);
+  const needsBuild = stale(buildId, [
+    "app",
+    "lib",
+    "prisma",
+    "public",
+    "package.json",
+    "next.config.ts",
+    "proxy.ts",
+    "instrumentation.ts",
+  ]);
   await Promise.all([
-    step("demo seed check", npx, ["tsx", "--conditions=react-server", "prisma/seed.ts"], env,
-      "the demo team could not be seeded (see the lines above); nothing was kept, so the next `npm start` tries again."),
+    step(
+      "demo seed check",
+      npx,
+      ["tsx", "--conditions=react-server", "prisma/seed.ts"],
+      env,
+      "the demo team could not be seeded (see the lines above); nothing was kept, so the next `npm start` tries again.",
+    ),
     needsBuild
-      ? step("app build (first start or changed sources)", npx, ["next", "build"], env,
-          "the app could not be built (see the lines above): if you changed the sources, fix what it names; otherwise run `npm install` again, then `npm start`.")
+      ? step(
+          "app build (first start or changed sources)",
+          npx,
+          ["next", "build"],
+          env,
+          "the app could not be built (see the lines above): if you changed the sources, fix what it names; otherwise run `npm install` again, then `npm start`.",
+        )
       : Promise.resolve(),
   ]);
 
-  const server = spawn(npx, ["next", "start", "-p", port, "-H", host], { stdio: ["ignore", "inherit", "inherit"], env });
+  const server = spawn(npx, ["next", "start", "-p", port, "-H", host], {
+    stdio: ["ignore", "inherit", "inherit"],
+    env,
+  });
   children.add(server);
   server.on("exit", (code) => process.exit(code ?? 0));
   console.log(`

@@ -38,34 +38,65 @@ function serveWorker(): void {
       port.close();
       return;
     }
-    void runner.run(m.job).then((results) => port.postMessage({ type: "done", results } satisfies FromWorker));
+    void runner
+      .run(m.job)
+      .then((results) => port.postMessage({ type: "done", results } satisfies FromWorker));
   });
   port.postMessage({ type: "ready" } satisfies FromWorker);
 }
 
-function list<T extends string | number>(raw: string | undefined, parse: (s: string) => T, allowed: readonly T[], name: string): T[] | undefined {
+function list<T extends string | number>(
+  raw: string | undefined,
+  parse: (s: string) => T,
+  allowed: readonly T[],
+  name: string,
+): T[] | undefined {
   if (raw === undefined) return undefined;
-  const items = raw.split(",").map((s) => s.trim()).filter((s) => s !== "").map(parse);
-  for (const x of items) if (!allowed.includes(x)) throw new UsageError(`--${name}: ${x} is not one of ${allowed.join(", ")}`);
+  const items = raw
+    .split(",")
+    .map((s) => s.trim())
+    .filter((s) => s !== "")
+    .map(parse);
+  for (const x of items)
+    if (!allowed.includes(x))
+      throw new UsageError(`--${name}: ${x} is not one of ${allowed.join(", ")}`);
   if (items.length === 0) throw new UsageError(`--${name} needs at least one value`);
   return items;
 }
 
 function optionsFrom(argv: string[]): { options: MatrixOptions; json: boolean; workers: number } {
-  const args = parseArgs(argv, ["workers", "duration", "airframes", "rates", "classes"], ["quick", "json"]);
+  const args = parseArgs(
+    argv,
+    ["workers", "duration", "airframes", "rates", "classes"],
+    ["quick", "json"],
+  );
   const base = hasSwitch(args, "quick") ? QUICK_MATRIX : FULL_MATRIX;
   const options: MatrixOptions = {
     ...base,
     durationS: numberFlag(args, "duration", base.durationS, 8, 120) ?? base.durationS,
-    airframes: list(flag(args, "airframes"), Number, [1, 2, 3, 4, 5, 6, 7, 8, 9], "airframes") ?? base.airframes,
+    airframes:
+      list(flag(args, "airframes"), Number, [1, 2, 3, 4, 5, 6, 7, 8, 9], "airframes") ??
+      base.airframes,
     rates: list(flag(args, "rates"), Number, LOG_RATES, "rates") ?? base.rates,
-    classes: list<DamageClass>(flag(args, "classes"), (s) => s as DamageClass, DAMAGE_CLASSES, "classes") ?? base.classes,
+    classes:
+      list<DamageClass>(
+        flag(args, "classes"),
+        (s) => s as DamageClass,
+        DAMAGE_CLASSES,
+        "classes",
+      ) ?? base.classes,
   };
-  const workers = numberFlag(args, "workers", Math.max(1, availableParallelism()), 0, 32, true) ?? 1;
+  const workers =
+    numberFlag(args, "workers", Math.max(1, availableParallelism()), 0, 32, true) ?? 1;
   return { options, json: hasSwitch(args, "json"), workers };
 }
 
-async function runJobs(jobs: Job[], options: MatrixOptions, workers: number, progress: (done: number) => void): Promise<CaseResult[]> {
+async function runJobs(
+  jobs: Job[],
+  options: MatrixOptions,
+  workers: number,
+  progress: (done: number) => void,
+): Promise<CaseResult[]> {
   const results: CaseResult[] = [];
   if (workers === 0) {
     const runner = new CaseRunner(options);
@@ -78,30 +109,35 @@ async function runJobs(jobs: Job[], options: MatrixOptions, workers: number, pro
   const queue = [...jobs];
   const entry = new URL(import.meta.url);
   await Promise.all(
-    Array.from({ length: Math.min(workers, jobs.length) }, () =>
-      new Promise<void>((resolve, reject) => {
-        const data = { role: ROLE, options };
-        // Under tsx a worker does not inherit the loader: register it first, then load this file.
-        const w = entry.pathname.endsWith(".ts")
-          ? new Worker(`import("tsx/esm/api").then((tsx) => { tsx.register(); return import(${JSON.stringify(entry.href)}); });`, { eval: true, workerData: data })
-          : new Worker(entry, { workerData: data });
-        const next = () => {
-          const job = queue.shift();
-          if (job) w.postMessage({ type: "job", job } satisfies ToWorker);
-          else {
-            w.postMessage({ type: "stop" } satisfies ToWorker);
-            void w.terminate().then(() => resolve());
-          }
-        };
-        w.on("message", (m: FromWorker) => {
-          if (m.type === "done") {
-            results.push(...m.results);
-            progress(results.length);
-          }
-          next();
-        });
-        w.on("error", reject);
-      }),
+    Array.from(
+      { length: Math.min(workers, jobs.length) },
+      () =>
+        new Promise<void>((resolve, reject) => {
+          const data = { role: ROLE, options };
+          // Under tsx a worker does not inherit the loader: register it first, then load this file.
+          const w = entry.pathname.endsWith(".ts")
+            ? new Worker(
+                `import("tsx/esm/api").then((tsx) => { tsx.register(); return import(${JSON.stringify(entry.href)}); });`,
+                { eval: true, workerData: data },
+              )
+            : new Worker(entry, { workerData: data });
+          const next = () => {
+            const job = queue.shift();
+            if (job) w.postMessage({ type: "job", job } satisfies ToWorker);
+            else {
+              w.postMessage({ type: "stop" } satisfies ToWorker);
+              void w.terminate().then(() => resolve());
+            }
+          };
+          w.on("message", (m: FromWorker) => {
+            if (m.type === "done") {
+              results.push(...m.results);
+              progress(results.length);
+            }
+            next();
+          });
+          w.on("error", reject);
+        }),
     ),
   );
   return results;
@@ -122,15 +158,21 @@ async function main(): Promise<number> {
   const jobs = matrixJobs(options);
   const expected = jobs.reduce((s, j) => s + j.pairs.length, 0);
   const started = performance.now();
-  process.stderr.write(`validate: ${jobs.length} flights, ${expected} logs on ${workers || "no"} worker thread${workers === 1 ? "" : "s"}\n`);
+  process.stderr.write(
+    `validate: ${jobs.length} flights, ${expected} logs on ${workers || "no"} worker thread${workers === 1 ? "" : "s"}\n`,
+  );
   const results = await runJobs(jobs, options, workers, (done) => {
     if (process.stderr.isTTY) process.stderr.write(`\r  ${done}/${expected} logs`);
   });
   const order = new Map(jobs.map((j, i) => [j.id, i]));
-  results.sort((a, b) => (order.get(a.id) ?? 0) - (order.get(b.id) ?? 0) || a.testRate - b.testRate);
+  results.sort(
+    (a, b) => (order.get(a.id) ?? 0) - (order.get(b.id) ?? 0) || a.testRate - b.testRate,
+  );
   const summary = summarise(results, options);
   const seconds = (performance.now() - started) / 1000;
-  process.stderr.write(`${process.stderr.isTTY ? "\n" : ""}validate: ${results.length} logs in ${seconds.toFixed(0)} s\n`);
+  process.stderr.write(
+    `${process.stderr.isTTY ? "\n" : ""}validate: ${results.length} logs in ${seconds.toFixed(0)} s\n`,
+  );
   if (json) process.stdout.write(JSON.stringify({ options, seconds, summary, results }) + "\n");
   else process.stdout.write(formatSummary(summary, options));
   return summary.done.pass ? 0 : 1;

@@ -12,7 +12,16 @@ import { logCrash, recordInspection } from "@/lib/server/crashes";
 import { createEvent, createHeat, setHeatEntries } from "@/lib/server/events";
 import { reanalyseLog } from "@/lib/server/ingest";
 import { createParts, setPartStatus, swapPart } from "@/lib/server/parts";
-import { changeRole, confirmToken, createToken, inviteMember, removeMember, revokeToken, saveProfile, withdrawInvitation } from "@/lib/server/team";
+import {
+  changeRole,
+  confirmToken,
+  createToken,
+  inviteMember,
+  removeMember,
+  revokeToken,
+  saveProfile,
+  withdrawInvitation,
+} from "@/lib/server/team";
 import { airframeSchema, airframeStatusSchema } from "@/lib/validations/airframe";
 import { baselineSchema } from "@/lib/validations/baseline";
 import { idField, optionalText } from "@/lib/validations/common";
@@ -20,7 +29,16 @@ import { crashSchema } from "@/lib/validations/crash";
 import { eventSchema, heatEntriesSchema, heatSchema } from "@/lib/validations/event";
 import { inspectionSchema } from "@/lib/validations/inspection";
 import { partSchema, partStatusSchema, swapSchema } from "@/lib/validations/part";
-import { importProfileSchema, invitationSchema, memberSchema, membershipSchema, passwordChangeSchema, roleChangeSchema, switchTeamSchema, tokenSchema } from "@/lib/validations/team";
+import {
+  importProfileSchema,
+  invitationSchema,
+  memberSchema,
+  membershipSchema,
+  passwordChangeSchema,
+  roleChangeSchema,
+  switchTeamSchema,
+  tokenSchema,
+} from "@/lib/validations/team";
 import { isDomainError } from "@/lib/errors";
 import { formToObject } from "@/lib/validations/common";
 
@@ -40,12 +58,21 @@ export async function createAirframeAction(_: ActionState, form: FormData): Prom
   });
 }
 
-export async function setAirframeStatusAction(_: ActionState, form: FormData): Promise<ActionState> {
-  return runAction("setAirframeStatus", "tech", airframeStatusSchema, form, async (actor, input) => {
-    await setAirframeStatus(actor, input.airframeId, input.status, input.note);
-    refreshAirframe(input.airframeId);
-    return input.status === "grounded" ? "Airframe grounded." : "Airframe back in service.";
-  });
+export async function setAirframeStatusAction(
+  _: ActionState,
+  form: FormData,
+): Promise<ActionState> {
+  return runAction(
+    "setAirframeStatus",
+    "tech",
+    airframeStatusSchema,
+    form,
+    async (actor, input) => {
+      await setAirframeStatus(actor, input.airframeId, input.status, input.note);
+      refreshAirframe(input.airframeId);
+      return input.status === "grounded" ? "Airframe grounded." : "Airframe back in service.";
+    },
+  );
 }
 
 export async function retireAirframeAction(_: ActionState, form: FormData): Promise<ActionState> {
@@ -53,7 +80,9 @@ export async function retireAirframeAction(_: ActionState, form: FormData): Prom
   return runAction("retireAirframe", "tech", schema, form, async (actor, input) => {
     await setAirframeRetired(actor, input.airframeId, input.retired === "true");
     refreshAirframe(input.airframeId);
-    return input.retired === "true" ? "Airframe retired: it leaves the queue." : "Airframe reinstated.";
+    return input.retired === "true"
+      ? "Airframe retired: it leaves the queue."
+      : "Airframe reinstated.";
   });
 }
 
@@ -61,7 +90,9 @@ export async function logCrashAction(_: ActionState, form: FormData): Promise<Ac
   return runAction("logCrash", "pilot", crashSchema, form, async (actor, input) => {
     await logCrash(actor, input);
     refreshAirframe(input.airframeId);
-    return input.ground || input.severity !== "minor" ? "Crash logged; the airframe is grounded until inspected." : "Crash logged.";
+    return input.ground || input.severity !== "minor"
+      ? "Crash logged; the airframe is grounded until inspected."
+      : "Crash logged.";
   });
 }
 
@@ -70,7 +101,9 @@ export async function swapPartAction(_: ActionState, form: FormData): Promise<Ac
     const r = await swapPart(actor, input);
     refreshAirframe(input.airframeId);
     revalidatePath("/parts");
-    return r.removedPartId ? `Swapped at ${input.position}; the old part is marked ${input.removedStatus}.` : `Fitted at ${input.position}.`;
+    return r.removedPartId
+      ? `Swapped at ${input.position}; the old part is marked ${input.removedStatus}.`
+      : `Fitted at ${input.position}.`;
   });
 }
 
@@ -78,7 +111,9 @@ export async function recordInspectionAction(_: ActionState, form: FormData): Pr
   return runAction("recordInspection", "tech", inspectionSchema, form, async (actor, input) => {
     await recordInspection(actor, input);
     refreshAirframe(input.airframeId);
-    return input.returnToService ? "Inspection signed off; back in service." : "Inspection recorded; still grounded.";
+    return input.returnToService
+      ? "Inspection signed off; back in service."
+      : "Inspection recorded; still grounded.";
   });
 }
 
@@ -148,7 +183,10 @@ export async function inviteMemberAction(_: ActionState, form: FormData): Promis
   });
 }
 
-export async function withdrawInvitationAction(_: ActionState, form: FormData): Promise<ActionState> {
+export async function withdrawInvitationAction(
+  _: ActionState,
+  form: FormData,
+): Promise<ActionState> {
   return runAction("withdrawInvitation", "owner", invitationSchema, form, async (actor, input) => {
     await withdrawInvitation(actor, input.invitationId);
     revalidatePath("/team");
@@ -167,11 +205,17 @@ export async function removeMemberAction(_: ActionState, form: FormData): Promis
 }
 
 export async function confirmTokenAction(_: ActionState, form: FormData): Promise<ActionState> {
-  return runAction("confirmToken", "owner", z.object({ tokenId: idField }), form, async (actor, input) => {
-    await confirmToken(actor, input.tokenId);
-    revalidatePath("/team");
-    return "Token confirmed: it works again.";
-  });
+  return runAction(
+    "confirmToken",
+    "owner",
+    z.object({ tokenId: idField }),
+    form,
+    async (actor, input) => {
+      await confirmToken(actor, input.tokenId);
+      revalidatePath("/team");
+      return "Token confirmed: it works again.";
+    },
+  );
 }
 
 /** Accepts or declines an invitation: needs a signed-in person, not a team (they may have none yet). */
@@ -188,7 +232,10 @@ export async function answerInvitationAction(_: ActionState, form: FormData): Pr
   } catch (e) {
     if (isDomainError(e)) return { ok: false, message: e.message };
     console.error("server action answerInvitation failed", e);
-    return { ok: false, message: "Something went wrong on the server; nothing was changed. Try again." };
+    return {
+      ok: false,
+      message: "Something went wrong on the server; nothing was changed. Try again.",
+    };
   }
 }
 
@@ -209,11 +256,17 @@ export async function createTokenAction(_: ActionState, form: FormData): Promise
 }
 
 export async function revokeTokenAction(_: ActionState, form: FormData): Promise<ActionState> {
-  return runAction("revokeToken", "owner", z.object({ tokenId: idField }), form, async (actor, input) => {
-    await revokeToken(actor, input.tokenId);
-    revalidatePath("/team");
-    return "Token revoked.";
-  });
+  return runAction(
+    "revokeToken",
+    "owner",
+    z.object({ tokenId: idField }),
+    form,
+    async (actor, input) => {
+      await revokeToken(actor, input.tokenId);
+      revalidatePath("/team");
+      return "Token revoked.";
+    },
+  );
 }
 
 export async function saveProfileAction(_: ActionState, form: FormData): Promise<ActionState> {

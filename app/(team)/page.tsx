@@ -9,7 +9,11 @@ import { TIME } from "@/app/_components/dates";
 
 export const dynamic = "force-dynamic";
 
-export default async function InspectionQueuePage({ searchParams }: { searchParams: Promise<{ heat?: string }> }) {
+export default async function InspectionQueuePage({
+  searchParams,
+}: {
+  searchParams: Promise<{ heat?: string }>;
+}) {
   const actor = await requireMember("viewer");
   const onlyNextHeat = (await searchParams).heat === "next";
   const { entries, heat } = await inspectionQueue(actor, { onlyNextHeat });
@@ -19,8 +23,13 @@ export default async function InspectionQueuePage({ searchParams }: { searchPara
       <AutoRefresh seconds={20} />
       <h1>Inspection queue</h1>
       <p className="muted">
-        {needs === 0 ? "No airframe needs pulling before the next heat." : `${needs} airframe${needs === 1 ? "" : "s"} to pull and inspect before flying.`}{" "}
-        {heat ? `Next heat: ${heat.event.name} ${heat.name} at ${TIME.format(heat.startsAt)} UTC.` : "No heat scheduled."} Refreshes every 20 s.
+        {needs === 0
+          ? "No airframe needs pulling before the next heat."
+          : `${needs} airframe${needs === 1 ? "" : "s"} to pull and inspect before flying.`}{" "}
+        {heat
+          ? `Next heat: ${heat.event.name} ${heat.name} at ${TIME.format(heat.startsAt)} UTC.`
+          : "No heat scheduled."}{" "}
+        Refreshes every 20 s.
       </p>
       <div className="toolbar">
         <Link className="chip" href="/" aria-current={!onlyNextHeat}>
@@ -51,12 +60,18 @@ export default async function InspectionQueuePage({ searchParams }: { searchPara
               <div className="muted small">vibration</div>
             </div>
             <ul>
-              {e.reasons.length === 0 ? <li className="muted">Matches its baseline; nothing else open.</li> : e.reasons.map((r) => <li key={r}>{r}</li>)}
+              {e.reasons.length === 0 ? (
+                <li className="muted">Matches its baseline; nothing else open.</li>
+              ) : (
+                e.reasons.map((r) => <li key={r}>{r}</li>)
+              )}
             </ul>
           </li>
         ))}
       </ol>
-      {entries.length === 0 ? <p className="muted">No airframes yet: add them on the Fleet screen.</p> : null}
+      {entries.length === 0 ? (
+        <p className="muted">No airframes yet: add them on the Fleet screen.</p>
+      ) : null}
       <Caution />
     </>
   );

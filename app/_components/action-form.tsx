@@ -17,13 +17,25 @@ export interface ActionFormProps {
 const IDLE: ActionState = { ok: false, message: "" };
 
 /** A form bound to a server action: shows the outcome and each field's message. */
-export function ActionForm({ action, submitLabel, children, className = "stack", danger = false, testId, compact = false }: ActionFormProps) {
+export function ActionForm({
+  action,
+  submitLabel,
+  children,
+  className = "stack",
+  danger = false,
+  testId,
+  compact = false,
+}: ActionFormProps) {
   const [state, formAction, pending] = useActionState(action, IDLE);
   if (compact) {
     return (
       <form action={formAction} className="inline-form" data-testid={testId}>
         {children}
-        <button type="submit" disabled={pending} className={danger ? "danger small" : "secondary small"}>
+        <button
+          type="submit"
+          disabled={pending}
+          className={danger ? "danger small" : "secondary small"}
+        >
           {pending ? "…" : submitLabel}
         </button>
         {state.message ? (

@@ -18,7 +18,9 @@ export function FindingsCard({ title, assessment, notJudged, fileName }: Finding
       {!assessment ? (
         <p className="muted">{notJudged}</p>
       ) : assessment.findings.length === 0 ? (
-        <p>No change from the baseline beyond the watch thresholds{fileName ? ` (${fileName})` : ""}.</p>
+        <p>
+          No change from the baseline beyond the watch thresholds{fileName ? ` (${fileName})` : ""}.
+        </p>
       ) : (
         <table>
           <thead>
@@ -32,7 +34,13 @@ export function FindingsCard({ title, assessment, notJudged, fileName }: Finding
           <tbody>
             {assessment.findings.map((f) => (
               <tr key={`${f.kind}-${f.axis}-${f.freqHz}`}>
-                <td>{f.repair ? <span className="tag">after repair</span> : <StatusBadge status={f.severity} />}</td>
+                <td>
+                  {f.repair ? (
+                    <span className="tag">after repair</span>
+                  ) : (
+                    <StatusBadge status={f.severity} />
+                  )}
+                </td>
                 <td className="num">−{Math.round(f.points)}</td>
                 <td>{f.axis}</td>
                 <td>{f.text}</td>
@@ -42,7 +50,9 @@ export function FindingsCard({ title, assessment, notJudged, fileName }: Finding
         </table>
       )}
       {assessment && assessment.notCompared.length > 0 ? (
-        <p className="muted small">Not compared: {assessment.notCompared.map((n) => `${n.what} (${n.reason})`).join("; ")}.</p>
+        <p className="muted small">
+          Not compared: {assessment.notCompared.map((n) => `${n.what} (${n.reason})`).join("; ")}.
+        </p>
       ) : null}
       <Caution compact />
     </section>

@@ -8,7 +8,8 @@ export interface SparklineProps {
 
 /** Score trend, oldest to newest, on a fixed 0–100 scale. */
 export function Sparkline({ scores }: SparklineProps) {
-  if (scores.length < 2) return <span className="muted small">{scores.length === 1 ? "one log" : "–"}</span>;
+  if (scores.length < 2)
+    return <span className="muted small">{scores.length === 1 ? "one log" : "–"}</span>;
   const data = scores.map((s, i) => ({ i, s }));
   return (
     <LineChart width={120} height={32} data={data} data-testid="sparkline">

@@ -25,7 +25,16 @@ export function SpectraGrid({ analysis, spectra, currentLabel }: SpectraGridProp
         {AXES.map((axis) => (
           <div className="card" key={axis}>
             <h3 style={{ marginTop: 0 }}>{axis}</h3>
-            <SpectrumChart axis={axis} currentLabel={currentLabel} points={spectra[axis]} peaks={(analysis?.axes[axis].peaks ?? []).map((p) => ({ freqHz: Math.round(p.freqHz * 10) / 10, levelDb: p.levelDb, kind: p.kind }))} />
+            <SpectrumChart
+              axis={axis}
+              currentLabel={currentLabel}
+              points={spectra[axis]}
+              peaks={(analysis?.axes[axis].peaks ?? []).map((p) => ({
+                freqHz: Math.round(p.freqHz * 10) / 10,
+                levelDb: p.levelDb,
+                kind: p.kind,
+              }))}
+            />
           </div>
         ))}
       </div>
@@ -54,7 +63,11 @@ export function ThrottleMapCard({ analysis, axis, href }: ThrottleMapCardProps) 
       <div className="card">
         {analysis ? (
           <ThrottleHeatmap
-            rows={analysis.throttleBands.map((b) => ({ label: throttleBandLabel(b.lo, b.hi), seconds: b.segments >= DEFAULT_ANALYSIS.minBandSegments ? b.seconds : 0, db: b.axes[axis].psdDb }))}
+            rows={analysis.throttleBands.map((b) => ({
+              label: throttleBandLabel(b.lo, b.hi),
+              seconds: b.segments >= DEFAULT_ANALYSIS.minBandSegments ? b.seconds : 0,
+              db: b.axes[axis].psdDb,
+            }))}
             binHz={analysis.settings.binHz}
             fromHz={analysis.settings.minFreqHz}
             toHz={analysis.settings.maxFreqHz}

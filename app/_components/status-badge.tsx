@@ -1,7 +1,12 @@
 import type { Status } from "@/lib/health/thresholds";
 
 const GLYPH: Record<Status, string> = { ok: "✓", watch: "◐", inspect: "!", ground: "✕" };
-const WORD: Record<Status, string> = { ok: "ok", watch: "watch", inspect: "inspect", ground: "ground" };
+const WORD: Record<Status, string> = {
+  ok: "ok",
+  watch: "watch",
+  inspect: "inspect",
+  ground: "ground",
+};
 
 export interface StatusBadgeProps {
   status: Status;

@@ -30,7 +30,10 @@ export function ThrottleHeatmap({ rows, binHz, fromHz, toHz }: ThrottleHeatmapPr
     }
     return values;
   });
-  const all = cells.flat().filter(Number.isFinite).sort((a, b) => a - b);
+  const all = cells
+    .flat()
+    .filter(Number.isFinite)
+    .sort((a, b) => a - b);
   const lo = all[Math.floor(all.length * 0.05)] ?? 0;
   const hi = all[Math.floor(all.length * 0.995)] ?? 1;
   const width = 760;
@@ -40,19 +43,41 @@ export function ThrottleHeatmap({ rows, binHz, fromHz, toHz }: ThrottleHeatmapPr
   const cw = (width - left) / cols;
   const height = used.length * rowH + 26;
   const spacing = toHz > 1200 ? 250 : 100;
-  const ticks = Array.from({ length: Math.floor(toHz / spacing) }, (_, i) => (i + 1) * spacing).filter((f) => f >= fromHz && f <= toHz);
+  const ticks = Array.from(
+    { length: Math.floor(toHz / spacing) },
+    (_, i) => (i + 1) * spacing,
+  ).filter((f) => f >= fromHz && f <= toHz);
   return (
     <figure style={{ margin: 0 }}>
-      <svg viewBox={`0 0 ${width} ${height}`} width="100%" role="img" aria-label="throttle by frequency vibration map" data-testid="heatmap">
+      <svg
+        viewBox={`0 0 ${width} ${height}`}
+        width="100%"
+        role="img"
+        aria-label="throttle by frequency vibration map"
+        data-testid="heatmap"
+      >
         {[...used].reverse().map((r, ri) => {
           const values = cells[used.length - 1 - ri] ?? [];
           return (
             <g key={r.label}>
-              <text x={left - 6} y={ri * rowH + rowH * 0.65} textAnchor="end" fontSize="11" fill="#56666e">
+              <text
+                x={left - 6}
+                y={ri * rowH + rowH * 0.65}
+                textAnchor="end"
+                fontSize="11"
+                fill="#56666e"
+              >
                 {r.label}
               </text>
               {values.map((v, ci) => (
-                <rect key={ci} x={left + ci * cw} y={ri * rowH} width={cw + 0.5} height={rowH - 1} fill={Number.isFinite(v) ? colour((v - lo) / (hi - lo)) : "#eee"} />
+                <rect
+                  key={ci}
+                  x={left + ci * cw}
+                  y={ri * rowH}
+                  width={cw + 0.5}
+                  height={rowH - 1}
+                  fill={Number.isFinite(v) ? colour((v - lo) / (hi - lo)) : "#eee"}
+                />
               ))}
             </g>
           );
@@ -68,7 +93,14 @@ export function ThrottleHeatmap({ rows, binHz, fromHz, toHz }: ThrottleHeatmapPr
       </svg>
       <figcaption className="heatmap-legend">
         throttle (rows) × frequency (linear); colour from {lo.toFixed(0)} dB
-        <span style={{ display: "inline-block", width: 120, height: 10, background: `linear-gradient(90deg, ${LEGEND})` }} />
+        <span
+          style={{
+            display: "inline-block",
+            width: 120,
+            height: 10,
+            background: `linear-gradient(90deg, ${LEGEND})`,
+          }}
+        />
         to {hi.toFixed(0)} dB
       </figcaption>
     </figure>

@@ -21,7 +21,10 @@ export default async function WelcomePage() {
       <div className="card">
         <h1>Welcome, {user.name}</h1>
         {invitations.length === 0 ? (
-          <p>You are not a member of any team. Ask a team owner to invite {user.email}; the invitation shows here.</p>
+          <p>
+            You are not a member of any team. Ask a team owner to invite {user.email}; the
+            invitation shows here.
+          </p>
         ) : (
           <ul className="stack" data-testid="invitations">
             {invitations.map((i) => (

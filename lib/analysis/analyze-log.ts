@@ -19,6 +19,10 @@ export async function analyzeLog(
 }
 
 /** A byte source over an in-memory buffer, in chunks as a file stream would deliver them. */
-export async function* bytesSource(bytes: Uint8Array, chunkSize = 1 << 16): AsyncGenerator<Uint8Array> {
-  for (let i = 0; i < bytes.length; i += chunkSize) yield bytes.subarray(i, Math.min(bytes.length, i + chunkSize));
+export async function* bytesSource(
+  bytes: Uint8Array,
+  chunkSize = 1 << 16,
+): AsyncGenerator<Uint8Array> {
+  for (let i = 0; i < bytes.length; i += chunkSize)
+    yield bytes.subarray(i, Math.min(bytes.length, i + chunkSize));
 }

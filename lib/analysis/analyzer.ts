@@ -1,10 +1,23 @@
 import { LogFormatError } from "../errors";
 import { AXES, type Axis } from "../logs/columns";
 import type { Gap, LogInfo, LogSink, ReadSummary, SampleBlock } from "../logs/read-log";
-import { arrayToDb, bandBins, bandPower, noiseFloor, toDb, type FrequencyBand } from "../signal/bands";
+import {
+  arrayToDb,
+  bandBins,
+  bandPower,
+  noiseFloor,
+  toDb,
+  type FrequencyBand,
+} from "../signal/bands";
 import { spectralPeaks } from "../signal/peaks";
 import { round } from "../signal/stats";
-import { SegmentPeriodogram, defaultNperseg, medianAcross, medianBias, resolveWelchOptions } from "../signal/welch";
+import {
+  SegmentPeriodogram,
+  defaultNperseg,
+  medianAcross,
+  medianBias,
+  resolveWelchOptions,
+} from "../signal/welch";
 import { classifyPeaks } from "./classify";
 import { MASK_REASONS, OrderTracker, type MaskReason, type OrderBlock } from "./order-tracker";
 import {
@@ -138,8 +151,12 @@ export class LogAnalyzer implements LogSink {
       rpmSum: new Float64Array(motors),
       motorBlocks: new Float64Array(motors),
       maskedBlocks: new Float64Array(motors),
-      orderPowerSum: Array.from({ length: motors }, () => this.orders.map(() => new Float64Array(3))),
-      orderSideSum: Array.from({ length: motors }, () => this.orders.map(() => new Float64Array(3))),
+      orderPowerSum: Array.from({ length: motors }, () =>
+        this.orders.map(() => new Float64Array(3)),
+      ),
+      orderSideSum: Array.from({ length: motors }, () =>
+        this.orders.map(() => new Float64Array(3)),
+      ),
       orderCount: Array.from({ length: motors }, () => new Float64Array(this.orders.length)),
       orderBlocks: 0,
     }));
@@ -167,7 +184,9 @@ export class LogAnalyzer implements LogSink {
   }
 
   private orderBlock(b: OrderBlock): void {
-    const acc = this.accumulators[throttleBandOf(b.throttle, this.throttleBandCount)] as BandAccumulator;
+    const acc = this.accumulators[
+      throttleBandOf(b.throttle, this.throttleBandCount)
+    ] as BandAccumulator;
     acc.orderBlocks++;
     this.blocksSeen++;
     const one = this.orders.findIndex((o) => o.order === 1);
@@ -197,7 +216,11 @@ export class LogAnalyzer implements LogSink {
         }
         if (j === one) order1Max = Math.max(power[0] ?? 0, power[1] ?? 0, power[2] ?? 0);
       });
-      this.tracks[m]?.push({ tS: b.tS, rotationHz: b.rotationHz[m] ?? 0, order1Db: Number.isNaN(order1Max) ? Number.NaN : toDb(order1Max) });
+      this.tracks[m]?.push({
+        tS: b.tS,
+        rotationHz: b.rotationHz[m] ?? 0,
+        order1Db: Number.isNaN(order1Max) ? Number.NaN : toDb(order1Max),
+      });
     }
   }
 
@@ -207,7 +230,8 @@ export class LogAnalyzer implements LogSink {
     const buffers = this.buffers;
     const throttle = block.throttle;
     const bandCount = this.throttleBandCount;
-    for (let a = 0; a < 3; a++) trackExtremes(this.signal[a] as SignalStats, block.gyro[a] as Float64Array, n);
+    for (let a = 0; a < 3; a++)
+      trackExtremes(this.signal[a] as SignalStats, block.gyro[a] as Float64Array, n);
     for (let i = 0; i < n; i++) {
       if (this.fill === 0) this.bufferStartS = block.timeS[i] ?? 0;
       const f = this.fill;
@@ -241,7 +265,9 @@ export class LogAnalyzer implements LogSink {
     let thrMean = 0;
     for (let i = 0; i < n; i++) thrMean += thrBuf[i] ?? 0;
     thrMean /= n;
-    const acc = this.accumulators[throttleBandOf(thrMean, this.throttleBandCount)] as BandAccumulator;
+    const acc = this.accumulators[
+      throttleBandOf(thrMean, this.throttleBandCount)
+    ] as BandAccumulator;
     acc.segments++;
     acc.throttleSum += thrMean;
     for (let a = 0; a < 3; a++) {
@@ -317,7 +343,10 @@ export class LogAnalyzer implements LogSink {
           psdDb: Array.from(db, (v) => round(v, 2)),
           bandDb: bandDb.map((v) => round(v, 3)),
           bandSpreadDb: bandSpreadDb.map((v) => round(v, 3)),
-          floorDb: acc.segments > 0 ? round(toDb(noiseFloor(mean, binHz, corner, this.maxFreqHz)), 3) : Number.NaN,
+          floorDb:
+            acc.segments > 0
+              ? round(toDb(noiseFloor(mean, binHz, corner, this.maxFreqHz)), 3)
+              : Number.NaN,
           peaks:
             acc.segments >= this.settings.minBandSegments
               ? spectralPeaks(db, binHz, {
@@ -346,7 +375,12 @@ export class LogAnalyzer implements LogSink {
               powerDb[axis] = clear > 0 ? round(toDb((sums[a] ?? 0) / clear), 3) : Number.NaN;
               sideDb[axis] = clear > 0 ? round(toDb((sideSums[a] ?? 0) / clear), 3) : Number.NaN;
             });
-            const level: OrderLevel = { order: o.order, label: o.label, freqHz: round((meanRpm / 60) * o.order, 2), powerDb };
+            const level: OrderLevel = {
+              order: o.order,
+              label: o.label,
+              freqHz: round((meanRpm / 60) * o.order, 2),
+              powerDb,
+            };
             if (Number.isInteger(o.order)) level.sideDb = sideDb;
             return level;
           }),
@@ -367,11 +401,25 @@ export class LogAnalyzer implements LogSink {
     const axes = {} as Record<Axis, AxisResult>;
     AXES.forEach((axis, a) => {
       const psd = psdOverall[a] as Float64Array;
-      const signal = checkSignal(this.signal[a] as SignalStats, summary.samples, psd, binHz, this.settings.minFreqHz, this.maxFreqHz);
+      const signal = checkSignal(
+        this.signal[a] as SignalStats,
+        summary.samples,
+        psd,
+        binHz,
+        this.settings.minFreqHz,
+        this.maxFreqHz,
+      );
       if (!signal.usable) {
         // Nothing of this axis is judged; its spectrum is kept only where it is a number.
         for (let k = 0; k < bins; k++) if (!Number.isFinite(psd[k])) psd[k] = 0;
-        axes[axis] = { signal, psd: Array.from(psd), peaks: [], bandPower: this.bands.map(() => 0), floorDb: Number.NaN, rmsDegS: 0 };
+        axes[axis] = {
+          signal,
+          psd: Array.from(psd),
+          peaks: [],
+          bandPower: this.bands.map(() => 0),
+          floorDb: Number.NaN,
+          rmsDegS: 0,
+        };
         return;
       }
       const db = arrayToDb(psd);
@@ -387,13 +435,16 @@ export class LogAnalyzer implements LogSink {
         peaks: classifyPeaks(peaks, axis, usable, binHz),
         bandPower: this.bands.map((b) => bandPower(psd, binHz, b)),
         floorDb: round(toDb(noiseFloor(psd, binHz, corner, this.maxFreqHz)), 3),
-        rmsDegS: Math.sqrt(bandPower(psd, binHz, { loHz: this.settings.minFreqHz, hiHz: this.maxFreqHz })),
+        rmsDegS: Math.sqrt(
+          bandPower(psd, binHz, { loHz: this.settings.minFreqHz, hiHz: this.maxFreqHz }),
+        ),
       };
     });
 
     const motors: MotorSummary[] = info.motors.map((motor, m) => {
       const track = this.tracks[m] ?? [];
-      const meanRpm = track.length > 0 ? (track.reduce((s, p) => s + p.rotationHz, 0) / track.length) * 60 : 0;
+      const meanRpm =
+        track.length > 0 ? (track.reduce((s, p) => s + p.rotationHz, 0) / track.length) * 60 : 0;
       const masked = this.masked[m] ?? { zero: 0, range: 0, stuck: 0, slew: 0 };
       const maskedBlocks = MASK_REASONS.reduce((s, r) => s + masked[r], 0);
       return {
@@ -456,7 +507,14 @@ function trackExtremes(st: SignalStats, x: Float64Array, n: number): void {
 }
 
 /** Whether a gyro axis carries a signal worth comparing ({@link SIGNAL_CHECKS}). */
-function checkSignal(st: SignalStats, samples: number, psd: Float64Array, binHz: number, loHz: number, hiHz: number): SignalCheck {
+function checkSignal(
+  st: SignalStats,
+  samples: number,
+  psd: Float64Array,
+  binHz: number,
+  loHz: number,
+  hiHz: number,
+): SignalCheck {
   const n = Math.max(1, samples);
   const clippedShare = st.max === st.min ? 1 : Math.max(st.atMax, st.atMin) / n;
   const base = { clippedShare: round(clippedShare, 4), minDegS: st.min, maxDegS: st.max };
@@ -464,18 +522,38 @@ function checkSignal(st: SignalStats, samples: number, psd: Float64Array, binHz:
   let finite = true;
   for (let k = 0; k < psd.length; k++) if (!Number.isFinite(psd[k])) finite = false;
   if (!finite || !(peak <= SIGNAL_CHECKS.maxPlausibleDegS)) {
-    return { ...base, usable: false, problem: "out-of-range", text: `values reach ${peak.toPrecision(3)} deg/s, beyond any rate gyro's range (a broken cell or a wrong unit)` };
+    return {
+      ...base,
+      usable: false,
+      problem: "out-of-range",
+      text: `values reach ${peak.toPrecision(3)} deg/s, beyond any rate gyro's range (a broken cell or a wrong unit)`,
+    };
   }
   if (st.max === st.min) {
-    return { ...base, usable: false, problem: "constant", text: `every sample is ${st.max} deg/s: the gyro was not recording or is stuck` };
+    return {
+      ...base,
+      usable: false,
+      problem: "constant",
+      text: `every sample is ${st.max} deg/s: the gyro was not recording or is stuck`,
+    };
   }
   const rms = Math.sqrt(bandPower(psd, binHz, { loHz, hiHz }));
   if (!(rms >= SIGNAL_CHECKS.flatRmsDegS)) {
-    return { ...base, usable: false, problem: "flat", text: `vibration above ${loHz} Hz is only ${rms.toPrecision(2)} deg/s rms, less than one step of a gyro: no signal to judge` };
+    return {
+      ...base,
+      usable: false,
+      problem: "flat",
+      text: `vibration above ${loHz} Hz is only ${rms.toPrecision(2)} deg/s rms, less than one step of a gyro: no signal to judge`,
+    };
   }
   if (clippedShare >= SIGNAL_CHECKS.clippedShare) {
     const at = st.atMax >= st.atMin ? st.max : st.min;
-    return { ...base, usable: false, problem: "clipped", text: `${(clippedShare * 100).toFixed(1)} % of the samples sit at ${at} deg/s: the gyro is saturated (clipped), which spreads false vibration over the spectrum` };
+    return {
+      ...base,
+      usable: false,
+      problem: "clipped",
+      text: `${(clippedShare * 100).toFixed(1)} % of the samples sit at ${at} deg/s: the gyro is saturated (clipped), which spreads false vibration over the spectrum`,
+    };
   }
   return { ...base, usable: true };
 }

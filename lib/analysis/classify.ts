@@ -42,7 +42,9 @@ type Sighting = { band: ThrottleBandResult; freqHz: number };
 
 /** Whether a sighting sits on one of that band's motor orders. */
 function onAnOrder({ band, freqHz }: Sighting): boolean {
-  return band.motors.some((m) => m.orders.some((o) => Math.abs(o.freqHz - freqHz) <= ORDER_MATCH_FRACTION * freqHz));
+  return band.motors.some((m) =>
+    m.orders.some((o) => Math.abs(o.freqHz - freqHz) <= ORDER_MATCH_FRACTION * freqHz),
+  );
 }
 
 function kindOf(p: SpectralPeak, sightings: Sighting[]): PeakKind {

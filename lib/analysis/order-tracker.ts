@@ -200,7 +200,8 @@ export class OrderTracker {
       if (this.fill === 0) this.startS = timeS[i] ?? 0;
       const run = Math.min(n - i, this.blockLength - this.fill);
       if (throttle) for (let j = i; j < i + run; j++) this.throttleSum += throttle[j] ?? 0;
-      for (let m = 0; m < this.motors; m++) this.accumulate(m, i, run, gyro, rpm[m] as Float64Array);
+      for (let m = 0; m < this.motors; m++)
+        this.accumulate(m, i, run, gyro, rpm[m] as Float64Array);
       this.fill += run;
       this.sampleIndex += run;
       i += run;
@@ -212,7 +213,13 @@ export class OrderTracker {
    * One motor over samples [from, from+run) of the current block: the hot path (motors × orders
    * × axes per sample). The phasor, the rpm checks and the sum of rpm live in local variables.
    */
-  private accumulate(m: number, from: number, run: number, gyro: readonly Float64Array[], rpm: Float64Array): void {
+  private accumulate(
+    m: number,
+    from: number,
+    run: number,
+    gyro: readonly Float64Array[],
+    rpm: Float64Array,
+  ): void {
     const w = this.window;
     const g0 = gyro[0] as Float64Array;
     const g1 = gyro[1] as Float64Array;
@@ -353,7 +360,15 @@ export class OrderTracker {
     for (let m = 0; m < this.motors; m++) {
       const flags = this.flags[m] ?? 0;
       const reason: MaskReason | null =
-        flags & ZERO ? "zero" : flags & RANGE ? "range" : flags & SLEW ? "slew" : anyChanged && this.changed[m] === 0 ? "stuck" : null;
+        flags & ZERO
+          ? "zero"
+          : flags & RANGE
+            ? "range"
+            : flags & SLEW
+              ? "slew"
+              : anyChanged && this.changed[m] === 0
+                ? "stuck"
+                : null;
       out.masked[m] = reason;
       const f1 = reason ? Number.NaN : (this.rpmSum[m] ?? 0) / len / 60;
       out.rotationHz[m] = f1;
@@ -387,7 +402,13 @@ export class OrderTracker {
           p[a] = Number.NaN;
           side[a] = Number.NaN;
           if (!measured) continue;
-          const spectrum = zoom.powers(this.subRe[m] as Float64Array, this.subIm[m] as Float64Array, subs, width, o * 3 + a);
+          const spectrum = zoom.powers(
+            this.subRe[m] as Float64Array,
+            this.subIm[m] as Float64Array,
+            subs,
+            width,
+            o * 3 + a,
+          );
           if (whole) {
             // The order's level is the energy of the core of the main lobe around it.
             let lobe = spectrum[0] ?? 0;

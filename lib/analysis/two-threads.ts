@@ -1,6 +1,13 @@
 import { Worker, isMainThread, parentPort, workerData } from "node:worker_threads";
 import { LogFormatError } from "../errors";
-import type { Gap, LogInfo, LogSink, ReadOptions, ReadSummary, SampleBlock } from "../logs/read-log";
+import type {
+  Gap,
+  LogInfo,
+  LogSink,
+  ReadOptions,
+  ReadSummary,
+  SampleBlock,
+} from "../logs/read-log";
 import { readLog } from "../logs/read-log";
 import { LogAnalyzer } from "./analyzer";
 import type { AnalysisSettings } from "./settings";
@@ -44,10 +51,19 @@ type ToWorker =
   | { type: "finish"; summary: ReadSummary };
 
 /** The ack hands the batch's buffers back, so the two threads pass a few buffer sets to and fro. */
-type FromWorker = { type: "ack"; block: SampleBlock } | { type: "done"; analysis: LogAnalysis } | { type: "failed"; message: string; badInput: boolean };
+type FromWorker =
+  | { type: "ack"; block: SampleBlock }
+  | { type: "done"; analysis: LogAnalysis }
+  | { type: "failed"; message: string; badInput: boolean };
 
 function buffersOf(b: SampleBlock): ArrayBuffer[] {
-  return [b.timeS, ...b.gyro, ...(b.throttle ? [b.throttle] : []), ...b.rpm, ...(b.setpoint ?? [])].map((a) => a.buffer as ArrayBuffer);
+  return [
+    b.timeS,
+    ...b.gyro,
+    ...(b.throttle ? [b.throttle] : []),
+    ...b.rpm,
+    ...(b.setpoint ?? []),
+  ].map((a) => a.buffer as ArrayBuffer);
 }
 
 export interface TwoThreadOptions extends ReadOptions {
@@ -88,28 +104,34 @@ export async function analyzeLogInTwoThreads(
     // Under tsx the entry is TypeScript, and a worker does not inherit tsx's loader: register it
     // in the worker first, then load the entry.
     const w = entry.pathname.endsWith(".ts")
-      ? new Worker(`import("tsx/esm/api").then((tsx) => { tsx.register(); return import(${JSON.stringify(entry.href)}); });`, { eval: true, workerData: { role: ROLE } })
+      ? new Worker(
+          `import("tsx/esm/api").then((tsx) => { tsx.register(); return import(${JSON.stringify(entry.href)}); });`,
+          { eval: true, workerData: { role: ROLE } },
+        )
       : new Worker(entry, { workerData: { role: ROLE } });
     listen(w);
     return w;
   };
-  const listen = (w: Worker) => w.on("message", (m: FromWorker) => {
-    if (m.type === "ack") {
-      inFlight--;
-      free.push(m.block);
-      wake?.();
-    } else if (m.type === "done") {
-      resolveDone(m.analysis);
-    } else {
-      failure = m.badInput ? new LogFormatError(m.message) : new Error(m.message);
-      rejectDone(failure);
-      wake?.();
-    }
-  }).on("error", (e) => {
-    failure = e;
-    rejectDone(e);
-    wake?.();
-  });
+  const listen = (w: Worker) =>
+    w
+      .on("message", (m: FromWorker) => {
+        if (m.type === "ack") {
+          inFlight--;
+          free.push(m.block);
+          wake?.();
+        } else if (m.type === "done") {
+          resolveDone(m.analysis);
+        } else {
+          failure = m.badInput ? new LogFormatError(m.message) : new Error(m.message);
+          rejectDone(failure);
+          wake?.();
+        }
+      })
+      .on("error", (e) => {
+        failure = e;
+        rejectDone(e);
+        wake?.();
+      });
   const post = (m: ToWorker, transfer: ArrayBuffer[] = []) => {
     thread.worker ??= startWorker();
     thread.worker.postMessage(m, transfer);
@@ -167,7 +189,8 @@ export async function analyzeLogInTwoThreads(
         b.gyro.forEach((g, a) => into.gyro[a]?.set(g.subarray(from, from + n), at));
         if (b.throttle) into.throttle?.set(b.throttle.subarray(from, from + n), at);
         b.rpm.forEach((r, m) => into.rpm[m]?.set(r.subarray(from, from + n), at));
-        if (b.setpoint) b.setpoint.forEach((s, a) => into.setpoint?.[a]?.set(s.subarray(from, from + n), at));
+        if (b.setpoint)
+          b.setpoint.forEach((s, a) => into.setpoint?.[a]?.set(s.subarray(from, from + n), at));
         into.length += n;
         from += n;
         if (into.length === BATCH_ROWS || current.gaps.length >= BATCH_GAPS) send();
@@ -178,7 +201,8 @@ export async function analyzeLogInTwoThreads(
   async function* paced(): AsyncGenerator<Uint8Array> {
     for await (const chunk of source) {
       for (let at = 0; at < chunk.length; at += PIECE_BYTES) {
-        while (inFlight > MAX_IN_FLIGHT && !failure) await new Promise<void>((resolve) => (wake = resolve));
+        while (inFlight > MAX_IN_FLIGHT && !failure)
+          await new Promise<void>((resolve) => (wake = resolve));
         if (failure) return;
         yield chunk.subarray(at, Math.min(chunk.length, at + PIECE_BYTES));
       }
@@ -211,12 +235,22 @@ export function runAnalysisThreadIfWorker(): boolean {
         analyzer.begin(m.info);
       } else if (m.type === "batch") {
         if (analyzer) replay(analyzer, m.batch);
-        port.postMessage({ type: "ack", block: m.batch.block } satisfies FromWorker, buffersOf(m.batch.block));
+        port.postMessage(
+          { type: "ack", block: m.batch.block } satisfies FromWorker,
+          buffersOf(m.batch.block),
+        );
       } else if (analyzer) {
-        port.postMessage({ type: "done", analysis: analyzer.finish(m.summary) } satisfies FromWorker);
+        port.postMessage({
+          type: "done",
+          analysis: analyzer.finish(m.summary),
+        } satisfies FromWorker);
       }
     } catch (e) {
-      port.postMessage({ type: "failed", message: e instanceof Error ? e.message : String(e), badInput: e instanceof LogFormatError } satisfies FromWorker);
+      port.postMessage({
+        type: "failed",
+        message: e instanceof Error ? e.message : String(e),
+        badInput: e instanceof LogFormatError,
+      } satisfies FromWorker);
     }
   });
   return true;

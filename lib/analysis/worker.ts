@@ -17,7 +17,10 @@ export type WorkerMessage =
   | { type: "done"; jobId: string; analysisJson: string }
   | { type: "failed"; jobId: string; message: string; badInput: boolean };
 
-async function* withProgress(path: string, onFraction: (f: number) => void): AsyncGenerator<Uint8Array> {
+async function* withProgress(
+  path: string,
+  onFraction: (f: number) => void,
+): AsyncGenerator<Uint8Array> {
   const total = statSync(path).size || 1;
   let read = 0;
   let reported = 0;
@@ -38,7 +41,11 @@ export async function runJob(job: AnalysisJob, post: (m: WorkerMessage) => void)
       withProgress(job.path, (fraction) => post({ type: "progress", jobId: job.jobId, fraction })),
       { map, maxBytes: job.maxBytes },
     );
-    post({ type: "done", jobId: job.jobId, analysisJson: JSON.stringify(analysis, compactNumbers) });
+    post({
+      type: "done",
+      jobId: job.jobId,
+      analysisJson: JSON.stringify(analysis, compactNumbers),
+    });
   } catch (e) {
     post({
       type: "failed",
@@ -51,5 +58,7 @@ export async function runJob(job: AnalysisJob, post: (m: WorkerMessage) => void)
 
 /** Spectra are stored with 5 significant digits: far finer than any finding needs. */
 function compactNumbers(_key: string, value: unknown): unknown {
-  return typeof value === "number" && Number.isFinite(value) && !Number.isInteger(value) ? Number(value.toPrecision(5)) : value;
+  return typeof value === "number" && Number.isFinite(value) && !Number.isInteger(value)
+    ? Number(value.toPrecision(5))
+    : value;
 }

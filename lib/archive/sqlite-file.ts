@@ -17,7 +17,10 @@ export interface SqliteDatabase {
   backup(destination: string): Promise<unknown>;
   close(): void;
 }
-type Open = new (file: string, options?: { readonly?: boolean; fileMustExist?: boolean }) => SqliteDatabase;
+type Open = new (
+  file: string,
+  options?: { readonly?: boolean; fileMustExist?: boolean },
+) => SqliteDatabase;
 
 const require = createRequire(import.meta.url);
 const Database = require("better-sqlite3") as Open;

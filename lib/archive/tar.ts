@@ -22,8 +22,16 @@ export interface TarEntry {
 
 /** Refuses names that could land outside the folder they are extracted into. */
 export function safeEntryName(name: string): string {
-  const clean = name.replace(/\\/g, "/").replace(/^\.\/+/, "").replace(/\/+$/, "");
-  if (clean === "" || clean.startsWith("/") || /^[A-Za-z]:/.test(clean) || clean.split("/").some((p) => p === ".." || p === "")) {
+  const clean = name
+    .replace(/\\/g, "/")
+    .replace(/^\.\/+/, "")
+    .replace(/\/+$/, "");
+  if (
+    clean === "" ||
+    clean.startsWith("/") ||
+    /^[A-Za-z]:/.test(clean) ||
+    clean.split("/").some((p) => p === ".." || p === "")
+  ) {
     throw new Error(`the archive holds an unsafe path: ${JSON.stringify(name)}`);
   }
   return clean;
@@ -31,7 +39,8 @@ export function safeEntryName(name: string): string {
 
 function octal(value: number, width: number): string {
   const s = Math.floor(value).toString(8);
-  if (s.length > width - 1) throw new Error(`value ${value} does not fit a ${width}-byte tar field`);
+  if (s.length > width - 1)
+    throw new Error(`value ${value} does not fit a ${width}-byte tar field`);
   return s.padStart(width - 1, "0") + "\0";
 }
 
@@ -43,7 +52,8 @@ function header(entry: TarEntry): Buffer {
     const cut = name.lastIndexOf("/", name.length - 2);
     prefix = name.slice(0, cut);
     name = name.slice(cut + 1);
-    if (cut < 0 || Buffer.byteLength(name) > 100 || Buffer.byteLength(prefix) > 155) throw new Error(`name too long for ustar: ${entry.name}`);
+    if (cut < 0 || Buffer.byteLength(name) > 100 || Buffer.byteLength(prefix) > 155)
+      throw new Error(`name too long for ustar: ${entry.name}`);
   }
   h.write(name, 0, 100, "utf8");
   h.write(octal(entry.mode & 0o7777, 8), 100, 8, "ascii");
@@ -95,7 +105,10 @@ export class TarWriter {
     const s = await stat(path);
     await put(this.out, header({ name, type: "file", size: s.size, mode, mtime: s.mtime }));
     let written = 0;
-    for await (const chunk of createReadStream(path, { highWaterMark: 1 << 20, end: s.size > 0 ? s.size - 1 : 0 })) {
+    for await (const chunk of createReadStream(path, {
+      highWaterMark: 1 << 20,
+      end: s.size > 0 ? s.size - 1 : 0,
+    })) {
       const c = chunk as Buffer;
       const take = Math.min(c.length, s.size - written);
       if (take <= 0) break;
@@ -135,8 +148,12 @@ function parseHeader(h: Buffer): TarEntry | null {
   const prefix = field(h, 345, 155);
   const base = field(h, 0, 100);
   const typeFlag = String.fromCharCode(h[156] ?? 48);
-  const type = typeFlag === "5" ? "directory" : typeFlag === "0" || typeFlag === "\0" ? "file" : null;
-  if (!type) throw new Error(`the archive holds an entry of a kind heatcheck does not restore (type ${JSON.stringify(typeFlag)}: ${base})`);
+  const type =
+    typeFlag === "5" ? "directory" : typeFlag === "0" || typeFlag === "\0" ? "file" : null;
+  if (!type)
+    throw new Error(
+      `the archive holds an entry of a kind heatcheck does not restore (type ${JSON.stringify(typeFlag)}: ${base})`,
+    );
   return {
     name: safeEntryName(prefix ? `${prefix}/${base}` : base),
     type,
@@ -175,7 +192,8 @@ export async function readTar(
     let left = entry.type === "file" ? entry.size : 0;
     async function* body(): AsyncGenerator<Uint8Array> {
       while (left > 0) {
-        if (buf.length === 0 && !(await fill(1))) throw new Error(`the archive ends in the middle of ${entry?.name ?? "a file"}`);
+        if (buf.length === 0 && !(await fill(1)))
+          throw new Error(`the archive ends in the middle of ${entry?.name ?? "a file"}`);
         const take = Math.min(left, buf.length);
         const piece = buf.subarray(0, take);
         buf = buf.subarray(take);
@@ -195,7 +213,11 @@ export async function readTar(
 }
 
 /** Writes an entry's bytes to a new file (never over an existing one) with the given mode. */
-export async function writeEntryFile(path: string, body: AsyncIterable<Uint8Array>, mode: number): Promise<number> {
+export async function writeEntryFile(
+  path: string,
+  body: AsyncIterable<Uint8Array>,
+  mode: number,
+): Promise<number> {
   const fh = await open(path, "wx", mode);
   let n = 0;
   try {

@@ -10,7 +10,11 @@ export interface ParsedArgs {
  * Parses `--name value`, `--name=value` and bare `--switch` (for the names in `switches`).
  * Throws UsageError for a flag not in `known` or a flag missing its value.
  */
-export function parseArgs(argv: readonly string[], known: readonly string[], switches: readonly string[] = []): ParsedArgs {
+export function parseArgs(
+  argv: readonly string[],
+  known: readonly string[],
+  switches: readonly string[] = [],
+): ParsedArgs {
   const positionals: string[] = [];
   const flags = new Map<string, string[]>();
   for (let i = 0; i < argv.length; i++) {
@@ -31,7 +35,8 @@ export function parseArgs(argv: readonly string[], known: readonly string[], swi
       value = arg.slice(eq + 1);
     } else {
       const next = argv[i + 1];
-      if (next === undefined || next.startsWith("--")) throw new UsageError(`--${name} needs a value`);
+      if (next === undefined || next.startsWith("--"))
+        throw new UsageError(`--${name} needs a value`);
       value = next;
       i++;
     }
@@ -50,17 +55,31 @@ export function hasSwitch(args: ParsedArgs, name: string): boolean {
 }
 
 /** A numeric flag within [min, max], or the fallback when absent. */
-export function numberFlag(args: ParsedArgs, name: string, fallback: number | undefined, min: number, max: number, integer = false): number | undefined {
+export function numberFlag(
+  args: ParsedArgs,
+  name: string,
+  fallback: number | undefined,
+  min: number,
+  max: number,
+  integer = false,
+): number | undefined {
   const raw = flag(args, name);
   if (raw === undefined) return fallback;
   const v = Number(raw);
   if (!Number.isFinite(v) || v < min || v > max || (integer && !Number.isInteger(v))) {
-    throw new UsageError(`--${name} must be ${integer ? "a whole number" : "a number"} from ${min} to ${max}, got "${raw}"`);
+    throw new UsageError(
+      `--${name} must be ${integer ? "a whole number" : "a number"} from ${min} to ${max}, got "${raw}"`,
+    );
   }
   return v;
 }
 
-export function choiceFlag<T extends string>(args: ParsedArgs, name: string, choices: readonly T[], fallback: T): T {
+export function choiceFlag<T extends string>(
+  args: ParsedArgs,
+  name: string,
+  choices: readonly T[],
+  fallback: T,
+): T {
   const raw = flag(args, name);
   if (raw === undefined) return fallback;
   const found = choices.find((c) => c === raw);

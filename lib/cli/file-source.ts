@@ -19,7 +19,9 @@ export async function fileSource(typed: string): Promise<AsyncIterable<Uint8Arra
     if (!s.isFile()) throw new InputError(`${typed} is not a file`);
   } catch (e) {
     if (e instanceof InputError) throw e;
-    throw new InputError(`cannot read ${typed}: ${(e as NodeJS.ErrnoException).code === "ENOENT" ? "no such file" : (e as Error).message}`);
+    throw new InputError(
+      `cannot read ${typed}: ${(e as NodeJS.ErrnoException).code === "ENOENT" ? "no such file" : (e as Error).message}`,
+    );
   }
   return createReadStream(path, { highWaterMark: 1 << 20 });
 }

@@ -28,7 +28,13 @@ export interface AnalyzeJson {
       rmsDegS: number;
     }
   >;
-  throttleBands: { lo: number; hi: number; seconds: number; segments: number; meanThrottle: number }[];
+  throttleBands: {
+    lo: number;
+    hi: number;
+    seconds: number;
+    segments: number;
+    meanThrottle: number;
+  }[];
   motors: { motor: number; meanRpm: number }[];
 }
 
@@ -66,7 +72,13 @@ export function analyzeJson(a: LogAnalysis): AnalyzeJson {
     guesses: a.guesses,
     settings: a.settings,
     axes,
-    throttleBands: a.throttleBands.map((b) => ({ lo: b.lo, hi: b.hi, seconds: b.seconds, segments: b.segments, meanThrottle: b.meanThrottle })),
+    throttleBands: a.throttleBands.map((b) => ({
+      lo: b.lo,
+      hi: b.hi,
+      seconds: b.seconds,
+      segments: b.segments,
+      meanThrottle: b.meanThrottle,
+    })),
     motors: a.motors.map((m) => ({ motor: m.motor, meanRpm: m.meanRpm })),
   };
 }

@@ -45,16 +45,35 @@ export interface CliOptions {
 const ANALYSIS_FLAGS = ["nperseg", "overlap", "window", "average", "map", "max-mb"];
 
 /** Runs one CLI command and returns its exit code. Never throws. */
-export async function runCli(argv: readonly string[], io: CliIo, cli: CliOptions = {}): Promise<number> {
+export async function runCli(
+  argv: readonly string[],
+  io: CliIo,
+  cli: CliOptions = {},
+): Promise<number> {
   const [command, ...rest] = argv;
   try {
     switch (command) {
       case "analyze":
         return await analyzeCommand(parseArgs(rest, ANALYSIS_FLAGS, ["json"]), io, cli);
       case "compare":
-        return await compareCommand(parseArgs(rest, [...ANALYSIS_FLAGS, "baseline"], ["json"]), io, cli);
+        return await compareCommand(
+          parseArgs(rest, [...ANALYSIS_FLAGS, "baseline"], ["json"]),
+          io,
+          cli,
+        );
       case "demo-log":
-        return demoLogCommand(parseArgs(rest, ["scenario", "severity", "seed", "duration", "rate", "style", "airframe"]), io);
+        return demoLogCommand(
+          parseArgs(rest, [
+            "scenario",
+            "severity",
+            "seed",
+            "duration",
+            "rate",
+            "style",
+            "airframe",
+          ]),
+          io,
+        );
       case undefined:
       case "help":
       case "--help":
@@ -97,10 +116,16 @@ function analyzeOptions(args: ParsedArgs): AnalyzeOptions {
   };
 }
 
-async function analyzeFile(path: string, options: AnalyzeOptions, cli: CliOptions): Promise<{ analysis: LogAnalysis; summary: ReadSummary }> {
+async function analyzeFile(
+  path: string,
+  options: AnalyzeOptions,
+  cli: CliOptions,
+): Promise<{ analysis: LogAnalysis; summary: ReadSummary }> {
   const source = await fileSource(path);
   try {
-    const run = cli.entryUrl ? analyzeLogInTwoThreads(source, { ...options, entryUrl: cli.entryUrl }) : analyzeLog(source, options);
+    const run = cli.entryUrl
+      ? analyzeLogInTwoThreads(source, { ...options, entryUrl: cli.entryUrl })
+      : analyzeLog(source, options);
     return await run;
   } catch (e) {
     // Say which file, since compare reads several.
@@ -117,20 +142,29 @@ function onePositional(args: ParsedArgs, what: string): string {
 async function analyzeCommand(args: ParsedArgs, io: CliIo, cli: CliOptions): Promise<number> {
   const path = onePositional(args, "log file");
   const { analysis, summary } = await analyzeFile(path, analyzeOptions(args), cli);
-  io.stdout(hasSwitch(args, "json") ? JSON.stringify(analyzeJson(analysis)) + "\n" : formatAnalysis(path, analysis, summary.gapCount));
+  io.stdout(
+    hasSwitch(args, "json")
+      ? JSON.stringify(analyzeJson(analysis)) + "\n"
+      : formatAnalysis(path, analysis, summary.gapCount),
+  );
   return 0;
 }
 
 async function compareCommand(args: ParsedArgs, io: CliIo, cli: CliOptions): Promise<number> {
   const path = onePositional(args, "log file to check");
   const baselines = args.flags.get("baseline") ?? [];
-  if (baselines.length === 0) throw new UsageError("compare needs at least one --baseline <known-good log>");
+  if (baselines.length === 0)
+    throw new UsageError("compare needs at least one --baseline <known-good log>");
   const options = analyzeOptions(args);
   const good = [];
   for (const b of baselines) good.push((await analyzeFile(b, options, cli)).analysis);
   const log = (await analyzeFile(path, options, cli)).analysis;
   const assessment = compareAnalyses(log, good);
-  io.stdout(hasSwitch(args, "json") ? JSON.stringify(compareJson(assessment)) + "\n" : formatAssessment(path, assessment));
+  io.stdout(
+    hasSwitch(args, "json")
+      ? JSON.stringify(compareJson(assessment)) + "\n"
+      : formatAssessment(path, assessment),
+  );
   return 0;
 }
 
@@ -153,13 +187,19 @@ function demoLogCommand(args: ParsedArgs, io: CliIo): number {
   try {
     for (const chunk of demoCsvChunks(
       { seed, scenario, severity, durationS, sampleRateHz, style },
-      { airframe, flownAt: new Date(Date.UTC(2026, 10, 28, 14, 5)).toISOString(), note: `demo ${scenario}` },
+      {
+        airframe,
+        flownAt: new Date(Date.UTC(2026, 10, 28, 14, 5)).toISOString(),
+        note: `demo ${scenario}`,
+      },
     )) {
       bytes += writeSync(fd, chunk);
     }
   } finally {
     closeSync(fd);
   }
-  io.stderr(`wrote ${out}: ${durationS} s at ${sampleRateHz} Hz, scenario ${scenario}${scenario === "healthy" ? "" : ` (severity ${severity})`}, ${(bytes / 1e6).toFixed(1)} MB\n`);
+  io.stderr(
+    `wrote ${out}: ${durationS} s at ${sampleRateHz} Hz, scenario ${scenario}${scenario === "healthy" ? "" : ` (severity ${severity})`}, ${(bytes / 1e6).toFixed(1)} MB\n`,
+  );
   return 0;
 }

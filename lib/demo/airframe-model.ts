@@ -42,16 +42,60 @@ export interface AirframeModel {
 
 export const HOUSE_FRAME: AirframeModel = {
   modes: [
-    { name: "roll bending", coupling: { roll: 1, pitch: 0.12, yaw: 0.05 }, freqHz: 174, q: 14, gain: 5 },
-    { name: "pitch bending", coupling: { roll: 0.1, pitch: 1, yaw: 0.05 }, freqHz: 236, q: 16, gain: 6 },
-    { name: "arm torsion", coupling: { roll: 0.08, pitch: 0.08, yaw: 1 }, freqHz: 312, q: 12, gain: 4 },
-    { name: "second bending", coupling: { roll: 0.7, pitch: 0.7, yaw: 0.1 }, freqHz: 455, q: 10, gain: 2.5 },
+    {
+      name: "roll bending",
+      coupling: { roll: 1, pitch: 0.12, yaw: 0.05 },
+      freqHz: 174,
+      q: 14,
+      gain: 5,
+    },
+    {
+      name: "pitch bending",
+      coupling: { roll: 0.1, pitch: 1, yaw: 0.05 },
+      freqHz: 236,
+      q: 16,
+      gain: 6,
+    },
+    {
+      name: "arm torsion",
+      coupling: { roll: 0.08, pitch: 0.08, yaw: 1 },
+      freqHz: 312,
+      q: 12,
+      gain: 4,
+    },
+    {
+      name: "second bending",
+      coupling: { roll: 0.7, pitch: 0.7, yaw: 0.1 },
+      freqHz: 455,
+      q: 10,
+      gain: 2.5,
+    },
   ],
   motors: [
-    { motor: 1, position: MOTOR_POSITIONS[1] ?? "", coupling: { roll: 0.72, pitch: 0.68, yaw: 0.3 }, imbalance: 2.4 },
-    { motor: 2, position: MOTOR_POSITIONS[2] ?? "", coupling: { roll: 0.66, pitch: 0.74, yaw: 0.28 }, imbalance: 2.8 },
-    { motor: 3, position: MOTOR_POSITIONS[3] ?? "", coupling: { roll: 0.7, pitch: 0.7, yaw: 0.32 }, imbalance: 2.2 },
-    { motor: 4, position: MOTOR_POSITIONS[4] ?? "", coupling: { roll: 0.75, pitch: 0.65, yaw: 0.3 }, imbalance: 2.6 },
+    {
+      motor: 1,
+      position: MOTOR_POSITIONS[1] ?? "",
+      coupling: { roll: 0.72, pitch: 0.68, yaw: 0.3 },
+      imbalance: 2.4,
+    },
+    {
+      motor: 2,
+      position: MOTOR_POSITIONS[2] ?? "",
+      coupling: { roll: 0.66, pitch: 0.74, yaw: 0.28 },
+      imbalance: 2.8,
+    },
+    {
+      motor: 3,
+      position: MOTOR_POSITIONS[3] ?? "",
+      coupling: { roll: 0.7, pitch: 0.7, yaw: 0.32 },
+      imbalance: 2.2,
+    },
+    {
+      motor: 4,
+      position: MOTOR_POSITIONS[4] ?? "",
+      coupling: { roll: 0.75, pitch: 0.65, yaw: 0.3 },
+      imbalance: 2.6,
+    },
   ],
   maxRpm: 36000,
   blades: 3,

@@ -35,7 +35,14 @@ export function analyzeDemoLog(
   while (!g.done) {
     const n = g.next(buf);
     samples += n;
-    analyzer.block({ length: n, timeS: buf.timeS, gyro, throttle: buf.throttle, rpm: buf.rpm, setpoint });
+    analyzer.block({
+      length: n,
+      timeS: buf.timeS,
+      gyro,
+      throttle: buf.throttle,
+      rpm: buf.rpm,
+      setpoint,
+    });
   }
   const summary: ReadSummary = {
     info,

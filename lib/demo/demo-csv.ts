@@ -20,10 +20,22 @@ export function* demoCsvChunks(options: DemoLogOptions, meta: DemoCsvMeta = {}):
   if (meta.airframe) lines.push(`# airframe: ${meta.airframe}`);
   lines.push(`# flown_at: ${meta.flownAt ?? new Date(0).toISOString()}`);
   lines.push(`# note: ${meta.note ?? "synthetic demo log"}`);
-  lines.push(`# generator: heatcheck demo, scenario ${g.truth.scenario}, severity ${g.truth.severity}, seed ${options.seed}`);
+  lines.push(
+    `# generator: heatcheck demo, scenario ${g.truth.scenario}, severity ${g.truth.severity}, seed ${options.seed}`,
+  );
   const rpmHeaders = g.motors.map((m) => `rpm_${m}`);
   const setpointHeaders = meta.setpoint ? ["setpoint_roll", "setpoint_pitch", "setpoint_yaw"] : [];
-  lines.push(["time_us", "gyro_roll", "gyro_pitch", "gyro_yaw", "throttle", ...rpmHeaders, ...setpointHeaders].join(","));
+  lines.push(
+    [
+      "time_us",
+      "gyro_roll",
+      "gyro_pitch",
+      "gyro_yaw",
+      "throttle",
+      ...rpmHeaders,
+      ...setpointHeaders,
+    ].join(","),
+  );
   yield lines.join("\n") + "\n";
   const make = () => new Float64Array(BLOCK);
   const buf = {
@@ -39,7 +51,8 @@ export function* demoCsvChunks(options: DemoLogOptions, meta: DemoCsvMeta = {}):
     for (let i = 0; i < n; i++) {
       let row = `${Math.round((buf.timeS[i] ?? 0) * 1e6)},${fixed(buf.gyro[0]?.[i], 3)},${fixed(buf.gyro[1]?.[i], 3)},${fixed(buf.gyro[2]?.[i], 3)},${fixed(buf.throttle[i], 4)}`;
       for (const r of buf.rpm) row += `,${Math.round(r[i] ?? 0)}`;
-      if (meta.setpoint) row += `,${fixed(buf.setpoint[0]?.[i], 2)},${fixed(buf.setpoint[1]?.[i], 2)},${fixed(buf.setpoint[2]?.[i], 2)}`;
+      if (meta.setpoint)
+        row += `,${fixed(buf.setpoint[0]?.[i], 2)},${fixed(buf.setpoint[1]?.[i], 2)},${fixed(buf.setpoint[2]?.[i], 2)}`;
       text += row + "\n";
     }
     yield text;

@@ -11,7 +11,13 @@ import { gaussian, mulberry32, type Random } from "./random";
  * with what reaches them; the gyro adds its own noise. Damage changes one part of the story.
  */
 
-export const SCENARIOS = ["healthy", "cracked-arm", "bent-prop", "worn-bearing", "loose-stack"] as const;
+export const SCENARIOS = [
+  "healthy",
+  "cracked-arm",
+  "bent-prop",
+  "worn-bearing",
+  "loose-stack",
+] as const;
 export type Scenario = (typeof SCENARIOS)[number];
 export type FlyingStyle = "normal" | "hard";
 
@@ -125,7 +131,12 @@ export class DemoLogGenerator {
       const factor = PROP_FACTOR[sev] ?? 4;
       const i = this.motors.indexOf(motor);
       if (i >= 0) this.imbalance[i] = (this.imbalance[i] ?? 0) * factor;
-      truth = { scenario, severity: sev + 1, description: `prop on motor ${motor} bent: 1× vibration ×${factor}`, motor };
+      truth = {
+        scenario,
+        severity: sev + 1,
+        description: `prop on motor ${motor} bent: 1× vibration ×${factor}`,
+        motor,
+      };
     } else if (scenario === "loose-stack") {
       modes.push({
         name: "stack rocking",
@@ -155,7 +166,9 @@ export class DemoLogGenerator {
     this.bearingLevel = scenario === "worn-bearing" ? (BEARING_LEVEL[sev] ?? 5) : 0;
     const centre = Math.sqrt(BEARING_BAND.loHz * BEARING_BAND.hiHz);
     this.bearing =
-      this.bearingLevel > 0 && centre < 0.45 * fs ? Biquad.bandPass(centre, centre / (BEARING_BAND.hiHz - BEARING_BAND.loHz), fs) : null;
+      this.bearingLevel > 0 && centre < 0.45 * fs
+        ? Biquad.bandPass(centre, centre / (BEARING_BAND.hiHz - BEARING_BAND.loHz), fs)
+        : null;
 
     this.resonators = modes
       .filter((m) => m.freqHz < 0.45 * fs)
@@ -164,7 +177,10 @@ export class DemoLogGenerator {
     // 2σ²·B/fs with B ≈ 3 Hz, so the gain below sets the rms rate the pilot commands.
     const rms = this.style === "hard" ? 260 : 120;
     this.pilotGain = rms / Math.sqrt((2 * 3) / fs);
-    this.pilot = AXES.map(() => [Biquad.lowPass(3, Math.SQRT1_2, fs), Biquad.lowPass(3, Math.SQRT1_2, fs)]);
+    this.pilot = AXES.map(() => [
+      Biquad.lowPass(3, Math.SQRT1_2, fs),
+      Biquad.lowPass(3, Math.SQRT1_2, fs),
+    ]);
   }
 
   get done(): boolean {
@@ -198,7 +214,11 @@ export class DemoLogGenerator {
       // Throttle: hold a target for a while, then pick a new one; the quad follows with a lag.
       if (this.holdLeft <= 0) {
         const punch = rand() < (hard ? 0.35 : 0.15);
-        this.target = punch ? 0.75 + 0.2 * rand() : hard ? 0.4 + 0.35 * rand() : 0.22 + 0.38 * rand();
+        this.target = punch
+          ? 0.75 + 0.2 * rand()
+          : hard
+            ? 0.4 + 0.35 * rand()
+            : 0.22 + 0.38 * rand();
         this.holdLeft = 0.4 + 2.0 * rand();
       }
       this.holdLeft -= this.dt;
@@ -209,7 +229,9 @@ export class DemoLogGenerator {
       vib[2] = 0;
       for (let m = 0; m < motorCount; m++) {
         // Each motor works a little harder or softer than the mean as the controller balances the quad.
-        const offset = (this.motorOffset[m] ?? 0) * (1 - this.dt / MOTOR_OFFSET_TAU_S) + MOTOR_OFFSET_SPREAD * Math.sqrt((2 * this.dt) / MOTOR_OFFSET_TAU_S) * gaussian(rand);
+        const offset =
+          (this.motorOffset[m] ?? 0) * (1 - this.dt / MOTOR_OFFSET_TAU_S) +
+          MOTOR_OFFSET_SPREAD * Math.sqrt((2 * this.dt) / MOTOR_OFFSET_TAU_S) * gaussian(rand);
         this.motorOffset[m] = offset;
         const motorThrottle = Math.min(1, Math.max(0.05, thr + offset));
         const rpm = model.maxRpm * Math.sqrt(motorThrottle);
@@ -220,7 +242,8 @@ export class DemoLogGenerator {
         const load = (rpm / model.maxRpm) ** 2;
         let v = (this.imbalance[m] ?? 0) * load * Math.sin(phase);
         if (2 * f1 < nyquistGuard) v += model.order2 * load * Math.sin(2 * phase + 0.7);
-        if (model.blades * f1 < nyquistGuard) v += model.bladePass * load * Math.sin(model.blades * phase + 1.9);
+        if (model.blades * f1 < nyquistGuard)
+          v += model.bladePass * load * Math.sin(model.blades * phase + 1.9);
         const mount = model.motors[m];
         if (mount) {
           vib[0] = (vib[0] ?? 0) + mount.coupling.roll * v;
@@ -231,7 +254,12 @@ export class DemoLogGenerator {
       let bearingNoise = 0;
       if (this.bearing) {
         const rpm = (out.rpm[this.bearingMotor] as Float64Array | undefined)?.[i] ?? 0;
-        bearingNoise = this.bearing.step(gaussian(rand)) * this.bearingLevel * (rpm / model.maxRpm) * 2.2 * densityScale;
+        bearingNoise =
+          this.bearing.step(gaussian(rand)) *
+          this.bearingLevel *
+          (rpm / model.maxRpm) *
+          2.2 *
+          densityScale;
       }
       const airflow = model.excitation * (0.15 + thr) * densityScale;
       out.timeS[i] = t;
@@ -245,9 +273,12 @@ export class DemoLogGenerator {
           if (c > 0) structure += c * r.mode.gain * (r.filters[a] as Biquad).step(input);
         }
         const filters = this.pilot[a] as Biquad[];
-        const stick = (filters[1] as Biquad).step((filters[0] as Biquad).step(this.pilotGain * gaussian(rand)));
+        const stick = (filters[1] as Biquad).step(
+          (filters[0] as Biquad).step(this.pilotGain * gaussian(rand)),
+        );
         (out.setpoint[a] as Float64Array)[i] = stick;
-        (out.gyro[a] as Float64Array)[i] = stick + structure + model.sensorNoise * densityScale * gaussian(rand);
+        (out.gyro[a] as Float64Array)[i] =
+          stick + structure + model.sensorNoise * densityScale * gaussian(rand);
       }
     }
     this.produced += n;

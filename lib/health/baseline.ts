@@ -127,7 +127,9 @@ export function buildBaseline(analyses: readonly LogAnalysis[]): Baseline {
   const throttleCount = first.throttleBands.length;
   for (const a of analyses) {
     if (a.throttleBands.length !== throttleCount) {
-      throw new InputError("the baseline logs were analysed with different throttle bands; analyse them again with the same settings");
+      throw new InputError(
+        "the baseline logs were analysed with different throttle bands; analyse them again with the same settings",
+      );
     }
   }
   const maxFreqHz = Math.min(...analyses.map((a) => a.settings.maxFreqHz));
@@ -137,13 +139,18 @@ export function buildBaseline(analyses: readonly LogAnalysis[]): Baseline {
   const floorCornerHz = Math.max(...analyses.map((a) => a.settings.floorCornerHz));
   const binHz = lowest.settings.binHz;
   const gridBins = Math.floor(maxFreqHz / binHz) + 1;
-  const motors = first.motors.map((m) => m.motor).filter((m) => analyses.every((a) => a.motors.some((x) => x.motor === m)));
+  const motors = first.motors
+    .map((m) => m.motor)
+    .filter((m) => analyses.every((a) => a.motors.some((x) => x.motor === m)));
 
   const throttleBands: BaselineThrottleBand[] = [];
   for (let index = 0; index < throttleCount; index++) {
     const parts = analyses
       .map((a) => ({ a, band: a.throttleBands[index] }))
-      .filter((p): p is { a: LogAnalysis; band: NonNullable<typeof p.band> } => !!p.band && p.band.segments >= MIN_BAND_SEGMENTS);
+      .filter(
+        (p): p is { a: LogAnalysis; band: NonNullable<typeof p.band> } =>
+          !!p.band && p.band.segments >= MIN_BAND_SEGMENTS,
+      );
     if (parts.length === 0) continue;
     const ref = parts[0]?.band;
     if (!ref) continue;
@@ -160,25 +167,45 @@ export function buildBaseline(analyses: readonly LogAnalysis[]): Baseline {
         floorDb: mean(floors),
         floorLogSpreadDb: stdDev(floors),
         psdDb: Array.from({ length: gridBins }, (_, k) =>
-          round(mean(parts.map((p) => dbAt(p.band.axes[axis].psdDb, p.a.settings.binHz, k * binHz))), 2),
+          round(
+            mean(parts.map((p) => dbAt(p.band.axes[axis].psdDb, p.a.settings.binHz, k * binHz))),
+            2,
+          ),
         ),
         psdLogSpreadDb: Array.from({ length: gridBins }, (_, k) =>
-          round(stdDev(parts.map((p) => dbAt(p.band.axes[axis].psdDb, p.a.settings.binHz, k * binHz))), 1),
+          round(
+            stdDev(parts.map((p) => dbAt(p.band.axes[axis].psdDb, p.a.settings.binHz, k * binHz))),
+            1,
+          ),
         ),
       };
     }
     const motorBands: BaselineMotorBand[] = motors.map((motor) => {
       const found = parts.map((p) => p.band.motors.find((m) => m.motor === motor));
-      const orderSet = [...new Set(found.flatMap((m) => m?.orders.map((o) => o.order) ?? []))].sort((x, y) => x - y);
+      const orderSet = [...new Set(found.flatMap((m) => m?.orders.map((o) => o.order) ?? []))].sort(
+        (x, y) => x - y,
+      );
       const orders: BaselineOrder[] = orderSet.map((order) => {
         const levels = found.map((m) => m?.orders.find((o) => o.order === order)?.powerDb);
         const db = {} as Record<Axis, number>;
         for (const axis of AXES) db[axis] = powerMeanDb(levels.map((o) => o?.[axis] ?? Number.NaN));
-        const blocks = found.reduce((s, m) => s + Math.max(0, (m?.blocks ?? 0) - (m?.maskedBlocks ?? 0)), 0);
+        const blocks = found.reduce(
+          (s, m) => s + Math.max(0, (m?.blocks ?? 0) - (m?.maskedBlocks ?? 0)),
+          0,
+        );
         const sides = found.map((m) => m?.orders.find((o) => o.order === order)?.sideDb);
         const sideDb = {} as Record<Axis, number>;
-        for (const axis of AXES) sideDb[axis] = powerMeanDb(sides.map((o) => o?.[axis] ?? Number.NaN));
-        return { order, db, sideDb, logSpreadDb: Math.max(...AXES.map((axis) => stdDev(levels.map((o) => o?.[axis] ?? Number.NaN)))), blocks };
+        for (const axis of AXES)
+          sideDb[axis] = powerMeanDb(sides.map((o) => o?.[axis] ?? Number.NaN));
+        return {
+          order,
+          db,
+          sideDb,
+          logSpreadDb: Math.max(
+            ...AXES.map((axis) => stdDev(levels.map((o) => o?.[axis] ?? Number.NaN))),
+          ),
+          blocks,
+        };
       });
       const one = orders.find((o) => o.order === 1);
       return {
@@ -211,7 +238,9 @@ export function buildBaseline(analyses: readonly LogAnalysis[]): Baseline {
   const modes: BaselineMode[] = [];
   for (const axis of AXES) {
     peaks[axis] = recurringPeaks(analyses, axis, maxFreqHz);
-    const structural = analyses.map((a) => a.axes[axis].peaks.filter((p) => p.kind === "structural" && p.freqHz <= maxFreqHz));
+    const structural = analyses.map((a) =>
+      a.axes[axis].peaks.filter((p) => p.kind === "structural" && p.freqHz <= maxFreqHz),
+    );
     for (const cluster of clusterModes(structural)) {
       // A mode must show in most baseline logs (all of two, two of three …) to be trusted.
       if (cluster.length < Math.ceil((2 * analyses.length) / 3)) continue;
@@ -233,13 +262,21 @@ export function buildBaseline(analyses: readonly LogAnalysis[]): Baseline {
     return bad ? [{ axis, reason: bad.axes[axis].signal?.text ?? "no usable signal" }] : [];
   });
   if (unusableAxes.length === AXES.length) {
-    throw new InputError(`no gyro axis carries a usable signal in every baseline log (${unusableAxes.map((u) => `${u.axis}: ${u.reason}`).join("; ")}); choose other logs`);
+    throw new InputError(
+      `no gyro axis carries a usable signal in every baseline log (${unusableAxes.map((u) => `${u.axis}: ${u.reason}`).join("; ")}); choose other logs`,
+    );
   }
 
   return {
     version: BASELINE_VERSION,
     unusableAxes,
-    untrustedMotors: motors.filter((motor) => analyses.some((a) => (a.motors.find((m) => m.motor === motor)?.maskedShare ?? 0) > DEFAULT_THRESHOLDS.maxMaskedShare)),
+    untrustedMotors: motors.filter((motor) =>
+      analyses.some(
+        (a) =>
+          (a.motors.find((m) => m.motor === motor)?.maskedShare ?? 0) >
+          DEFAULT_THRESHOLDS.maxMaskedShare,
+      ),
+    ),
     logs: analyses.length,
     sampleRateHz,
     binHz,
@@ -259,12 +296,24 @@ export function buildBaseline(analyses: readonly LogAnalysis[]): Baseline {
  * Where a mode sits in each throttle band of the baseline: the peak above the local median
  * nearest to its all-throttle frequency within ±MODE_CLUSTER_FRACTION, if any.
  */
-function modeInBands(bands: BaselineThrottleBand[], axis: Axis, freqHz: number, binHz: number): { index: number; freqHz: number; levelDb: number }[] {
+function modeInBands(
+  bands: BaselineThrottleBand[],
+  axis: Axis,
+  freqHz: number,
+  binHz: number,
+): { index: number; freqHz: number; levelDb: number }[] {
   const out: { index: number; freqHz: number; levelDb: number }[] = [];
   for (const b of bands) {
-    const found = peaksAboveLocalMedian(b.axes[axis].psdDb, binHz, freqHz * (1 - MODE_CLUSTER_FRACTION), freqHz * (1 + MODE_CLUSTER_FRACTION), MODE_TRACK_PROMINENCE_DB);
+    const found = peaksAboveLocalMedian(
+      b.axes[axis].psdDb,
+      binHz,
+      freqHz * (1 - MODE_CLUSTER_FRACTION),
+      freqHz * (1 + MODE_CLUSTER_FRACTION),
+      MODE_TRACK_PROMINENCE_DB,
+    );
     const best = found.sort((x, y) => Math.abs(x.freqHz - freqHz) - Math.abs(y.freqHz - freqHz))[0];
-    if (best) out.push({ index: b.index, freqHz: round(best.freqHz, 2), levelDb: round(best.levelDb, 2) });
+    if (best)
+      out.push({ index: b.index, freqHz: round(best.freqHz, 2), levelDb: round(best.levelDb, 2) });
   }
   return out;
 }
@@ -281,13 +330,23 @@ const SAME_PEAK_FRACTION = 0.03;
  * peak of one sparse band falls at a random frequency and does not recur (with k spectra, a
  * ±3 % coincidence by chance in half of them is rare), and a motor order moves with throttle.
  */
-export function recurringPeaks(analyses: readonly LogAnalysis[], axis: Axis, maxFreqHz: number): number[] {
-  const cells = analyses.flatMap((a) => a.throttleBands.filter((b) => b.segments >= MIN_BAND_SEGMENTS).map((b) => b.axes[axis].peaks.map((p) => p.freqHz)));
+export function recurringPeaks(
+  analyses: readonly LogAnalysis[],
+  axis: Axis,
+  maxFreqHz: number,
+): number[] {
+  const cells = analyses.flatMap((a) =>
+    a.throttleBands
+      .filter((b) => b.segments >= MIN_BAND_SEGMENTS)
+      .map((b) => b.axes[axis].peaks.map((p) => p.freqHz)),
+  );
   const need = Math.max(2, Math.ceil(KNOWN_PEAK_SHARE * cells.length));
   const known: number[] = [];
   for (const f of cells.flat().sort((x, y) => x - y)) {
     if (f > maxFreqHz || known.some((k) => Math.abs(k - f) <= SAME_PEAK_FRACTION * f)) continue;
-    const hits = cells.map((c) => c.filter((g) => Math.abs(g - f) <= SAME_PEAK_FRACTION * f)).filter((c) => c.length > 0);
+    const hits = cells
+      .map((c) => c.filter((g) => Math.abs(g - f) <= SAME_PEAK_FRACTION * f))
+      .filter((c) => c.length > 0);
     if (hits.length >= need) known.push(round(median(hits.map((c) => c[0] ?? f)), 1));
   }
   return known;
@@ -296,7 +355,9 @@ export function recurringPeaks(analyses: readonly LogAnalysis[], axis: Axis, max
 /** Power mean of dB levels (the mean of the powers, in dB), skipping NaN. */
 function powerMeanDb(values: number[]): number {
   const v = values.filter(Number.isFinite);
-  return v.length === 0 ? Number.NaN : 10 * Math.log10(v.reduce((s, x) => s + 10 ** (x / 10), 0) / v.length);
+  return v.length === 0
+    ? Number.NaN
+    : 10 * Math.log10(v.reduce((s, x) => s + 10 ** (x / 10), 0) / v.length);
 }
 
 /** A log's per-band values re-indexed onto the baseline's bands (logs may have more bands). */
@@ -307,11 +368,15 @@ function bandLevelsOn(a: LogAnalysis, values: number[], bands: FrequencyBand[]):
   });
 }
 
-function clusterModes(perLog: { freqHz: number; levelDb: number }[][]): { freqHz: number; levelDb: number }[][] {
+function clusterModes(
+  perLog: { freqHz: number; levelDb: number }[][],
+): { freqHz: number; levelDb: number }[][] {
   const clusters: { freqHz: number; levelDb: number }[][] = [];
   for (const peaks of perLog) {
     for (const p of peaks) {
-      const home = clusters.find((c) => Math.abs((c[0]?.freqHz ?? 0) - p.freqHz) <= MODE_CLUSTER_FRACTION * p.freqHz);
+      const home = clusters.find(
+        (c) => Math.abs((c[0]?.freqHz ?? 0) - p.freqHz) <= MODE_CLUSTER_FRACTION * p.freqHz,
+      );
       if (home) home.push(p);
       else clusters.push([p]);
     }

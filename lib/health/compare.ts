@@ -2,7 +2,13 @@ import { DEFAULT_ANALYSIS, throttleBandLabel } from "../analysis/settings";
 import type { LogAnalysis, ThrottleBandResult } from "../analysis/types";
 import { AXES, type Axis } from "../logs/columns";
 import { median, round, weightedMean } from "../signal/stats";
-import { MODE_TRACK_PROMINENCE_DB, dbAt, type Baseline, type BaselineMode, type BaselineThrottleBand } from "./baseline";
+import {
+  MODE_TRACK_PROMINENCE_DB,
+  dbAt,
+  type Baseline,
+  type BaselineMode,
+  type BaselineThrottleBand,
+} from "./baseline";
 import { peaksAboveLocalMedian } from "../signal/peaks";
 import {
   DEFAULT_THRESHOLDS,
@@ -22,7 +28,8 @@ import {
  * raise the level within a band, so it does not read as damage.
  */
 
-export type FindingKind = "mode-shift" | "mode-lost" | "new-peak" | "band-rise" | "floor-rise" | "motor-order";
+export type FindingKind =
+  "mode-shift" | "mode-lost" | "new-peak" | "band-rise" | "floor-rise" | "motor-order";
 
 export interface Finding {
   axis: Axis;
@@ -73,69 +80,117 @@ interface MatchedBand {
 
 const MODE_SEARCH = { below: 0.7, above: 1.15 };
 
-export function compareWithBaseline(log: LogAnalysis, baseline: Baseline, options: CompareOptions = {}): Assessment {
+export function compareWithBaseline(
+  log: LogAnalysis,
+  baseline: Baseline,
+  options: CompareOptions = {},
+): Assessment {
   const h = options.thresholds ?? DEFAULT_THRESHOLDS;
   const minSegments = options.minBandSegments ?? DEFAULT_ANALYSIS.minBandSegments;
   const notCompared: NotCompared[] = [];
   const maxHz = Math.min(log.settings.maxFreqHz, baseline.maxFreqHz);
   if (log.settings.maxFreqHz < baseline.maxFreqHz - 1) {
-    notCompared.push({ what: `above ${Math.round(maxHz)} Hz`, reason: `this log was recorded at ${Math.round(log.sampleRateHz)} Hz and cannot show higher frequencies` });
+    notCompared.push({
+      what: `above ${Math.round(maxHz)} Hz`,
+      reason: `this log was recorded at ${Math.round(log.sampleRateHz)} Hz and cannot show higher frequencies`,
+    });
   } else if (baseline.maxFreqHz < log.settings.maxFreqHz - 1) {
-    notCompared.push({ what: `above ${Math.round(maxHz)} Hz`, reason: `the baseline logs were recorded at ${Math.round(baseline.sampleRateHz)} Hz` });
+    notCompared.push({
+      what: `above ${Math.round(maxHz)} Hz`,
+      reason: `the baseline logs were recorded at ${Math.round(baseline.sampleRateHz)} Hz`,
+    });
   }
   if (log.hasThrottle !== baseline.hasThrottle) {
-    notCompared.push({ what: "throttle matching", reason: "only one of this log and the baseline has a throttle column; levels are compared over the whole log" });
+    notCompared.push({
+      what: "throttle matching",
+      reason:
+        "only one of this log and the baseline has a throttle column; levels are compared over the whole log",
+    });
   }
 
   // An axis without a usable signal in the log or the baseline is not compared: a log of zeros
   // or of a stuck gyro must never read as a quiet, healthy airframe.
   const axes = AXES.filter((axis) => {
-    const problem = log.axes[axis].signal?.usable === false ? log.axes[axis].signal?.text : undefined;
-    if (problem) notCompared.push({ what: `${axis} axis`, reason: `not usable in this log: ${problem}` });
+    const problem =
+      log.axes[axis].signal?.usable === false ? log.axes[axis].signal?.text : undefined;
+    if (problem)
+      notCompared.push({ what: `${axis} axis`, reason: `not usable in this log: ${problem}` });
     const inBaseline = baseline.unusableAxes?.find((u) => u.axis === axis);
-    if (inBaseline && !problem) notCompared.push({ what: `${axis} axis`, reason: `not usable in the baseline: ${inBaseline.reason}` });
+    if (inBaseline && !problem)
+      notCompared.push({
+        what: `${axis} axis`,
+        reason: `not usable in the baseline: ${inBaseline.reason}`,
+      });
     return !problem && !inBaseline;
   });
-  if (axes.length === 0) return unscored(notCompared, "no gyro axis carries a usable signal in both this log and the baseline, so the log is unusable and has no score");
+  if (axes.length === 0)
+    return unscored(
+      notCompared,
+      "no gyro axis carries a usable signal in both this log and the baseline, so the log is unusable and has no score",
+    );
 
   const matched: MatchedBand[] = [];
   for (const band of log.throttleBands) {
     const label = throttleBandLabel(band.lo, band.hi);
     const base = baseline.throttleBands.find((b) => b.index === band.index);
     if (band.segments < minSegments) {
-      if (band.segments > 0 && base) notCompared.push({ what: `throttle ${label}`, reason: `only ${band.seconds.toFixed(1)} s in this log` });
+      if (band.segments > 0 && base)
+        notCompared.push({
+          what: `throttle ${label}`,
+          reason: `only ${band.seconds.toFixed(1)} s in this log`,
+        });
       continue;
     }
     if (!base) {
-      notCompared.push({ what: `throttle ${label}`, reason: "the baseline has no flying in this band" });
+      notCompared.push({
+        what: `throttle ${label}`,
+        reason: "the baseline has no flying in this band",
+      });
       continue;
     }
     matched.push({ log: band, base, label });
   }
-  if (matched.length === 0) return unscored(notCompared, "no throttle band has enough flying in both this log and the baseline");
+  if (matched.length === 0)
+    return unscored(
+      notCompared,
+      "no throttle band has enough flying in both this log and the baseline",
+    );
 
   const positions = options.motorPositions ?? {};
   const untrusted = untrustedMotors(log, baseline, h, notCompared);
   const standings = orderStandings(axes, matched, baseline, untrusted, maxHz);
   const sigmaX = excessSigma(standings);
-  const floor = floorRises(axes, log, baseline, matched, h, maxHz, bearingMotor(standings, h, sigmaX), positions);
+  const floor = floorRises(
+    axes,
+    log,
+    baseline,
+    matched,
+    h,
+    maxHz,
+    bearingMotor(standings, h, sigmaX),
+    positions,
+  );
   // A motor named by the floor rise for its bearing tones is not named twice.
   // Broadband noise up high lifts every order up there at random, motor by motor: with a floor
   // rise, an order above the floor corner is not evidence against one motor.
   const cornerHz = Math.min(baseline.floorCornerHz, 0.6 * maxHz);
-  const orders = motorOrders(standings.filter((x) => floor.length === 0 || x.rotationHz * x.order < cornerHz), positions, log.settings.bladeCount, h, sigmaX).filter(
+  const orders = motorOrders(
+    standings.filter((x) => floor.length === 0 || x.rotationHz * x.order < cornerHz),
+    positions,
+    log.settings.bladeCount,
+    h,
+    sigmaX,
+  ).filter(
     (f) => !(f.cause === "motor-mount" && floor.some((x) => x.motor === f.motor) && f.order !== 1),
   );
   const shifts = modeShifts(axes, log, baseline, matched, maxHz, h);
-  const findings: Finding[] = [
-    ...shifts,
-    ...orders,
-    ...floor,
-  ];
+  const findings: Finding[] = [...shifts, ...orders, ...floor];
   const floorRise = findings.some((f) => f.kind === "floor-rise");
   // Broadband noise above the corner lifts every peak and band up there: the floor rise says it once.
   findings.push(
-    ...newPeaks(axes, log, baseline, matched, shifts, maxHz, h).filter((f) => !(floorRise && f.freqHz >= baseline.floorCornerHz)),
+    ...newPeaks(axes, log, baseline, matched, shifts, maxHz, h).filter(
+      (f) => !(floorRise && f.freqHz >= baseline.floorCornerHz),
+    ),
   );
   findings.push(...bandRises(axes, log, matched, baseline, findings, h));
   findings.sort((a, b) => b.points - a.points);
@@ -152,7 +207,12 @@ export function compareWithBaseline(log: LogAnalysis, baseline: Baseline, option
  * orders are not compared (a level from the few believable blocks would be biased towards the
  * flying where the telemetry happens to work), and the reason is listed.
  */
-function untrustedMotors(log: LogAnalysis, baseline: Baseline, h: HealthThresholds, notCompared: NotCompared[]): Set<number> {
+function untrustedMotors(
+  log: LogAnalysis,
+  baseline: Baseline,
+  h: HealthThresholds,
+  notCompared: NotCompared[],
+): Set<number> {
   const out = new Set<number>();
   for (const m of log.motors) {
     const share = m.maskedShare ?? 0;
@@ -160,7 +220,11 @@ function untrustedMotors(log: LogAnalysis, baseline: Baseline, h: HealthThreshol
     out.add(m.motor);
     const counts = m.maskedBlocks;
     const why = counts
-      ? (Object.entries(counts) as [string, number][]).filter(([, n]) => n > 0).sort((a, b) => b[1] - a[1]).map(([r]) => MASK_WORDS[r] ?? r).join(", ")
+      ? (Object.entries(counts) as [string, number][])
+          .filter(([, n]) => n > 0)
+          .sort((a, b) => b[1] - a[1])
+          .map(([r]) => MASK_WORDS[r] ?? r)
+          .join(", ")
       : "";
     notCompared.push({
       what: `motor ${m.motor} orders`,
@@ -170,7 +234,10 @@ function untrustedMotors(log: LogAnalysis, baseline: Baseline, h: HealthThreshol
   for (const motor of baseline.untrustedMotors ?? []) {
     if (out.has(motor)) continue;
     out.add(motor);
-    notCompared.push({ what: `motor ${motor} orders`, reason: "its rpm telemetry could not be believed in most of a baseline log" });
+    notCompared.push({
+      what: `motor ${motor} orders`,
+      reason: "its rpm telemetry could not be believed in most of a baseline log",
+    });
   }
   return out;
 }
@@ -187,14 +254,24 @@ const MASK_WORDS: Record<string, string> = {
  * because "nothing to see" is not "healthy".
  */
 function unscored(notCompared: NotCompared[], reason: string): Assessment {
-  return { score: Number.NaN, status: "watch", findings: [], notCompared: [...notCompared, { what: "whole log", reason }], comparedBands: [] };
+  return {
+    score: Number.NaN,
+    status: "watch",
+    findings: [],
+    notCompared: [...notCompared, { what: "whole log", reason }],
+    comparedBands: [],
+  };
 }
 
 /**
  * Baseline value at the log band's own mean throttle: linear in throttle between the baseline's
  * neighbouring bands, so a band flown a little harder is held to a slightly higher level.
  */
-function atThrottle(baseline: Baseline, throttle: number, value: (b: BaselineThrottleBand) => number): number {
+function atThrottle(
+  baseline: Baseline,
+  throttle: number,
+  value: (b: BaselineThrottleBand) => number,
+): number {
   const points = baseline.throttleBands
     .map((b) => ({ x: b.meanThrottle, y: value(b) }))
     .filter((p) => Number.isFinite(p.y))
@@ -225,30 +302,57 @@ function severityAndPoints(magnitude: number, t: StepThresholds, h: HealthThresh
  * The shift is the segment-weighted mean over the bands where both have it. A mode that every
  * baseline log had and that the log shows in none of the compared bands is lost.
  */
-function modeShifts(axes: readonly Axis[], log: LogAnalysis, baseline: Baseline, matched: MatchedBand[], maxHz: number, h: HealthThresholds): Finding[] {
+function modeShifts(
+  axes: readonly Axis[],
+  log: LogAnalysis,
+  baseline: Baseline,
+  matched: MatchedBand[],
+  maxHz: number,
+  h: HealthThresholds,
+): Finding[] {
   const out: Finding[] = [];
   const binHz = log.settings.binHz;
   for (const axis of axes) {
-    const modes = baseline.modes.filter((m) => m.axis === axis && m.freqHz * MODE_SEARCH.above <= maxHz);
+    const modes = baseline.modes.filter(
+      (m) => m.axis === axis && m.freqHz * MODE_SEARCH.above <= maxHz,
+    );
     const sightings = new Map<BaselineMode, { shift: number; freqHz: number; weight: number }[]>();
     const expected = new Map<BaselineMode, number>();
     for (const band of matched) {
       const psd = band.log.axes[axis].psdDb;
       // Where each mode is expected in this band, and the candidates around it.
       const wanted = modes.flatMap((m) => {
-        const inBand = m.bands ? m.bands.find((b) => b.index === band.base.index) : { freqHz: m.freqHz, levelDb: m.levelDb };
+        const inBand = m.bands
+          ? m.bands.find((b) => b.index === band.base.index)
+          : { freqHz: m.freqHz, levelDb: m.levelDb };
         return inBand ? [{ m, f: inBand.freqHz, level: inBand.levelDb }] : [];
       });
       for (const w of wanted) expected.set(w.m, (expected.get(w.m) ?? 0) + 1);
-      const orderFreqs = band.log.motors.flatMap((x) => x.orders.filter((o) => Number.isInteger(o.order)).map((o) => o.freqHz)).filter((f) => f > 0);
+      const orderFreqs = band.log.motors
+        .flatMap((x) => x.orders.filter((o) => Number.isInteger(o.order)).map((o) => o.freqHz))
+        .filter((f) => f > 0);
       const pairs = wanted.flatMap((w) =>
-        peaksAboveLocalMedian(psd, binHz, w.f * MODE_SEARCH.below, w.f * MODE_SEARCH.above, MODE_TRACK_PROMINENCE_DB)
+        peaksAboveLocalMedian(
+          psd,
+          binHz,
+          w.f * MODE_SEARCH.below,
+          w.f * MODE_SEARCH.above,
+          MODE_TRACK_PROMINENCE_DB,
+        )
           // A peak away from the mode that sits on a motor order in this band is that order, not
           // the moved mode (an order passing right over the mode cannot be told from it).
-          .filter((p) => Math.abs(p.freqHz - w.f) <= 0.03 * w.f || !orderFreqs.some((f) => Math.abs(f - p.freqHz) <= 0.03 * p.freqHz))
+          .filter(
+            (p) =>
+              Math.abs(p.freqHz - w.f) <= 0.03 * w.f ||
+              !orderFreqs.some((f) => Math.abs(f - p.freqHz) <= 0.03 * p.freqHz),
+          )
           // Greedy assignment by cost: relative frequency distance, with a level mismatch as
           // tie-breaker, so that a weak neighbouring mode cannot steal a strong one's peak.
-          .map((p) => ({ w, p, cost: Math.abs(Math.log(p.freqHz / w.f)) / 0.05 + Math.abs(p.levelDb - w.level) / 6 })),
+          .map((p) => ({
+            w,
+            p,
+            cost: Math.abs(Math.log(p.freqHz / w.f)) / 0.05 + Math.abs(p.levelDb - w.level) / 6,
+          })),
       );
       pairs.sort((a, b) => a.cost - b.cost);
       const usedModes = new Set<BaselineMode>();
@@ -282,8 +386,15 @@ function modeShifts(axes: readonly Axis[], log: LogAnalysis, baseline: Baseline,
         continue;
       }
       const weights = seen.map((x) => x.weight);
-      const shiftPct = weightedMean(seen.map((x) => x.shift), weights) * 100;
-      const nowHz = weightedMean(seen.map((x) => x.freqHz), weights);
+      const shiftPct =
+        weightedMean(
+          seen.map((x) => x.shift),
+          weights,
+        ) * 100;
+      const nowHz = weightedMean(
+        seen.map((x) => x.freqHz),
+        weights,
+      );
       // The baseline's own scatter of this mode is not held against the log.
       // A frame does not stiffen by itself: a rise is most often a peak estimate wobbling on a broad
       // mode, so it counts half.
@@ -299,7 +410,16 @@ function modeShifts(axes: readonly Axis[], log: LogAnalysis, baseline: Baseline,
       // A stiffer frame is a change to note, not a danger.
       const severity = dropped ? graded.severity : "watch";
       const points = dropped ? graded.points : Math.min(graded.points, h.penalty.watch);
-      out.push({ axis, kind: "mode-shift", freqHz: round(nowHz, 1), baselineFreqHz: round(m.freqHz, 1), shiftPct: round(shiftPct, 1), severity, points, text });
+      out.push({
+        axis,
+        kind: "mode-shift",
+        freqHz: round(nowHz, 1),
+        baselineFreqHz: round(m.freqHz, 1),
+        shiftPct: round(shiftPct, 1),
+        severity,
+        points,
+        text,
+      });
     }
   }
   return out;
@@ -329,49 +449,82 @@ interface OrderStanding {
  */
 const DB_PER_UNIT_LOG = 10 / Math.LN10;
 
-function orderStandings(axes: readonly Axis[], matched: MatchedBand[], baseline: Baseline, excluded: ReadonlySet<number>, maxHz: number): OrderStanding[] {
+function orderStandings(
+  axes: readonly Axis[],
+  matched: MatchedBand[],
+  baseline: Baseline,
+  excluded: ReadonlySet<number>,
+  maxHz: number,
+): OrderStanding[] {
   const raw: Omit<OrderStanding, "excessDb">[] = [];
   for (const motor of baseline.motors) {
     if (excluded.has(motor)) continue;
-    const orderSet = new Set(matched.flatMap((m) => m.log.motors.find((x) => x.motor === motor)?.orders.map((o) => o.order) ?? []));
-    for (const order of orderSet) for (const side of Number.isInteger(order) ? [false, true] : [false]) {
-      for (const axis of axes) {
-        let wSum = 0;
-        let dSum = 0;
-        let varSum = 0;
-        let fSum = 0;
-        for (const m of matched) {
-          const lm = m.log.motors.find((x) => x.motor === motor);
-          const lo = lm?.orders.find((o) => o.order === order);
-          const level = side ? lo?.sideDb?.[axis] : lo?.powerDb[axis];
-          if (!lm || !lo || level === undefined || !Number.isFinite(level) || !(lm.meanRpm > 0)) continue;
-          // Near the top of the common range some of the band's blocks measured the order and
-          // others did not (or the baseline could): keep a 10 % margin for the rpm's spread.
-          if ((order * lm.meanRpm * 1.1) / 60 > maxHz || (order * lm.meanRpm) / 60 < baseline.minFreqHz) continue;
-          const bm = m.base.motors.find((x) => x.motor === motor);
-          const bo = bm?.orders?.find((o) => o.order === order) ?? (order === 1 && bm && !side ? { db: bm.order1Db, logSpreadDb: bm.logSpreadDb, blocks: 0 } : undefined);
-          const expected = atThrottle(baseline, m.log.meanThrottle, (b) => {
-            const x = b.motors.find((y) => y.motor === motor);
-            const o = x?.orders?.find((y) => y.order === order);
-            if (side) return o?.sideDb?.[axis] ?? Number.NaN;
-            return o ? o.db[axis] : order === 1 && x ? x.order1Db[axis] : Number.NaN;
-          });
-          if (!bo || !Number.isFinite(expected)) continue;
-          const nLog = Math.max(1, (lm.blocks ?? m.log.segments) - (lm.maskedBlocks ?? 0));
-          const nBase = Math.max(1, bo.blocks || m.base.segments);
-          const variance = DB_PER_UNIT_LOG ** 2 * (1 / nLog + 1 / nBase) + bo.logSpreadDb ** 2;
-          const w = m.log.segments;
-          wSum += w;
-          dSum += w * (level - expected);
-          varSum += w * w * variance;
-          fSum += w * (lm.meanRpm / 60);
+    const orderSet = new Set(
+      matched.flatMap(
+        (m) => m.log.motors.find((x) => x.motor === motor)?.orders.map((o) => o.order) ?? [],
+      ),
+    );
+    for (const order of orderSet)
+      for (const side of Number.isInteger(order) ? [false, true] : [false]) {
+        for (const axis of axes) {
+          let wSum = 0;
+          let dSum = 0;
+          let varSum = 0;
+          let fSum = 0;
+          for (const m of matched) {
+            const lm = m.log.motors.find((x) => x.motor === motor);
+            const lo = lm?.orders.find((o) => o.order === order);
+            const level = side ? lo?.sideDb?.[axis] : lo?.powerDb[axis];
+            if (!lm || !lo || level === undefined || !Number.isFinite(level) || !(lm.meanRpm > 0))
+              continue;
+            // Near the top of the common range some of the band's blocks measured the order and
+            // others did not (or the baseline could): keep a 10 % margin for the rpm's spread.
+            if (
+              (order * lm.meanRpm * 1.1) / 60 > maxHz ||
+              (order * lm.meanRpm) / 60 < baseline.minFreqHz
+            )
+              continue;
+            const bm = m.base.motors.find((x) => x.motor === motor);
+            const bo =
+              bm?.orders?.find((o) => o.order === order) ??
+              (order === 1 && bm && !side
+                ? { db: bm.order1Db, logSpreadDb: bm.logSpreadDb, blocks: 0 }
+                : undefined);
+            const expected = atThrottle(baseline, m.log.meanThrottle, (b) => {
+              const x = b.motors.find((y) => y.motor === motor);
+              const o = x?.orders?.find((y) => y.order === order);
+              if (side) return o?.sideDb?.[axis] ?? Number.NaN;
+              return o ? o.db[axis] : order === 1 && x ? x.order1Db[axis] : Number.NaN;
+            });
+            if (!bo || !Number.isFinite(expected)) continue;
+            const nLog = Math.max(1, (lm.blocks ?? m.log.segments) - (lm.maskedBlocks ?? 0));
+            const nBase = Math.max(1, bo.blocks || m.base.segments);
+            const variance = DB_PER_UNIT_LOG ** 2 * (1 / nLog + 1 / nBase) + bo.logSpreadDb ** 2;
+            const w = m.log.segments;
+            wSum += w;
+            dSum += w * (level - expected);
+            varSum += w * w * variance;
+            fSum += w * (lm.meanRpm / 60);
+          }
+          if (wSum > 0)
+            raw.push({
+              motor,
+              order,
+              side,
+              axis,
+              ownDb: dSum / wSum,
+              sigmaDb: Math.sqrt(varSum) / wSum,
+              rotationHz: fSum / wSum,
+            });
         }
-        if (wSum > 0) raw.push({ motor, order, side, axis, ownDb: dSum / wSum, sigmaDb: Math.sqrt(varSum) / wSum, rotationHz: fSum / wSum });
       }
-    }
   }
   return raw.map((r) => {
-    const others = raw.filter((x) => x.motor !== r.motor && x.order === r.order && x.side === r.side && x.axis === r.axis).map((x) => x.ownDb);
+    const others = raw
+      .filter(
+        (x) => x.motor !== r.motor && x.order === r.order && x.side === r.side && x.axis === r.axis,
+      )
+      .map((x) => x.ownDb);
     return { ...r, excessDb: others.length > 0 ? r.ownDb - median(others) : Number.NaN };
   });
 }
@@ -386,8 +539,17 @@ function orderStandings(axes: readonly Axis[], matched: MatchedBand[], baseline:
  * the watch step. The magnitude graded is the rise over its own baseline (a strong tone leaks a
  * little into near-identical motors' orders, so the rise over the others understates it).
  */
-function standsOut(s: OrderStanding, h: HealthThresholds, excessSigmaDb: (s: OrderStanding) => number): number {
-  if (!Number.isFinite(s.excessDb) || !(s.ownDb >= h.minSigma * s.sigmaDb) || !(s.excessDb >= h.minSigma * excessSigmaDb(s))) return Number.NaN;
+function standsOut(
+  s: OrderStanding,
+  h: HealthThresholds,
+  excessSigmaDb: (s: OrderStanding) => number,
+): number {
+  if (
+    !Number.isFinite(s.excessDb) ||
+    !(s.ownDb >= h.minSigma * s.sigmaDb) ||
+    !(s.excessDb >= h.minSigma * excessSigmaDb(s))
+  )
+    return Number.NaN;
   return Math.min(s.ownDb, s.excessDb) >= h.levelDb.watch ? s.ownDb : Number.NaN;
 }
 
@@ -413,7 +575,11 @@ function excessSigma(standings: OrderStanding[]): (s: OrderStanding) => number {
     const key = `${s.motor}/${s.order}/${s.side}`;
     let sigma = perKey.get(key);
     if (sigma === undefined) {
-      sigma = robustSigma(standings.filter((x) => x.motor !== s.motor && x.order === s.order && x.side === s.side).map((x) => x.excessDb));
+      sigma = robustSigma(
+        standings
+          .filter((x) => x.motor !== s.motor && x.order === s.order && x.side === s.side)
+          .map((x) => x.excessDb),
+      );
       perKey.set(key, sigma);
     }
     return Math.max(all, sigma);
@@ -430,7 +596,13 @@ function orderName(order: number, bladeCount: number): string {
   return `${order}× its rotation rate`;
 }
 
-function motorOrders(standings: OrderStanding[], positions: Record<number, string>, bladeCount: number, h: HealthThresholds, sigmaX: (s: OrderStanding) => number): Finding[] {
+function motorOrders(
+  standings: OrderStanding[],
+  positions: Record<number, string>,
+  bladeCount: number,
+  h: HealthThresholds,
+  sigmaX: (s: OrderStanding) => number,
+): Finding[] {
   const out: Finding[] = [];
   for (const motor of new Set(standings.map((s) => s.motor))) {
     const risen = standings
@@ -474,12 +646,17 @@ function motorOrders(standings: OrderStanding[], positions: Record<number, strin
 }
 
 /** The motor whose half orders (tones between its whole orders) rose most, against both references. */
-function bearingMotor(standings: OrderStanding[], h: HealthThresholds, sigmaX: (s: OrderStanding) => number): OrderStanding | null {
+function bearingMotor(
+  standings: OrderStanding[],
+  h: HealthThresholds,
+  sigmaX: (s: OrderStanding) => number,
+): OrderStanding | null {
   let best: { s: OrderStanding; magnitude: number } | null = null;
   for (const s of standings) {
     if (isWhole(s)) continue;
     const magnitude = standsOut(s, h, sigmaX);
-    if (Number.isFinite(magnitude) && (!best || magnitude > best.magnitude)) best = { s, magnitude };
+    if (Number.isFinite(magnitude) && (!best || magnitude > best.magnitude))
+      best = { s, magnitude };
   }
   return best?.s ?? null;
 }
@@ -496,7 +673,15 @@ function bearingMotor(standings: OrderStanding[], h: HealthThresholds, sigmaX: (
  * throttle and have their own finding), near a moved or lost mode, or at a known (recurring)
  * baseline peak are not counted.
  */
-function newPeaks(axes: readonly Axis[], log: LogAnalysis, baseline: Baseline, matched: MatchedBand[], shifts: Finding[], maxHz: number, h: HealthThresholds): Finding[] {
+function newPeaks(
+  axes: readonly Axis[],
+  log: LogAnalysis,
+  baseline: Baseline,
+  matched: MatchedBand[],
+  shifts: Finding[],
+  maxHz: number,
+  h: HealthThresholds,
+): Finding[] {
   const found: Finding[] = [];
   const binHz = log.settings.binHz;
   const first = Math.ceil(baseline.minFreqHz / binHz);
@@ -511,12 +696,17 @@ function newPeaks(axes: readonly Axis[], log: LogAnalysis, baseline: Baseline, m
     const judged = new Float64Array(last + 1);
     const risen = new Float64Array(last + 1);
     for (const m of matched) {
-      const orderFreqs = m.log.motors.flatMap((x) => x.orders.filter((o) => Number.isInteger(o.order)).map((o) => o.freqHz)).filter((f) => f > 0);
+      const orderFreqs = m.log.motors
+        .flatMap((x) => x.orders.filter((o) => Number.isInteger(o.order)).map((o) => o.freqHz))
+        .filter((f) => f > 0);
       // Within a throttle band each order sweeps as rpm does, rpm ∝ √throttle (thrust ∝ rpm²):
       // a half-width of (√hi − √lo)/(√hi + √lo) around its mean, and 2 % for the motors' spread.
-      const sweep = (Math.sqrt(m.log.hi) - Math.sqrt(m.log.lo)) / (Math.sqrt(m.log.hi) + Math.sqrt(m.log.lo)) + 0.02;
+      const sweep =
+        (Math.sqrt(m.log.hi) - Math.sqrt(m.log.lo)) / (Math.sqrt(m.log.hi) + Math.sqrt(m.log.lo)) +
+        0.02;
       const w = m.log.segments;
-      const chi = DB_PER_UNIT_LOG ** 2 * (1 / Math.max(1, m.log.segments) + 1 / Math.max(1, m.base.segments));
+      const chi =
+        DB_PER_UNIT_LOG ** 2 * (1 / Math.max(1, m.log.segments) + 1 / Math.max(1, m.base.segments));
       const spread = m.base.axes[axis].psdLogSpreadDb;
       for (let k = first; k <= last; k++) {
         const f = k * binHz;
@@ -562,7 +752,13 @@ function newPeaks(axes: readonly Axis[], log: LogAnalysis, baseline: Baseline, m
       local[k] = e - median(around);
     }
     const wander = robustSigma(Array.from(local));
-    const tonal = peaksAboveLocalMedian(logDb, binHz, baseline.minFreqHz, maxHz, MODE_TRACK_PROMINENCE_DB);
+    const tonal = peaksAboveLocalMedian(
+      logDb,
+      binHz,
+      baseline.minFreqHz,
+      maxHz,
+      MODE_TRACK_PROMINENCE_DB,
+    );
     for (const p of tonal) {
       // The largest excess within ±1 bin of the log's peak.
       let best = Number.NaN;
@@ -576,7 +772,13 @@ function newPeaks(axes: readonly Axis[], log: LogAnalysis, baseline: Baseline, m
       }
       const s = sigma[at] ?? Number.NaN;
       const above = local[at] ?? Number.NaN;
-      if (!Number.isFinite(best) || !(best >= h.minSigma * s) || !(above >= h.minSigma * wander) || !(above >= h.levelDb.watch)) continue;
+      if (
+        !Number.isFinite(best) ||
+        !(best >= h.minSigma * s) ||
+        !(above >= h.minSigma * wander) ||
+        !(above >= h.levelDb.watch)
+      )
+        continue;
       // A resonance stays put across throttle: it must be up in at least half of the bands that
       // judged the bin (and two of them, when two or more did), not only on average.
       const bands = judged[at] ?? 0;
@@ -584,9 +786,17 @@ function newPeaks(axes: readonly Axis[], log: LogAnalysis, baseline: Baseline, m
       // A frame mode shows on every axis it couples into: a known peak or mode of any axis is
       // not new on this one (it may still be a band rise).
       const known =
-        AXES.some((x) => baseline.peaks[x].some((f) => Math.abs(f - p.freqHz) <= h.samePeakFraction * p.freqHz)) ||
-        baseline.modes.some((m) => Math.abs(m.freqHz - p.freqHz) <= h.samePeakFraction * p.freqHz) ||
-        shifts.some((x) => Math.abs(x.freqHz - p.freqHz) <= h.samePeakFraction * p.freqHz || Math.abs((x.baselineFreqHz ?? 0) - p.freqHz) <= h.samePeakFraction * p.freqHz);
+        AXES.some((x) =>
+          baseline.peaks[x].some((f) => Math.abs(f - p.freqHz) <= h.samePeakFraction * p.freqHz),
+        ) ||
+        baseline.modes.some(
+          (m) => Math.abs(m.freqHz - p.freqHz) <= h.samePeakFraction * p.freqHz,
+        ) ||
+        shifts.some(
+          (x) =>
+            Math.abs(x.freqHz - p.freqHz) <= h.samePeakFraction * p.freqHz ||
+            Math.abs((x.baselineFreqHz ?? 0) - p.freqHz) <= h.samePeakFraction * p.freqHz,
+        );
       if (known) continue;
       const graded = severityAndPoints(best, h.levelDb, h);
       if (!graded) continue;
@@ -618,20 +828,31 @@ function floorRises(
   // log that cannot reach it, up to the top both can show.
   const cornerHz = Math.min(baseline.floorCornerHz, 0.6 * maxHz);
   if (cornerHz >= maxHz) return [];
-  const perAxis = axes.map((axis) => {
-    const deltas = matched.map(
-      (m) =>
-        floorOver(m.log.axes[axis].psdDb, log.settings.binHz, cornerHz, maxHz) -
-        floorOver(m.base.axes[axis].psdDb, baseline.binHz, cornerHz, maxHz),
-    );
-    return { axis, delta: weightedMean(deltas, matched.map((m) => m.log.segments)) };
-  }).filter((x) => Number.isFinite(x.delta));
+  const perAxis = axes
+    .map((axis) => {
+      const deltas = matched.map(
+        (m) =>
+          floorOver(m.log.axes[axis].psdDb, log.settings.binHz, cornerHz, maxHz) -
+          floorOver(m.base.axes[axis].psdDb, baseline.binHz, cornerHz, maxHz),
+      );
+      return {
+        axis,
+        delta: weightedMean(
+          deltas,
+          matched.map((m) => m.log.segments),
+        ),
+      };
+    })
+    .filter((x) => Number.isFinite(x.delta));
   perAxis.sort((a, b) => b.delta - a.delta);
   const top = perAxis[0];
   if (!top) return [];
   const graded = severityAndPoints(top.delta, h.levelDb, h);
   if (!graded) return [];
-  const others = perAxis.slice(1).filter((x) => x.delta >= h.levelDb.watch).map((x) => x.axis);
+  const others = perAxis
+    .slice(1)
+    .filter((x) => x.delta >= h.levelDb.watch)
+    .map((x) => x.axis);
   const also = others.length > 0 ? ` (also ${others.join(" and ")})` : "";
   const centre = Math.sqrt(cornerHz * maxHz);
   // A worn bearing rings at its motor's non-integer orders: the motor whose half orders rose
@@ -652,18 +873,38 @@ function floorRises(
   ];
 }
 
-function bandRises(axes: readonly Axis[], log: LogAnalysis, matched: MatchedBand[], baseline: Baseline, specific: Finding[], h: HealthThresholds): Finding[] {
+function bandRises(
+  axes: readonly Axis[],
+  log: LogAnalysis,
+  matched: MatchedBand[],
+  baseline: Baseline,
+  specific: Finding[],
+  h: HealthThresholds,
+): Finding[] {
   const found: Finding[] = [];
   const hasFloorRise = specific.some((f) => f.kind === "floor-rise");
   baseline.bands.forEach((band, b) => {
     // A more specific finding inside the band already explains its rise.
     // A resonance that moved or appeared lifts its skirts too: it explains bands within ±40 % of it.
-    const explained = specific.some((f) => (f.kind === "mode-shift" || f.kind === "mode-lost" || f.kind === "new-peak") && band.hiHz > 0.6 * f.freqHz && band.loHz < 1.4 * f.freqHz) ||
+    const explained =
+      specific.some(
+        (f) =>
+          (f.kind === "mode-shift" || f.kind === "mode-lost" || f.kind === "new-peak") &&
+          band.hiHz > 0.6 * f.freqHz &&
+          band.loHz < 1.4 * f.freqHz,
+      ) ||
       (hasFloorRise && band.loHz >= baseline.floorCornerHz * 0.9) ||
-      specific.some((f) => f.kind === "motor-order" && matched.some((m) => {
-        const order = m.log.motors.find((x) => x.motor === f.motor)?.orders.find((o) => o.order === (f.order ?? 1))?.freqHz ?? 0;
-        return order >= band.loHz && order < band.hiHz;
-      }));
+      specific.some(
+        (f) =>
+          f.kind === "motor-order" &&
+          matched.some((m) => {
+            const order =
+              m.log.motors
+                .find((x) => x.motor === f.motor)
+                ?.orders.find((o) => o.order === (f.order ?? 1))?.freqHz ?? 0;
+            return order >= band.loHz && order < band.hiHz;
+          }),
+      );
     if (explained) return;
     const i = log.bands.findIndex((x) => x.loHz === band.loHz && x.hiHz === band.hiHz);
     if (i < 0) return;
@@ -674,12 +915,19 @@ function bandRises(axes: readonly Axis[], log: LogAnalysis, matched: MatchedBand
       let variance = 0;
       for (const m of matched) {
         const level = m.log.axes[axis].bandDb[i] ?? Number.NaN;
-        const expected = atThrottle(baseline, m.log.meanThrottle, (x) => x.axes[axis].bandDb[b] ?? Number.NaN);
+        const expected = atThrottle(
+          baseline,
+          m.log.meanThrottle,
+          (x) => x.axes[axis].bandDb[b] ?? Number.NaN,
+        );
         deltas.push(level - expected);
         weights.push(m.log.segments);
         const seg = m.base.axes[axis].segmentSpreadDb[b] ?? 1;
         const logs = m.base.axes[axis].logSpreadDb[b] ?? 0;
-        variance += seg * seg / m.log.segments + seg * seg / Math.max(1, m.base.segmentsPerLog) + logs * logs;
+        variance +=
+          (seg * seg) / m.log.segments +
+          (seg * seg) / Math.max(1, m.base.segmentsPerLog) +
+          logs * logs;
       }
       const delta = weightedMean(deltas, weights);
       const sigma = Math.sqrt(variance / Math.max(1, deltas.length));
@@ -713,7 +961,9 @@ function floorOver(psdDb: readonly number[], binHz: number, loHz: number, hiHz: 
 }
 
 function keepStrongestPerFrequency(findings: Finding[], fraction: number): Finding[] {
-  const sorted = [...findings].sort((a, b) => b.points - a.points || (b.deltaDb ?? 0) - (a.deltaDb ?? 0));
+  const sorted = [...findings].sort(
+    (a, b) => b.points - a.points || (b.deltaDb ?? 0) - (a.deltaDb ?? 0),
+  );
   const kept: Finding[] = [];
   for (const f of sorted) {
     if (!kept.some((k) => Math.abs(k.freqHz - f.freqHz) <= fraction * f.freqHz)) kept.push(f);

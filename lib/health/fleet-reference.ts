@@ -91,7 +91,11 @@ export function robustZ(x: number, centre: number, sigma: number, minSigma: numb
 }
 
 /** The reference of one design from its members' baselines, leaving out `excludeId`. */
-export function buildFleetReference(design: string, members: readonly FleetMember[], excludeId?: string): FleetReference {
+export function buildFleetReference(
+  design: string,
+  members: readonly FleetMember[],
+  excludeId?: string,
+): FleetReference {
   const fleet = members.filter((m) => m.id !== excludeId);
   return {
     design,
@@ -106,7 +110,11 @@ function clusterModes(fleet: readonly FleetMember[]): FleetMode[] {
   const out: FleetMode[] = [];
   const axes = [...new Set(fleet.flatMap((m) => m.modes.map((x) => x.axis)))];
   for (const axis of axes) {
-    const all = fleet.flatMap((m) => m.modes.filter((x) => x.axis === axis).map((x) => ({ id: m.id, freqHz: x.freqHz }))).sort((a, b) => a.freqHz - b.freqHz);
+    const all = fleet
+      .flatMap((m) =>
+        m.modes.filter((x) => x.axis === axis).map((x) => ({ id: m.id, freqHz: x.freqHz })),
+      )
+      .sort((a, b) => a.freqHz - b.freqHz);
     let group: { id: string; freqHz: number }[] = [];
     const close = () => {
       if (group.length === 0) return;
@@ -115,13 +123,19 @@ function clusterModes(fleet: readonly FleetMember[]): FleetMode[] {
       const byId = new Map<string, number>();
       for (const g of group) {
         const had = byId.get(g.id);
-        if (had === undefined || Math.abs(g.freqHz - centre) < Math.abs(had - centre)) byId.set(g.id, g.freqHz);
+        if (had === undefined || Math.abs(g.freqHz - centre) < Math.abs(had - centre))
+          byId.set(g.id, g.freqHz);
       }
       const members = [...byId].map(([id, freqHz]) => ({ id, freqHz }));
       // A mode only some airframes show is not a property of the design.
       if (members.length >= 2 && members.length >= fleet.length / 2) {
         const freqs = members.map((m) => m.freqHz);
-        out.push({ axis, medianHz: median(freqs), sigmaHz: MAD_TO_SIGMA * medianAbsoluteDeviation(freqs), members });
+        out.push({
+          axis,
+          medianHz: median(freqs),
+          sigmaHz: MAD_TO_SIGMA * medianAbsoluteDeviation(freqs),
+          members,
+        });
       }
       group = [];
     };
@@ -141,7 +155,10 @@ function pooledLevels(fleet: readonly FleetMember[]): FleetLevel[] {
     for (const l of m.levels) {
       if (!Number.isFinite(l.db)) continue;
       const k = `${l.throttleBand}:${l.axis}:${l.band}`;
-      const cell = cells.get(k) ?? { key: { throttleBand: l.throttleBand, axis: l.axis, band: l.band }, values: [] };
+      const cell = cells.get(k) ?? {
+        key: { throttleBand: l.throttleBand, axis: l.axis, band: l.band },
+        values: [],
+      };
       cell.values.push(l.db);
       cells.set(k, cell);
     }
@@ -188,16 +205,27 @@ const round1 = (v: number) => Math.round(v * 10) / 10;
  * Places one airframe's modes and levels against the fleet's reference (which must have been built
  * without it). Nothing is said when the reference rests on too few airframes.
  */
-export function judgeAgainstFleet(reference: FleetReference, subject: FleetMember, options: JudgeOptions): FleetNote[] {
+export function judgeAgainstFleet(
+  reference: FleetReference,
+  subject: FleetMember,
+  options: JudgeOptions,
+): FleetNote[] {
   if (!reference.enough) return [];
   const t = options.thresholds ?? DEFAULT_THRESHOLDS;
   const notes: FleetNote[] = [];
-  const whose = options.what === "baseline" ? `${subject.name}'s baseline` : `${subject.name}'s log (judged against the fleet, no baseline of its own)`;
+  const whose =
+    options.what === "baseline"
+      ? `${subject.name}'s baseline`
+      : `${subject.name}'s log (judged against the fleet, no baseline of its own)`;
   const fleetWords = `the median of ${reference.airframes} sister airframes of ${reference.design}`;
   for (const mode of reference.modes) {
     const window = SEARCH_WINDOW_FRACTION * mode.medianHz;
-    const candidates = subject.modes.filter((m) => m.axis === mode.axis && Math.abs(m.freqHz - mode.medianHz) <= window);
-    const nearest = candidates.sort((a, b) => Math.abs(a.freqHz - mode.medianHz) - Math.abs(b.freqHz - mode.medianHz))[0];
+    const candidates = subject.modes.filter(
+      (m) => m.axis === mode.axis && Math.abs(m.freqHz - mode.medianHz) <= window,
+    );
+    const nearest = candidates.sort(
+      (a, b) => Math.abs(a.freqHz - mode.medianHz) - Math.abs(b.freqHz - mode.medianHz),
+    )[0];
     if (!nearest) {
       if (mode.members.length >= COMMON_MODE_SHARE * reference.airframes) {
         notes.push({
@@ -210,7 +238,12 @@ export function judgeAgainstFleet(reference: FleetReference, subject: FleetMembe
       }
       continue;
     }
-    const z = robustZ(nearest.freqHz, mode.medianHz, mode.sigmaHz, MIN_MODE_SIGMA_FRACTION * mode.medianHz);
+    const z = robustZ(
+      nearest.freqHz,
+      mode.medianHz,
+      mode.sigmaHz,
+      MIN_MODE_SIGMA_FRACTION * mode.medianHz,
+    );
     const deviationPct = ((nearest.freqHz - mode.medianHz) / mode.medianHz) * 100;
     const step = stepOf(Math.abs(deviationPct), t.modeShiftPct);
     if (Math.abs(z) <= OUTLIER_Z || !step) continue;
@@ -238,7 +271,10 @@ export function judgeAgainstFleet(reference: FleetReference, subject: FleetMembe
   if (options.what === "log") {
     const worstPerAxis = new Map<Axis, FleetNote>();
     for (const level of subject.levels) {
-      const ref = reference.levels.find((l) => l.throttleBand === level.throttleBand && l.axis === level.axis && l.band === level.band);
+      const ref = reference.levels.find(
+        (l) =>
+          l.throttleBand === level.throttleBand && l.axis === level.axis && l.band === level.band,
+      );
       if (!ref || ref.airframes < MIN_FLEET_AIRFRAMES) continue;
       const deltaDb = level.db - ref.medianDb;
       const z = robustZ(level.db, ref.medianDb, ref.sigmaDb, MIN_LEVEL_SIGMA_DB);
@@ -270,7 +306,9 @@ export function memberFromBaseline(id: string, name: string, baseline: Baseline)
     name,
     modes: baseline.modes.map((m) => ({ axis: m.axis, freqHz: m.freqHz })),
     levels: baseline.throttleBands.flatMap((tb) =>
-      AXES.flatMap((axis) => tb.axes[axis].bandDb.map((db, band) => ({ throttleBand: tb.index, axis, band, db }))),
+      AXES.flatMap((axis) =>
+        tb.axes[axis].bandDb.map((db, band) => ({ throttleBand: tb.index, axis, band, db })),
+      ),
     ),
   };
 }
@@ -280,9 +318,17 @@ export function memberFromLog(id: string, name: string, analysis: LogAnalysis): 
   return {
     id,
     name,
-    modes: AXES.flatMap((axis) => analysis.axes[axis].peaks.filter((p) => p.kind === "structural").map((p) => ({ axis, freqHz: p.freqHz }))),
+    modes: AXES.flatMap((axis) =>
+      analysis.axes[axis].peaks
+        .filter((p) => p.kind === "structural")
+        .map((p) => ({ axis, freqHz: p.freqHz })),
+    ),
     levels: analysis.throttleBands
       .filter((tb) => tb.segments >= DEFAULT_ANALYSIS.minBandSegments)
-      .flatMap((tb) => AXES.flatMap((axis) => tb.axes[axis].bandDb.map((db, band) => ({ throttleBand: tb.index, axis, band, db })))),
+      .flatMap((tb) =>
+        AXES.flatMap((axis) =>
+          tb.axes[axis].bandDb.map((db, band) => ({ throttleBand: tb.index, axis, band, db })),
+        ),
+      ),
   };
 }

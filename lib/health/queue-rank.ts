@@ -14,7 +14,10 @@ export interface AirframeFacts {
   latest: { status: Status; score: number | null; findings: Finding[]; flownAt: Date } | null;
   hasBaseline: boolean;
   /** The fleet's view: of the baseline (questioned when off its sisters) or, with none, of the latest log. */
-  fleet?: { judged: "baseline" | "log" | null; notes: { text: string; severity: Exclude<Status, "ok"> }[] } | null;
+  fleet?: {
+    judged: "baseline" | "log" | null;
+    notes: { text: string; severity: Exclude<Status, "ok"> }[];
+  } | null;
   /** Set when parts that change the spectrum were fitted after the baseline's flights. */
   staleBaseline?: { reason: string } | null;
   openCrashes: { at: Date; severity: string; positions: string[] }[];
@@ -36,7 +39,13 @@ export interface QueueEntry {
   state: string;
 }
 
-const DAY = new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "short", hour: "2-digit", minute: "2-digit", timeZone: "UTC" });
+const DAY = new Intl.DateTimeFormat("en-GB", {
+  day: "numeric",
+  month: "short",
+  hour: "2-digit",
+  minute: "2-digit",
+  timeZone: "UTC",
+});
 
 export function rankQueue(fleet: readonly AirframeFacts[]): QueueEntry[] {
   const entries = fleet.map((a) => {
@@ -47,22 +56,30 @@ export function rankQueue(fleet: readonly AirframeFacts[]): QueueEntry[] {
       status = worstStatus(status, "ground");
     }
     for (const c of a.openCrashes) {
-      reasons.push(`${c.severity} crash on ${DAY.format(c.at)} UTC${c.positions.length ? ` (${c.positions.join(", ")})` : ""} with no inspection since`);
+      reasons.push(
+        `${c.severity} crash on ${DAY.format(c.at)} UTC${c.positions.length ? ` (${c.positions.join(", ")})` : ""} with no inspection since`,
+      );
       status = worstStatus(status, c.severity === "minor" ? "inspect" : "ground");
     }
     if (a.latest && a.latest.score === null) {
       // No score is not a good score: a log without usable signal says nothing about the quad.
-      reasons.push("log unusable: the latest log could not be compared with the baseline (see its notes); fly a short check and upload it");
+      reasons.push(
+        "log unusable: the latest log could not be compared with the baseline (see its notes); fly a short check and upload it",
+      );
       status = worstStatus(status, "watch");
     }
     for (const f of a.latest?.findings.slice(0, 3) ?? []) reasons.push(f.text);
     for (const p of a.partsPastLife) {
-      reasons.push(`${p.what} at ${p.position} has used ${Math.round(p.fraction * 100)} % of its life limit: replace it`);
+      reasons.push(
+        `${p.what} at ${p.position} has used ${Math.round(p.fraction * 100)} % of its life limit: replace it`,
+      );
       status = worstStatus(status, "watch");
     }
     // A stale baseline already says "fly one log"; the plain no-log reason would say it twice.
     if (a.noLogSince && !a.staleBaseline) {
-      reasons.push(`no log flown since the ${a.noLogSince.what} on ${DAY.format(a.noLogSince.at)} UTC: fly a short check and upload it`);
+      reasons.push(
+        `no log flown since the ${a.noLogSince.what} on ${DAY.format(a.noLogSince.at)} UTC: fly a short check and upload it`,
+      );
       status = worstStatus(status, "watch");
     }
     if (a.staleBaseline) {
@@ -88,7 +105,16 @@ export function rankQueue(fleet: readonly AirframeFacts[]): QueueEntry[] {
     const score = a.latest?.score ?? null;
     // Status first, then the lower score, then the longer list of reasons.
     const urgency = STATUS_ORDER.indexOf(status) * 1000 + (100 - (score ?? 100)) + reasons.length;
-    return { id: a.id, name: a.name, status, score, reasons, urgency, inNextHeat: a.inNextHeat, state: a.state };
+    return {
+      id: a.id,
+      name: a.name,
+      status,
+      score,
+      reasons,
+      urgency,
+      inNextHeat: a.inNextHeat,
+      state: a.state,
+    };
   });
   return entries.sort((x, y) => y.urgency - x.urgency || x.name.localeCompare(y.name));
 }

@@ -1,6 +1,12 @@
 import type { Finding } from "./compare";
 import { MOTOR_POSITIONS } from "./motor-positions";
-import { DEFAULT_THRESHOLDS, statusForScore, worstStatus, type HealthThresholds, type Status } from "./thresholds";
+import {
+  DEFAULT_THRESHOLDS,
+  statusForScore,
+  worstStatus,
+  type HealthThresholds,
+  type Status,
+} from "./thresholds";
 
 /**
  * What a repair does to the spectrum, so that the first log after it is told apart from damage:
@@ -48,20 +54,26 @@ export function changesSpectrum(kind: string): boolean {
 export function motorAt(position: string): number | null {
   const m = /^motor\s+(\d+)/i.exec(position.trim());
   if (m?.[1]) return Number(m[1]);
-  const where = Object.entries(MOTOR_POSITIONS).find(([, name]) => position.toLowerCase() === `motor ${name}`);
+  const where = Object.entries(MOTOR_POSITIONS).find(
+    ([, name]) => position.toLowerCase() === `motor ${name}`,
+  );
   return where ? Number(where[0]) : null;
 }
 
 /** Repairs after the baseline that change the spectrum: what makes that baseline stale. */
 export function repairsSince(baselineAt: Date, repairs: readonly Repair[]): Repair[] {
-  return repairs.filter((r) => r.at > baselineAt && changesSpectrum(r.kind)).sort((a, b) => a.at.getTime() - b.at.getTime());
+  return repairs
+    .filter((r) => r.at > baselineAt && changesSpectrum(r.kind))
+    .sort((a, b) => a.at.getTime() - b.at.getTime());
 }
 
 function explains(repair: Repair, f: Finding): boolean {
   for (const effect of REPAIR_EFFECTS[repair.kind] ?? []) {
     if (effect === "all-motors" && f.motor !== undefined) return true;
-    if (effect === "own-motor" && f.motor !== undefined && f.motor === motorAt(repair.position)) return true;
-    if (effect !== "all-motors" && effect !== "own-motor" && KINDS_OF[effect].includes(f.kind)) return true;
+    if (effect === "own-motor" && f.motor !== undefined && f.motor === motorAt(repair.position))
+      return true;
+    if (effect !== "all-motors" && effect !== "own-motor" && KINDS_OF[effect].includes(f.kind))
+      return true;
   }
   return false;
 }
@@ -88,16 +100,34 @@ export function separateRepairEffects(
   assessment: { score: number | null; status: Status; findings: readonly Finding[] },
   repairs: readonly Repair[],
   h: HealthThresholds = DEFAULT_THRESHOLDS,
-): { score: number | null; status: Status; findings: Finding[]; changedAfterRepair: RepairExplained[] } {
-  if (repairs.length === 0) return { ...assessment, findings: [...assessment.findings], changedAfterRepair: [] };
+): {
+  score: number | null;
+  status: Status;
+  findings: Finding[];
+  changedAfterRepair: RepairExplained[];
+} {
+  if (repairs.length === 0)
+    return { ...assessment, findings: [...assessment.findings], changedAfterRepair: [] };
   const findings: Finding[] = [];
   const changedAfterRepair: RepairExplained[] = [];
   for (const f of assessment.findings) {
     const by = repairs.find((r) => explains(r, f));
-    if (by) changedAfterRepair.push({ ...f, points: 0, repair: repairWords(by), text: `changed after repair (${repairWords(by)}): ${f.text}` });
+    if (by)
+      changedAfterRepair.push({
+        ...f,
+        points: 0,
+        repair: repairWords(by),
+        text: `changed after repair (${repairWords(by)}): ${f.text}`,
+      });
     else findings.push(f);
   }
-  if (assessment.score === null || !Number.isFinite(assessment.score)) return { score: assessment.score, status: worstStatus(assessment.status, "watch"), findings, changedAfterRepair };
+  if (assessment.score === null || !Number.isFinite(assessment.score))
+    return {
+      score: assessment.score,
+      status: worstStatus(assessment.status, "watch"),
+      findings,
+      changedAfterRepair,
+    };
   const score = Math.max(0, Math.round(100 - findings.reduce((s, f) => s + f.points, 0)));
   let status = worstStatus(statusForScore(score, h), "watch");
   for (const f of findings) status = worstStatus(status, f.severity);

@@ -70,12 +70,19 @@ export function stepOf(magnitude: number, t: StepThresholds): Exclude<Status, "o
  * (ground, 50), then rising by 25 points per further ground-threshold's worth, capped. Strictly
  * increasing above watch, so a worse finding always costs more.
  */
-export function penaltyFor(magnitude: number, t: StepThresholds, h: HealthThresholds = DEFAULT_THRESHOLDS): number {
+export function penaltyFor(
+  magnitude: number,
+  t: StepThresholds,
+  h: HealthThresholds = DEFAULT_THRESHOLDS,
+): number {
   const p = h.penalty;
   if (magnitude < t.watch) return 0;
   let points: number;
-  if (magnitude < t.inspect) points = p.watch + ((magnitude - t.watch) / (t.inspect - t.watch)) * (p.inspect - p.watch);
-  else if (magnitude < t.ground) points = p.inspect + ((magnitude - t.inspect) / (t.ground - t.inspect)) * (p.ground - p.inspect);
+  if (magnitude < t.inspect)
+    points = p.watch + ((magnitude - t.watch) / (t.inspect - t.watch)) * (p.inspect - p.watch);
+  else if (magnitude < t.ground)
+    points =
+      p.inspect + ((magnitude - t.inspect) / (t.ground - t.inspect)) * (p.ground - p.inspect);
   else points = p.ground + ((magnitude - t.ground) / t.ground) * 25;
   return Math.min(h.maxPenalty, Math.round(points * 10) / 10);
 }

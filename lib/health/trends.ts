@@ -31,13 +31,20 @@ export function trendPoint(analysis: LogAnalysis, baseline: Baseline): TrendPoin
     const window = MODE_WINDOW_FRACTION * mode.freqHz;
     let best: number | null = null;
     for (const p of analysis.axes[mode.axis].peaks) {
-      if (Math.abs(p.freqHz - mode.freqHz) <= window && (best === null || Math.abs(p.freqHz - mode.freqHz) < Math.abs(best - mode.freqHz))) best = p.freqHz;
+      if (
+        Math.abs(p.freqHz - mode.freqHz) <= window &&
+        (best === null || Math.abs(p.freqHz - mode.freqHz) < Math.abs(best - mode.freqHz))
+      )
+        best = p.freqHz;
     }
-    modeShiftPct[modeKey(mode)] = best === null ? null : Math.round(((best - mode.freqHz) / mode.freqHz) * 1000) / 10;
+    modeShiftPct[modeKey(mode)] =
+      best === null ? null : Math.round(((best - mode.freqHz) / mode.freqHz) * 1000) / 10;
   }
   const bandRiseDb = { roll: null, pitch: null, yaw: null } as Record<Axis, number | null>;
   const pairs = baseline.throttleBands.flatMap((b) => {
-    const mine = analysis.throttleBands.find((x) => x.index === b.index && x.segments >= DEFAULT_ANALYSIS.minBandSegments);
+    const mine = analysis.throttleBands.find(
+      (x) => x.index === b.index && x.segments >= DEFAULT_ANALYSIS.minBandSegments,
+    );
     return mine ? [{ weight: b.segments, log: mine, base: b }] : [];
   });
   const total = pairs.reduce((s, p) => s + p.weight, 0);
@@ -46,7 +53,11 @@ export function trendPoint(analysis: LogAnalysis, baseline: Baseline): TrendPoin
       let worst = -Infinity;
       for (let i = 0; i < baseline.bands.length; i++) {
         let delta = 0;
-        for (const p of pairs) delta += (p.weight / total) * ((p.log.axes[axis].bandDb[i] ?? Number.NaN) - (p.base.axes[axis].bandDb[i] ?? Number.NaN));
+        for (const p of pairs)
+          delta +=
+            (p.weight / total) *
+            ((p.log.axes[axis].bandDb[i] ?? Number.NaN) -
+              (p.base.axes[axis].bandDb[i] ?? Number.NaN));
         if (Number.isFinite(delta)) worst = Math.max(worst, delta);
       }
       bandRiseDb[axis] = Number.isFinite(worst) ? Math.round(worst * 10) / 10 : null;

@@ -55,12 +55,20 @@ const RATE_UNITS: readonly RateUnit[] = ["deg/s", "rad/s"];
 const THROTTLE_UNITS: readonly ThrottleUnit[] = ["fraction", "percent", "pulse-us", "auto"];
 const RPM_UNITS: readonly RpmUnit[] = ["rpm", "hz"];
 
-function pick<T extends string>(allowed: readonly T[], unit: string | undefined, fallback: T, key: string): T {
+function pick<T extends string>(
+  allowed: readonly T[],
+  unit: string | undefined,
+  fallback: T,
+  key: string,
+): T {
   if (unit === undefined || unit === "") return fallback;
   const u = unit.trim().toLowerCase().replace("µ", "u");
   const found = allowed.find((a) => a === u);
   if (!found) {
-    throw new InputError(`unit "${unit}" is not known for ${key}; use one of ${allowed.join(", ")}`, "map");
+    throw new InputError(
+      `unit "${unit}" is not known for ${key}; use one of ${allowed.join(", ")}`,
+      "map",
+    );
   }
   return found;
 }
@@ -71,13 +79,16 @@ export function channelFor(key: string, unit?: string): Channel {
   if (k === "time") return { kind: "time", unit: pick(TIME_UNITS, unit, "us", k) };
   if (k === "throttle") return { kind: "throttle", unit: pick(THROTTLE_UNITS, unit, "auto", k) };
   for (const axis of AXES) {
-    if (k === axis || k === `gyro_${axis}`) return { kind: "gyro", axis, unit: pick(RATE_UNITS, unit, "deg/s", k) };
-    if (k === `setpoint_${axis}`) return { kind: "setpoint", axis, unit: pick(RATE_UNITS, unit, "deg/s", k) };
+    if (k === axis || k === `gyro_${axis}`)
+      return { kind: "gyro", axis, unit: pick(RATE_UNITS, unit, "deg/s", k) };
+    if (k === `setpoint_${axis}`)
+      return { kind: "setpoint", axis, unit: pick(RATE_UNITS, unit, "deg/s", k) };
   }
   const rpm = /^rpm_?(\d)$/.exec(k);
   if (rpm) {
     const motor = Number(rpm[1]);
-    if (motor < 1 || motor > MAX_MOTORS) throw new InputError(`motors are numbered 1 to ${MAX_MOTORS}, got ${key}`, "map");
+    if (motor < 1 || motor > MAX_MOTORS)
+      throw new InputError(`motors are numbered 1 to ${MAX_MOTORS}, got ${key}`, "map");
     return { kind: "rpm", motor, unit: pick(RPM_UNITS, unit, "rpm", k) };
   }
   throw new InputError(
@@ -95,7 +106,11 @@ export function parseColumnMap(text: string): ColumnMap {
   for (const part of text.split(",")) {
     if (part.trim() === "") continue;
     const eq = part.indexOf("=");
-    if (eq <= 0) throw new InputError(`map entry "${part.trim()}" must look like key=Header or key=Header|unit`, "map");
+    if (eq <= 0)
+      throw new InputError(
+        `map entry "${part.trim()}" must look like key=Header or key=Header|unit`,
+        "map",
+      );
     const key = part.slice(0, eq);
     const rest = part.slice(eq + 1);
     const bar = rest.lastIndexOf("|");
@@ -122,7 +137,10 @@ export function checkMap(map: ColumnMap): ColumnMap {
     seen.add(key);
     const other = keyOfHeader.get(b.header);
     if (other !== undefined) {
-      throw new InputError(`the map binds the column "${b.header}" twice (to ${other} and to ${key}); give each key its own column`, "map");
+      throw new InputError(
+        `the map binds the column "${b.header}" twice (to ${other} and to ${key}); give each key its own column`,
+        "map",
+      );
     }
     keyOfHeader.set(b.header, key);
   }
@@ -144,9 +162,11 @@ export function canonicalMap(headers: readonly string[]): ColumnMap | undefined 
     if (!has(`gyro_${axis}`)) return undefined;
     map.push({ header: `gyro_${axis}`, channel: { kind: "gyro", axis, unit: "deg/s" } });
   }
-  if (has("throttle")) map.push({ header: "throttle", channel: { kind: "throttle", unit: "fraction" } });
+  if (has("throttle"))
+    map.push({ header: "throttle", channel: { kind: "throttle", unit: "fraction" } });
   for (let m = 1; m <= MAX_MOTORS; m++) {
-    if (has(`rpm_${m}`)) map.push({ header: `rpm_${m}`, channel: { kind: "rpm", motor: m, unit: "rpm" } });
+    if (has(`rpm_${m}`))
+      map.push({ header: `rpm_${m}`, channel: { kind: "rpm", motor: m, unit: "rpm" } });
   }
   for (const axis of AXES) {
     if (has(`setpoint_${axis}`)) {
@@ -182,7 +202,10 @@ const AXIS_WORDS: Record<Axis, RegExp> = {
  * 1-based); without a time word, a column with a time unit in its name whose first values (`rows`,
  * when given) only rise. It is a proposal: the user confirms it, and every guess is said in words.
  */
-export function proposeColumnMap(headers: readonly string[], rows: readonly (readonly (number | null)[])[] = []): MapProposal {
+export function proposeColumnMap(
+  headers: readonly string[],
+  rows: readonly (readonly (number | null)[])[] = [],
+): MapProposal {
   const canonical = canonicalMap(headers);
   if (canonical) return { map: canonical, guesses: [], missing: [] };
   const map: ColumnMap = [];
@@ -200,15 +223,35 @@ export function proposeColumnMap(headers: readonly string[], rows: readonly (rea
   lower.forEach((h, i) => {
     const header = headers[i] ?? "";
     if (!/time|timestamp|\bt\b/.test(h)) return;
-    const unit: TimeUnit = /\bus\b|usec|micro|\(us\)|_us/.test(h) ? "us" : /ms|milli/.test(h) ? "ms" : /\(s\)|_s\b|sec/.test(h) ? "s" : "us";
-    bind(header, { kind: "time", unit }, unit === "us" && !/us/.test(h) ? "no unit in the name, assumed µs" : "time word");
+    const unit: TimeUnit = /\bus\b|usec|micro|\(us\)|_us/.test(h)
+      ? "us"
+      : /ms|milli/.test(h)
+        ? "ms"
+        : /\(s\)|_s\b|sec/.test(h)
+          ? "s"
+          : "us";
+    bind(
+      header,
+      { kind: "time", unit },
+      unit === "us" && !/us/.test(h) ? "no unit in the name, assumed µs" : "time word",
+    );
   });
   // No time word: a column with a time unit as a word of its name whose first values only rise.
   if (!taken.has("time")) {
     lower.forEach((h, i) => {
-      const unit: TimeUnit | null = /(^|[\s_(\[])(us|usec)([\s_)\]]|$)/.test(h) ? "us" : /(^|[\s_(\[])ms([\s_)\]]|$)/.test(h) ? "ms" : /(^|[\s_(\[])(s|sec)([\s_)\]]|$)/.test(h) ? "s" : null;
+      const unit: TimeUnit | null = /(^|[\s_(\[])(us|usec)([\s_)\]]|$)/.test(h)
+        ? "us"
+        : /(^|[\s_(\[])ms([\s_)\]]|$)/.test(h)
+          ? "ms"
+          : /(^|[\s_(\[])(s|sec)([\s_)\]]|$)/.test(h)
+            ? "s"
+            : null;
       if (!unit || !rises(rows, i)) return;
-      bind(headers[i] ?? "", { kind: "time", unit }, `${unit} in the name and its values only rise`);
+      bind(
+        headers[i] ?? "",
+        { kind: "time", unit },
+        `${unit} in the name and its values only rise`,
+      );
     });
   }
   const gyroLike = lower.map((h) => /gyro|rate|gyr/.test(h) && !/setpoint|target|rc/.test(h));
@@ -219,14 +262,19 @@ export function proposeColumnMap(headers: readonly string[], rows: readonly (rea
     const unit: RateUnit = /rad/.test(h) ? "rad/s" : "deg/s";
     for (const axis of AXES) {
       if (AXIS_WORDS[axis].test(h)) {
-        bind(header, { kind: "gyro", axis, unit }, unit === "rad/s" ? "rad in the name" : "rate assumed in deg/s");
+        bind(
+          header,
+          { kind: "gyro", axis, unit },
+          unit === "rad/s" ? "rad in the name" : "rate assumed in deg/s",
+        );
         break;
       }
     }
   });
   lower.forEach((h, i) => {
     const header = headers[i] ?? "";
-    if (/throttle|\bthr\b|thrust/.test(h)) bind(header, { kind: "throttle", unit: "auto" }, "scale told by the values");
+    if (/throttle|\bthr\b|thrust/.test(h))
+      bind(header, { kind: "throttle", unit: "auto" }, "scale told by the values");
   });
   const rpmHeaders = lower
     .map((h, i) => ({ h, i, n: /(?:rpm|motor|mot|esc)\D*(\d)/.exec(h) }))
@@ -236,7 +284,11 @@ export function proposeColumnMap(headers: readonly string[], rows: readonly (rea
     const motor = Number(r.n?.[1]) + (zeroBased ? 1 : 0);
     if (motor < 1 || motor > MAX_MOTORS) continue;
     const unit: RpmUnit = /hz|freq/.test(r.h) ? "hz" : "rpm";
-    bind(headers[r.i] ?? "", { kind: "rpm", motor, unit }, zeroBased ? "numbered from 0, shifted to 1" : "motor number in the name");
+    bind(
+      headers[r.i] ?? "",
+      { kind: "rpm", motor, unit },
+      zeroBased ? "numbered from 0, shifted to 1" : "motor number in the name",
+    );
   }
   const missing = ["time", ...AXES].filter((k) => !taken.has(k));
   return { map, guesses, missing };

@@ -1,4 +1,13 @@
-import { AXES, channelFor, channelKey, checkMap, formatColumnMap, MAX_MOTORS, type Channel, type ColumnMap } from "./columns";
+import {
+  AXES,
+  channelFor,
+  channelKey,
+  checkMap,
+  formatColumnMap,
+  MAX_MOTORS,
+  type Channel,
+  type ColumnMap,
+} from "./columns";
 
 /**
  * What the import screen's column-map table needs: the keys heatcheck reads with the units each
@@ -19,9 +28,24 @@ export function mapKeys(motors = 4): MapKey[] {
   return [
     { key: "time", label: "time", required: true, units: ["us", "ms", "s"] },
     ...AXES.map((a) => ({ key: a, label: `gyro ${a}`, required: true, units: ["deg/s", "rad/s"] })),
-    { key: "throttle", label: "throttle", required: false, units: ["auto", "fraction", "percent", "pulse-us"] },
-    ...Array.from({ length: n }, (_, i) => ({ key: `rpm${i + 1}`, label: `motor ${i + 1} speed`, required: false, units: ["rpm", "hz"] })),
-    ...AXES.map((a) => ({ key: `setpoint_${a}`, label: `setpoint ${a}`, required: false, units: ["deg/s", "rad/s"] })),
+    {
+      key: "throttle",
+      label: "throttle",
+      required: false,
+      units: ["auto", "fraction", "percent", "pulse-us"],
+    },
+    ...Array.from({ length: n }, (_, i) => ({
+      key: `rpm${i + 1}`,
+      label: `motor ${i + 1} speed`,
+      required: false,
+      units: ["rpm", "hz"],
+    })),
+    ...AXES.map((a) => ({
+      key: `setpoint_${a}`,
+      label: `setpoint ${a}`,
+      required: false,
+      units: ["deg/s", "rad/s"],
+    })),
   ];
 }
 
@@ -33,7 +57,11 @@ export function previewRows(text: string, headerLine: number, max = 5): (number 
   for (let i = headerLine; i < lines.length - 1 && rows.length < max; i++) {
     const line = lines[i] ?? "";
     if (line.trim() === "" || line.startsWith("#")) continue;
-    rows.push(line.split(",").map((c) => (c.trim() === "" || !Number.isFinite(Number(c)) ? null : Number(c))));
+    rows.push(
+      line
+        .split(",")
+        .map((c) => (c.trim() === "" || !Number.isFinite(Number(c)) ? null : Number(c))),
+    );
   }
   return rows;
 }
@@ -49,7 +77,8 @@ export function convertedValue(channel: Channel, raw: number, t0 = 0): number {
     case "throttle":
       if (channel.unit === "percent") return raw / 100;
       if (channel.unit === "pulse-us") return (raw - 1000) / 1000;
-      if (channel.unit === "auto") return raw > 100.01 ? (raw - 1000) / 1000 : raw > 1.0001 ? raw / 100 : raw;
+      if (channel.unit === "auto")
+        return raw > 100.01 ? (raw - 1000) / 1000 : raw > 1.0001 ? raw / 100 : raw;
       return raw;
     case "rpm":
       return channel.unit === "hz" ? raw * 60 : raw;
@@ -69,7 +98,10 @@ export function draftOf(mapText: string): MapDraft {
     const bar = rest.lastIndexOf("|");
     try {
       const channel = channelFor(part.slice(0, eq), bar >= 0 ? rest.slice(bar + 1) : undefined);
-      draft[channelKey(channel)] = { header: (bar >= 0 ? rest.slice(0, bar) : rest).trim(), unit: channel.unit };
+      draft[channelKey(channel)] = {
+        header: (bar >= 0 ? rest.slice(0, bar) : rest).trim(),
+        unit: channel.unit,
+      };
     } catch {
       // an entry the table cannot show is dropped from it; the user sees the key unmapped
     }
@@ -80,7 +112,8 @@ export function draftOf(mapText: string): MapDraft {
 /** The draft as a map string (the syntax the CLI and import profiles use) and what is still wrong with it. */
 export function draftToMap(draft: MapDraft): { mapText: string; problem: string | null } {
   const map: ColumnMap = [];
-  for (const [key, v] of Object.entries(draft)) if (v.header !== "") map.push({ header: v.header, channel: channelFor(key, v.unit) });
+  for (const [key, v] of Object.entries(draft))
+    if (v.header !== "") map.push({ header: v.header, channel: channelFor(key, v.unit) });
   const mapText = formatColumnMap(map);
   try {
     checkMap(map);

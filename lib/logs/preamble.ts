@@ -19,14 +19,19 @@ export const MAX_PREAMBLE_BYTES = 4 * 1024 * 1024;
 export function nonTextKind(head: Uint8Array): string | null {
   const b0 = head[0];
   const b1 = head[1];
-  if (b0 === 0x1f && b1 === 0x8b) return "the file is gzip-compressed, not CSV text: unpack it and give the .csv inside";
+  if (b0 === 0x1f && b1 === 0x8b)
+    return "the file is gzip-compressed, not CSV text: unpack it and give the .csv inside";
   if (b0 === 0x50 && b1 === 0x4b && head[2] === 0x03 && head[3] === 0x04) {
     return "the file is a zip archive, not CSV text: unpack it and give the .csv inside";
   }
-  if ((b0 === 0xff && b1 === 0xfe && head[2] === 0 && head[3] === 0) || (b0 === 0 && b1 === 0 && head[2] === 0xfe && head[3] === 0xff)) {
+  if (
+    (b0 === 0xff && b1 === 0xfe && head[2] === 0 && head[3] === 0) ||
+    (b0 === 0 && b1 === 0 && head[2] === 0xfe && head[3] === 0xff)
+  ) {
     return "the file is UTF-32 text: save it as UTF-8 CSV";
   }
-  if ((b0 === 0xff && b1 === 0xfe) || (b0 === 0xfe && b1 === 0xff)) return "the file is UTF-16 text: save it as UTF-8 CSV";
+  if ((b0 === 0xff && b1 === 0xfe) || (b0 === 0xfe && b1 === 0xff))
+    return "the file is UTF-16 text: save it as UTF-8 CSV";
   // No mark: ASCII written as UTF-16 has a NUL in every odd (little-endian) or even (big-endian) byte.
   const n = Math.min(head.length, 512) & ~1;
   if (n >= 8) {
@@ -62,7 +67,9 @@ export function splitHeader(line: string): string[] {
  */
 export function separatorHint(line: string): string {
   if (line.includes(",")) return "";
-  if (line.includes(";")) return " (the columns seem separated by semicolons; heatcheck reads comma-separated files)";
-  if (line.includes("\t")) return " (the columns seem separated by tabs; heatcheck reads comma-separated files)";
+  if (line.includes(";"))
+    return " (the columns seem separated by semicolons; heatcheck reads comma-separated files)";
+  if (line.includes("\t"))
+    return " (the columns seem separated by tabs; heatcheck reads comma-separated files)";
   return "";
 }

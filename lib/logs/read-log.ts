@@ -10,7 +10,14 @@ import {
 } from "./columns";
 import { round } from "../signal/stats";
 import { EMPTY_CELL, POW10, parseDecimal } from "./parse-number";
-import { MAX_LINE_BYTES, MAX_PREAMBLE_BYTES, metadataEntry, nonTextKind, separatorHint, splitHeader } from "./preamble";
+import {
+  MAX_LINE_BYTES,
+  MAX_PREAMBLE_BYTES,
+  metadataEntry,
+  nonTextKind,
+  separatorHint,
+  splitHeader,
+} from "./preamble";
 
 /**
  * Streaming reader for heatcheck's CSV log format:
@@ -121,12 +128,16 @@ export async function readLog(
 }
 
 /** The next chunk of a byte stream; a stream that fails (a file removed mid-read, a dropped upload) is an unreadable file. */
-export async function nextChunk(chunks: AsyncIterator<Uint8Array>): Promise<IteratorResult<Uint8Array>> {
+export async function nextChunk(
+  chunks: AsyncIterator<Uint8Array>,
+): Promise<IteratorResult<Uint8Array>> {
   try {
     return await chunks.next();
   } catch (e) {
     if (isDomainError(e)) throw e;
-    throw new LogFormatError(`the file could not be read (${e instanceof Error ? e.message : String(e)})`);
+    throw new LogFormatError(
+      `the file could not be read (${e instanceof Error ? e.message : String(e)})`,
+    );
   }
 }
 
@@ -239,7 +250,10 @@ export class LogReader {
   push(input: Uint8Array): void {
     if (input.length === 0 || this.head) return;
     // Node hands Buffers, tests hand Uint8Arrays: one element type keeps the hot loop monomorphic.
-    let chunk = input.constructor === Uint8Array ? input : new Uint8Array(input.buffer, input.byteOffset, input.length);
+    let chunk =
+      input.constructor === Uint8Array
+        ? input
+        : new Uint8Array(input.buffer, input.byteOffset, input.length);
     // Bytes up to the limit are read first, so the limit is met at the same byte however the file is cut.
     const over = this.bytes + chunk.length > this.maxBytes;
     if (over) chunk = chunk.subarray(0, Math.max(0, this.maxBytes - this.bytes));
@@ -276,7 +290,8 @@ export class LogReader {
       else if (i + 1 < n) ending = b[i + 1] === 10 ? "lf" : "cr";
       else if (final) ending = "lf";
     }
-    const decided = final || n > MAX_LINE_BYTES + 1 || (n >= KIND_PROBE_BYTES && ending !== "unknown");
+    const decided =
+      final || n > MAX_LINE_BYTES + 1 || (n >= KIND_PROBE_BYTES && ending !== "unknown");
     if (!decided) return;
     const kind = nonTextKind(b.subarray(0, Math.min(n, KIND_PROBE_BYTES)));
     if (kind) throw new LogFormatError(kind);
@@ -334,7 +349,9 @@ export class LogReader {
   /** A line that never ends is not a CSV log (binary data, or a file with no newlines). */
   private longLine(line: number): LogFormatError {
     const what = this.layout ? "this is not a row of numbers" : "this does not look like a CSV log";
-    return new LogFormatError(`the line is longer than ${formatBytes(MAX_LINE_BYTES)}: ${what}`, { line });
+    return new LogFormatError(`the line is longer than ${formatBytes(MAX_LINE_BYTES)}: ${what}`, {
+      line,
+    });
   }
 
   /**
@@ -368,7 +385,9 @@ export class LogReader {
     this.endOfInput();
     if (this.head) return this.head;
     this.finish();
-    throw new LogFormatError("no header row was found: after the # metadata lines, the first line must name the columns");
+    throw new LogFormatError(
+      "no header row was found: after the # metadata lines, the first line must name the columns",
+    );
   }
 
   finish(): ReadSummary {
@@ -379,12 +398,14 @@ export class LogReader {
         "no header row was found: after the # metadata lines, the first line must name the columns",
       );
     }
-    if (this.dataRows === 0) throw new LogFormatError("the header is there but no sample rows follow it");
+    if (this.dataRows === 0)
+      throw new LogFormatError("the header is there but no sample rows follow it");
     this.checkDamage();
     if (!this.info) this.decideRate();
     this.flush();
     const info = this.info;
-    if (!info) throw new LogFormatError("the header is there but no complete sample rows follow it");
+    if (!info)
+      throw new LogFormatError("the header is there but no complete sample rows follow it");
     return {
       info,
       samples: this.samples,
@@ -449,11 +470,16 @@ export class LogReader {
         throw new LogFormatError("the file holds binary data, not CSV text", { line: this.line });
       }
     }
-    const text = new TextDecoder("utf-8", { fatal: false }).decode(bytes.subarray(start, end)).replace(/^\uFEFF/, "");
+    const text = new TextDecoder("utf-8", { fatal: false })
+      .decode(bytes.subarray(start, end))
+      .replace(/^\uFEFF/, "");
     if (text.includes("\uFFFD")) {
-      throw new LogFormatError("the file holds binary data or an unknown text encoding, not UTF-8 CSV", {
-        line: this.line,
-      });
+      throw new LogFormatError(
+        "the file holds binary data or an unknown text encoding, not UTF-8 CSV",
+        {
+          line: this.line,
+        },
+      );
     }
     const trimmed = text.trim();
     if (trimmed === "") return;
@@ -484,7 +510,8 @@ export class LogReader {
       if (!map) {
         const proposal = proposeColumnMap(headers);
         if (proposal.missing.length > 0 || this.options.allowGuess === false) {
-          const need = proposal.missing.length > 0 ? proposal.missing.join(", ") : "time, roll, pitch, yaw";
+          const need =
+            proposal.missing.length > 0 ? proposal.missing.join(", ") : "time, roll, pitch, yaw";
           throw new LogFormatError(
             `no column for ${need}: name the columns time_us, gyro_roll, gyro_pitch, gyro_yaw, or give a column map${separatorHint(text)}`,
             { line: this.line },
@@ -539,7 +566,8 @@ export class LogReader {
       if (slot < 0) {
         while (b !== 0x2c && b !== 0x0a) b = bytes[++i] as number;
         // A cell beyond the header's columns that holds something (not just a line's CR) shifts the row.
-        if (column >= columns && i - cellStart > (b === 0x0a && bytes[i - 1] === 0x0d ? 1 : 0)) extra = true;
+        if (column >= columns && i - cellStart > (b === 0x0a && bytes[i - 1] === 0x0d ? 1 : 0))
+          extra = true;
       } else {
         let negative = false;
         if (b === 0x2d) {
@@ -564,7 +592,11 @@ export class LogReader {
           }
         }
         let v: number;
-        if (digits > 0 && digits <= 15 && (b === 0x2c || b === 0x0a || (b === 0x0d && bytes[i + 1] === 0x0a))) {
+        if (
+          digits > 0 &&
+          digits <= 15 &&
+          (b === 0x2c || b === 0x0a || (b === 0x0d && bytes[i + 1] === 0x0a))
+        ) {
           v = scale === 0 ? mantissa : mantissa / (POW10[scale] as number);
           if (negative) v = -v;
         } else {
@@ -633,7 +665,13 @@ export class LogReader {
     return next;
   }
 
-  private badCell(bytes: Uint8Array, s: number, e: number, column: number, layout: Layout): LogFormatError {
+  private badCell(
+    bytes: Uint8Array,
+    s: number,
+    e: number,
+    column: number,
+    layout: Layout,
+  ): LogFormatError {
     let shown = "";
     for (let i = s; i < Math.min(e, s + 24); i++) {
       const b = bytes[i] ?? 0;
@@ -641,7 +679,9 @@ export class LogReader {
     }
     const binary = bytes.subarray(s, e).some((b) => b === 0 || (b < 0x20 && b !== 9));
     return new LogFormatError(
-      binary ? "binary data where a number was expected" : `expected a number, found "${shown}${e - s > 24 ? "…" : ""}"`,
+      binary
+        ? "binary data where a number was expected"
+        : `expected a number, found "${shown}${e - s > 24 ? "…" : ""}"`,
       { line: this.line, column: column + 1, columnName: layout.headers[column] },
     );
   }
@@ -650,7 +690,8 @@ export class LogReader {
   private decideRate(): void {
     const layout = this.layout as Layout;
     const n = this.rawCount;
-    if (n < 2) throw new LogFormatError("fewer than two complete sample rows: no sample rate can be told");
+    if (n < 2)
+      throw new LogFormatError("fewer than two complete sample rows: no sample rate can be told");
     const time = (this.raw[layout.time] as Float64Array).subarray(0, n);
     const period = fitSamplePeriod(time, this.rawMissed.subarray(0, n));
     // Rounded to 9 significant digits, far finer than 4096 stamps resolve: exact rates stay exact.
@@ -667,10 +708,13 @@ export class LogReader {
       const thr = (this.raw[layout.throttle] as Float64Array).subarray(0, n);
       let max = -Infinity;
       for (const v of thr) max = Math.max(max, v);
-      const unit: ThrottleUnit = max <= 1.0001 ? "fraction" : max <= 100.01 ? "percent" : "pulse-us";
+      const unit: ThrottleUnit =
+        max <= 1.0001 ? "fraction" : max <= 100.01 ? "percent" : "pulse-us";
       layout.throttleUnit = unit;
       const header = layout.headers[slotColumn(layout, layout.throttle) ?? 0] ?? "throttle";
-      this.guesses.push(`"${header}" throttle values read as ${unit} (largest of the first rows: ${round(max, 3)})`);
+      this.guesses.push(
+        `"${header}" throttle values read as ${unit} (largest of the first rows: ${round(max, 3)})`,
+      );
     }
     this.info = {
       metadata: this.metadata,
@@ -688,14 +732,18 @@ export class LogReader {
   private boundMap(): ColumnMap {
     const layout = this.layout as Layout;
     return layout.map.map((b) =>
-      b.channel.kind === "throttle" ? { header: b.header, channel: { kind: "throttle", unit: layout.throttleUnit } } : b,
+      b.channel.kind === "throttle"
+        ? { header: b.header, channel: { kind: "throttle", unit: layout.throttleUnit } }
+        : b,
     );
   }
 
   /** Motor numbers in slot order (makeLayout binds rpm columns in motor order). */
   private rpmMotorNumbers(): number[] {
     const layout = this.layout as Layout;
-    return layout.map.flatMap((b) => (b.channel.kind === "rpm" ? [b.channel.motor] : [])).sort((a, b) => a - b);
+    return layout.map
+      .flatMap((b) => (b.channel.kind === "rpm" ? [b.channel.motor] : []))
+      .sort((a, b) => a - b);
   }
 
   /** Converts the held raw rows, splits them at gaps and hands them to the sink. */
@@ -712,7 +760,8 @@ export class LogReader {
     let start = 0;
     for (let i = 0; i <= n; i++) {
       const isGap = i < n && i > 0 ? (time[i] ?? 0) - (time[i - 1] ?? 0) > limit : false;
-      const crossesBlocks = i === 0 && n > 0 && this.samples > 0 && (time[0] ?? 0) - this.prevEnd > limit;
+      const crossesBlocks =
+        i === 0 && n > 0 && this.samples > 0 && (time[0] ?? 0) - this.prevEnd > limit;
       if (crossesBlocks) this.emitGap(this.prevEnd, time[0] ?? 0, this.rawLines[0] ?? 0);
       if (i < n && !isGap) continue;
       const len = i - start;
@@ -846,7 +895,8 @@ function firstLongLine(bytes: Uint8Array, start: number, end: number): number {
     const stop = nl < 0 || nl >= end ? end : nl;
     if (stop - w < half) continue;
     const lineStart = w === start ? start : Math.max(start, bytes.lastIndexOf(10, w - 1) + 1);
-    const body = stop > lineStart && bytes[stop - 1] === 13 ? stop - 1 - lineStart : stop - lineStart;
+    const body =
+      stop > lineStart && bytes[stop - 1] === 13 ? stop - 1 - lineStart : stop - lineStart;
     if (body > MAX_LINE_BYTES) return lineStart;
   }
   return -1;

@@ -25,7 +25,10 @@ const NO_ROWS: LogSink = { begin: () => undefined, block: () => undefined, gap: 
  * header (an empty file, only metadata, a compressed, binary or UTF-16 file, a line over the limit,
  * no header within the first 4 MiB) and LimitExceededError over `maxBytes`.
  */
-export async function readLogHead(source: AsyncIterable<Uint8Array>, options: { maxBytes?: number } = {}): Promise<LogHead> {
+export async function readLogHead(
+  source: AsyncIterable<Uint8Array>,
+  options: { maxBytes?: number } = {},
+): Promise<LogHead> {
   const reader = new LogReader(NO_ROWS, options, true);
   const chunks = source[Symbol.asyncIterator]();
   try {
@@ -44,7 +47,13 @@ export async function readLogHead(source: AsyncIterable<Uint8Array>, options: { 
 function headOf(reader: LogReader): LogHead {
   // At the end of the input this throws the reader's own sentence for a file without a header.
   const { metadata, headers, line } = reader.head ?? reader.finishHead();
-  return { metadata, headers, line, proposal: proposeColumnMap(headers), canonical: canonicalMap(headers) !== undefined };
+  return {
+    metadata,
+    headers,
+    line,
+    proposal: proposeColumnMap(headers),
+    canonical: canonicalMap(headers) !== undefined,
+  };
 }
 
 /**

@@ -42,6 +42,9 @@ export async function runAction<S extends z.ZodType>(
   } catch (e) {
     if (isDomainError(e)) return { ok: false, message: e.message };
     console.error(`server action ${name} failed`, e);
-    return { ok: false, message: "Something went wrong on the server; nothing was changed. Try again." };
+    return {
+      ok: false,
+      message: "Something went wrong on the server; nothing was changed. Try again.",
+    };
   }
 }

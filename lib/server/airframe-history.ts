@@ -12,10 +12,24 @@ import { db } from "./db";
 export async function airframeHistory(actor: Actor, name: string) {
   const airframe = await airframeByName(actor, name);
   const [installations, crashes, inspections, baselines, logs] = await Promise.all([
-    db.installation.findMany({ where: { airframeId: airframe.id, teamId: actor.teamId }, include: { part: true }, orderBy: { fromAt: "asc" } }),
-    db.crash.findMany({ where: { airframeId: airframe.id, teamId: actor.teamId }, orderBy: { at: "asc" } }),
-    db.inspection.findMany({ where: { airframeId: airframe.id, teamId: actor.teamId }, orderBy: { at: "asc" } }),
-    db.baseline.findMany({ where: { airframeId: airframe.id, teamId: actor.teamId }, include: { logs: true }, orderBy: { createdAt: "asc" } }),
+    db.installation.findMany({
+      where: { airframeId: airframe.id, teamId: actor.teamId },
+      include: { part: true },
+      orderBy: { fromAt: "asc" },
+    }),
+    db.crash.findMany({
+      where: { airframeId: airframe.id, teamId: actor.teamId },
+      orderBy: { at: "asc" },
+    }),
+    db.inspection.findMany({
+      where: { airframeId: airframe.id, teamId: actor.teamId },
+      orderBy: { at: "asc" },
+    }),
+    db.baseline.findMany({
+      where: { airframeId: airframe.id, teamId: actor.teamId },
+      include: { logs: true },
+      orderBy: { createdAt: "asc" },
+    }),
     db.flightLog.findMany({
       where: { airframeId: airframe.id, teamId: actor.teamId },
       orderBy: { flownAt: "asc" },
@@ -23,7 +37,14 @@ export async function airframeHistory(actor: Actor, name: string) {
     }),
   ]);
   return {
-    airframe: { name: airframe.name, frameDesign: airframe.frameDesign, serial: airframe.serial, state: airframe.status, retired: airframe.retired, notes: airframe.notes },
+    airframe: {
+      name: airframe.name,
+      frameDesign: airframe.frameDesign,
+      serial: airframe.serial,
+      state: airframe.status,
+      retired: airframe.retired,
+      notes: airframe.notes,
+    },
     installations: installations.map((i) => ({
       position: i.position,
       kind: i.part.kind,
@@ -33,9 +54,25 @@ export async function airframeHistory(actor: Actor, name: string) {
       removedAt: i.toAt,
       reason: i.reason,
     })),
-    crashes: crashes.map((c) => ({ at: c.at, severity: c.severity, positions: JSON.parse(c.positions) as string[], note: c.note })),
-    inspections: inspections.map((i) => ({ at: i.at, signedOffBy: i.signedOffName, findings: i.findings, returnedToService: i.returnedToService })),
-    baselines: baselines.map((b) => ({ setAt: b.createdAt, setBy: b.setByName, reason: b.reason, active: b.active, logs: b.logs.map((l) => l.logId) })),
+    crashes: crashes.map((c) => ({
+      at: c.at,
+      severity: c.severity,
+      positions: JSON.parse(c.positions) as string[],
+      note: c.note,
+    })),
+    inspections: inspections.map((i) => ({
+      at: i.at,
+      signedOffBy: i.signedOffName,
+      findings: i.findings,
+      returnedToService: i.returnedToService,
+    })),
+    baselines: baselines.map((b) => ({
+      setAt: b.createdAt,
+      setBy: b.setByName,
+      reason: b.reason,
+      active: b.active,
+      logs: b.logs.map((l) => l.logId),
+    })),
     logs: logs.map((l) => {
       const a = l.assessments[0];
       return {
@@ -64,18 +101,94 @@ function csvField(v: unknown): string {
 
 /** The history as one CSV table, one row per event in time order. */
 export function historyCsv(h: History): string {
-  const rows: { at: Date; kind: string; position: string; part: string; score: number | null; verdict: string; detail: string }[] = [
+  const rows: {
+    at: Date;
+    kind: string;
+    position: string;
+    part: string;
+    score: number | null;
+    verdict: string;
+    detail: string;
+  }[] = [
     ...h.installations.flatMap((i) => {
       const part = `${i.kind} ${i.model} ${i.label}`;
-      const fitted = { at: i.fittedAt, kind: "fitted", position: i.position, part, score: null, verdict: "", detail: i.reason };
-      return i.removedAt ? [fitted, { at: i.removedAt, kind: "removed", position: i.position, part, score: null, verdict: "", detail: "" }] : [fitted];
+      const fitted = {
+        at: i.fittedAt,
+        kind: "fitted",
+        position: i.position,
+        part,
+        score: null,
+        verdict: "",
+        detail: i.reason,
+      };
+      return i.removedAt
+        ? [
+            fitted,
+            {
+              at: i.removedAt,
+              kind: "removed",
+              position: i.position,
+              part,
+              score: null,
+              verdict: "",
+              detail: "",
+            },
+          ]
+        : [fitted];
     }),
-    ...h.crashes.map((c) => ({ at: c.at, kind: "crash", position: c.positions.join("; "), part: "", score: null, verdict: c.severity, detail: c.note })),
-    ...h.inspections.map((i) => ({ at: i.at, kind: "inspection", position: "", part: "", score: null, verdict: i.returnedToService ? "returned to service" : "", detail: `${i.signedOffBy}: ${i.findings}` })),
-    ...h.baselines.map((b) => ({ at: b.setAt, kind: "baseline", position: "", part: "", score: null, verdict: b.active ? "active" : "", detail: `${b.setBy}: ${b.reason} (${b.logs.length} logs)` })),
-    ...h.logs.map((l) => ({ at: l.flownAt, kind: "log", position: "", part: l.fileName, score: l.score, verdict: l.verdict ?? l.status, detail: l.findings.join(" | ") || (l.error ?? "") })),
+    ...h.crashes.map((c) => ({
+      at: c.at,
+      kind: "crash",
+      position: c.positions.join("; "),
+      part: "",
+      score: null,
+      verdict: c.severity,
+      detail: c.note,
+    })),
+    ...h.inspections.map((i) => ({
+      at: i.at,
+      kind: "inspection",
+      position: "",
+      part: "",
+      score: null,
+      verdict: i.returnedToService ? "returned to service" : "",
+      detail: `${i.signedOffBy}: ${i.findings}`,
+    })),
+    ...h.baselines.map((b) => ({
+      at: b.setAt,
+      kind: "baseline",
+      position: "",
+      part: "",
+      score: null,
+      verdict: b.active ? "active" : "",
+      detail: `${b.setBy}: ${b.reason} (${b.logs.length} logs)`,
+    })),
+    ...h.logs.map((l) => ({
+      at: l.flownAt,
+      kind: "log",
+      position: "",
+      part: l.fileName,
+      score: l.score,
+      verdict: l.verdict ?? l.status,
+      detail: l.findings.join(" | ") || (l.error ?? ""),
+    })),
   ].sort((a, b) => a.at.getTime() - b.at.getTime());
   const header = ["at", "kind", "position", "part", "score", "verdict", "detail"];
-  const lines = [header.join(","), ...rows.map((r) => [r.at, r.kind, r.position, r.part, r.score === null ? "" : Math.round(r.score), r.verdict, r.detail].map(csvField).join(","))];
+  const lines = [
+    header.join(","),
+    ...rows.map((r) =>
+      [
+        r.at,
+        r.kind,
+        r.position,
+        r.part,
+        r.score === null ? "" : Math.round(r.score),
+        r.verdict,
+        r.detail,
+      ]
+        .map(csvField)
+        .join(","),
+    ),
+  ];
   return `${lines.join("\r\n")}\r\n`;
 }

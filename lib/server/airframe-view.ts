@@ -23,10 +23,18 @@ export async function airframeView(actor: Actor, airframeId: string) {
   const [baseline, parts, logs, crashes, inspections, swaps, baselines] = await Promise.all([
     activeBaseline(airframe.id),
     installedParts(actor, airframe.id),
-    db.flightLog.findMany({ where: { airframeId: airframe.id, teamId: actor.teamId }, orderBy: { flownAt: "desc" }, include: { assessments: true } }),
+    db.flightLog.findMany({
+      where: { airframeId: airframe.id, teamId: actor.teamId },
+      orderBy: { flownAt: "desc" },
+      include: { assessments: true },
+    }),
     db.crash.findMany({ where: { airframeId: airframe.id }, orderBy: { at: "desc" } }),
     db.inspection.findMany({ where: { airframeId: airframe.id }, orderBy: { at: "desc" } }),
-    db.installation.findMany({ where: { airframeId: airframe.id }, include: { part: true }, orderBy: { fromAt: "desc" } }),
+    db.installation.findMany({
+      where: { airframeId: airframe.id },
+      include: { part: true },
+      orderBy: { fromAt: "desc" },
+    }),
     db.baseline.findMany({ where: { airframeId: airframe.id }, orderBy: { createdAt: "desc" } }),
   ]);
   const assessed = logs.map((l) => {
@@ -34,33 +42,84 @@ export async function airframeView(actor: Actor, airframeId: string) {
     return {
       log: l,
       assessment: a
-        ? { score: a.score, status: a.status as Status, findings: JSON.parse(a.findings) as Finding[], notCompared: JSON.parse(a.notCompared) as NotCompared[] }
+        ? {
+            score: a.score,
+            status: a.status as Status,
+            findings: JSON.parse(a.findings) as Finding[],
+            notCompared: JSON.parse(a.notCompared) as NotCompared[],
+          }
         : null,
     };
   });
   const latest = assessed.find((x) => x.assessment) ?? null;
   const latestAnalysed = logs.find((l) => l.status === "analysed");
-  const analysisRow = latestAnalysed ? await db.analysis.findUnique({ where: { logId: latestAnalysed.id } }) : null;
+  const analysisRow = latestAnalysed
+    ? await db.analysis.findUnique({ where: { logId: latestAnalysed.id } })
+    : null;
   const analysis = analysisRow ? (JSON.parse(analysisRow.json) as LogAnalysis) : null;
 
   const spectra = {} as Record<Axis, SpectrumPoint[]>;
-  for (const axis of AXES) spectra[axis] = analysis ? spectrumOverlay(analysis, axis, baseline?.baseline) : [];
+  for (const axis of AXES)
+    spectra[axis] = analysis ? spectrumOverlay(analysis, axis, baseline?.baseline) : [];
 
   const timeline: TimelineItem[] = [
-    ...crashes.map((c) => ({ at: c.at, kind: "crash" as const, text: `${c.severity} crash${(JSON.parse(c.positions) as string[]).length ? ` — ${(JSON.parse(c.positions) as string[]).join(", ")}` : ""}${c.note ? `: ${c.note}` : ""}` })),
-    ...swaps.filter((s) => s.reason !== "initial build").map((s) => ({ at: s.fromAt, kind: "swap" as const, text: `${s.position}: fitted ${s.part.kind} ${s.part.model} ${s.part.label} (${s.reason})` })),
+    ...crashes.map((c) => ({
+      at: c.at,
+      kind: "crash" as const,
+      text: `${c.severity} crash${(JSON.parse(c.positions) as string[]).length ? ` — ${(JSON.parse(c.positions) as string[]).join(", ")}` : ""}${c.note ? `: ${c.note}` : ""}`,
+    })),
+    ...swaps
+      .filter((s) => s.reason !== "initial build")
+      .map((s) => ({
+        at: s.fromAt,
+        kind: "swap" as const,
+        text: `${s.position}: fitted ${s.part.kind} ${s.part.model} ${s.part.label} (${s.reason})`,
+      })),
     ...logs.map((l) => {
       const a = assessed.find((x) => x.log.id === l.id)?.assessment;
       const inBaseline = baseline?.logIds.includes(l.id) ?? false;
-      const verdict = a ? `${a.status}, score ${a.score === null ? "–" : Math.round(a.score)}` : inBaseline ? "analysed; part of the active baseline" : "analysed; flown before the active baseline";
-      return { at: l.flownAt, kind: "log" as const, text: `${l.fileName} — ${l.status === "analysed" ? verdict : l.status === "failed" ? `failed: ${l.error ?? ""}` : "analysing…"}` };
+      const verdict = a
+        ? `${a.status}, score ${a.score === null ? "–" : Math.round(a.score)}`
+        : inBaseline
+          ? "analysed; part of the active baseline"
+          : "analysed; flown before the active baseline";
+      return {
+        at: l.flownAt,
+        kind: "log" as const,
+        text: `${l.fileName} — ${l.status === "analysed" ? verdict : l.status === "failed" ? `failed: ${l.error ?? ""}` : "analysing…"}`,
+      };
     }),
-    ...baselines.map((b) => ({ at: b.createdAt, kind: "baseline" as const, text: `baseline set by ${b.setByName}: ${b.reason}${b.active ? " (active)" : ""}` })),
-    ...inspections.map((i) => ({ at: i.at, kind: "inspection" as const, text: `signed off by ${i.signedOffName}: ${i.findings}${i.returnedToService ? " — returned to service" : ""}` })),
+    ...baselines.map((b) => ({
+      at: b.createdAt,
+      kind: "baseline" as const,
+      text: `baseline set by ${b.setByName}: ${b.reason}${b.active ? " (active)" : ""}`,
+    })),
+    ...inspections.map((i) => ({
+      at: i.at,
+      kind: "inspection" as const,
+      text: `signed off by ${i.signedOffName}: ${i.findings}${i.returnedToService ? " — returned to service" : ""}`,
+    })),
   ].sort((a, b) => b.at.getTime() - a.at.getTime());
 
-  const lastBaselineLog = baseline ? logs.filter((l) => baseline.logIds.includes(l.id)).reduce((t, l) => (l.flownAt > t ? l.flownAt : t), new Date(0)) : null;
-  const flightsSinceBaseline = lastBaselineLog ? logs.filter((l) => l.flownAt > lastBaselineLog).length : null;
+  const lastBaselineLog = baseline
+    ? logs
+        .filter((l) => baseline.logIds.includes(l.id))
+        .reduce((t, l) => (l.flownAt > t ? l.flownAt : t), new Date(0))
+    : null;
+  const flightsSinceBaseline = lastBaselineLog
+    ? logs.filter((l) => l.flownAt > lastBaselineLog).length
+    : null;
 
-  return { airframe, baseline, parts, logs: assessed, latest, analysis, analysedLogId: latestAnalysed?.id ?? null, spectra, timeline, flightsSinceBaseline };
+  return {
+    airframe,
+    baseline,
+    parts,
+    logs: assessed,
+    latest,
+    analysis,
+    analysedLogId: latestAnalysed?.id ?? null,
+    spectra,
+    timeline,
+    flightsSinceBaseline,
+  };
 }

@@ -21,7 +21,9 @@ export async function airframeByName(actor: Actor, name: string) {
 
 export async function createAirframe(actor: Actor, input: AirframeInput) {
   assertRole(actor, "tech");
-  const existing = await db.airframe.findFirst({ where: { teamId: actor.teamId, name: input.name } });
+  const existing = await db.airframe.findFirst({
+    where: { teamId: actor.teamId, name: input.name },
+  });
   if (existing) throw new ConflictError(`There is already an airframe named "${input.name}".`);
   return db.$transaction(async (tx) => {
     const a = await tx.airframe.create({ data: { ...input, teamId: actor.teamId } });
@@ -30,12 +32,24 @@ export async function createAirframe(actor: Actor, input: AirframeInput) {
   });
 }
 
-export async function setAirframeStatus(actor: Actor, airframeId: string, status: "ready" | "grounded", note: string) {
+export async function setAirframeStatus(
+  actor: Actor,
+  airframeId: string,
+  status: "ready" | "grounded",
+  note: string,
+) {
   assertRole(actor, "tech");
   const a = await airframeOfTeam(actor, airframeId);
   return db.$transaction(async (tx) => {
     const updated = await tx.airframe.update({ where: { id: a.id }, data: { status } });
-    await audit(tx, actor, status === "grounded" ? "ground" : "return to service", "airframe", a.id, note);
+    await audit(
+      tx,
+      actor,
+      status === "grounded" ? "ground" : "return to service",
+      "airframe",
+      a.id,
+      note,
+    );
     return updated;
   });
 }

@@ -16,7 +16,13 @@ import { isDiskFull } from "./storage-errors";
 
 // Kept on globalThis: route handlers and server actions may load their own copy of this module,
 // and the upload screen's progress must come from the one running the job.
-const state = globalThis as unknown as { heatcheckJobs?: { progress: Map<string, number>; running: Map<string, Promise<void>>; notes?: Map<string, string> } };
+const state = globalThis as unknown as {
+  heatcheckJobs?: {
+    progress: Map<string, number>;
+    running: Map<string, Promise<void>>;
+    notes?: Map<string, string>;
+  };
+};
 state.heatcheckJobs ??= { progress: new Map(), running: new Map(), notes: new Map() };
 state.heatcheckJobs.notes ??= new Map();
 const { progress, running, notes } = state.heatcheckJobs;
@@ -40,7 +46,13 @@ export function enqueueAnalysis(logId: string): Promise<void> {
       console.error(`the analysis of log ${logId} could not be completed`, e);
       // Never leave a log "pending" for ever: say it failed, so it can be re-run.
       await db.flightLog
-        .update({ where: { id: logId }, data: { status: "failed", error: "the analysis could not be completed on the server; re-run it" } })
+        .update({
+          where: { id: logId },
+          data: {
+            status: "failed",
+            error: "the analysis could not be completed on the server; re-run it",
+          },
+        })
         .catch(() => undefined);
     })
     .finally(() => {
@@ -61,12 +73,21 @@ async function run(logId: string): Promise<void> {
   const log = await db.flightLog.findUnique({ where: { id: logId } });
   if (!log) return;
   const result = await analysisPool.run(
-    { jobId: logId, path: storedFileOf(log.storedPath), mapText: log.mapText, maxBytes: maxUploadBytes() },
+    {
+      jobId: logId,
+      path: storedFileOf(log.storedPath),
+      mapText: log.mapText,
+      maxBytes: maxUploadBytes(),
+    },
     (f) => progress.set(logId, f),
   );
   if (!result.ok || !result.analysisJson) {
-    const error = result.badInput ? result.message : `analysis failed: ${result.message ?? "unknown error"}`;
-    await withRetries(logId, () => db.flightLog.update({ where: { id: logId }, data: { status: "failed", error } }));
+    const error = result.badInput
+      ? result.message
+      : `analysis failed: ${result.message ?? "unknown error"}`;
+    await withRetries(logId, () =>
+      db.flightLog.update({ where: { id: logId }, data: { status: "failed", error } }),
+    );
     if (!result.badInput) console.error(`analysis of log ${logId} failed`, result.message);
     return;
   }
@@ -93,30 +114,65 @@ async function withRetries(logId: string, write: () => Promise<unknown>): Promis
     } catch (e) {
       const delay = RETRY_DELAYS_MS[attempt];
       if (delay === undefined) throw e;
-      notes.set(logId, isDiskFull(e) ? "the server's disk is full: the result waits to be stored" : "the result could not be stored yet: trying again");
-      console.error(`storing the analysis of log ${logId} failed (try ${attempt + 1}); trying again in ${delay} ms`, e);
+      notes.set(
+        logId,
+        isDiskFull(e)
+          ? "the server's disk is full: the result waits to be stored"
+          : "the result could not be stored yet: trying again",
+      );
+      console.error(
+        `storing the analysis of log ${logId} failed (try ${attempt + 1}); trying again in ${delay} ms`,
+        e,
+      );
       await new Promise((r) => setTimeout(r, delay));
     }
   }
 }
 
-async function storeResult(logId: string, airframeId: string | null, analysisJson: string, analysis: LogAnalysis): Promise<void> {
+async function storeResult(
+  logId: string,
+  airframeId: string | null,
+  analysisJson: string,
+  analysis: LogAnalysis,
+): Promise<void> {
   await db.$transaction(async (tx) => {
-    await tx.analysis.upsert({ where: { logId }, create: { logId, json: analysisJson }, update: { json: analysisJson } });
+    await tx.analysis.upsert({
+      where: { logId },
+      create: { logId, json: analysisJson },
+      update: { json: analysisJson },
+    });
     await tx.flightLog.update({
       where: { id: logId },
-      data: { status: "analysed", error: null, sampleRateHz: analysis.sampleRateHz, durationS: analysis.durationS },
+      data: {
+        status: "analysed",
+        error: null,
+        sampleRateHz: analysis.sampleRateHz,
+        durationS: analysis.durationS,
+      },
     });
     if (airframeId) {
-      const baseline = await tx.baseline.findFirst({ where: { airframeId, active: true }, orderBy: { createdAt: "desc" } });
-      if (baseline) await storeAssessment(tx, logId, analysis, baseline.id, JSON.parse(baseline.json) as Baseline);
+      const baseline = await tx.baseline.findFirst({
+        where: { airframeId, active: true },
+        orderBy: { createdAt: "desc" },
+      });
+      if (baseline)
+        await storeAssessment(
+          tx,
+          logId,
+          analysis,
+          baseline.id,
+          JSON.parse(baseline.json) as Baseline,
+        );
     }
   });
 }
 
 /** Re-queues logs left pending by a stop (called once when the server starts). */
 export async function resumePendingAnalyses(): Promise<number> {
-  const pending = await db.flightLog.findMany({ where: { status: "pending" }, select: { id: true } });
+  const pending = await db.flightLog.findMany({
+    where: { status: "pending" },
+    select: { id: true },
+  });
   for (const p of pending) void enqueueAnalysis(p.id);
   return pending.length;
 }

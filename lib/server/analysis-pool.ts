@@ -74,7 +74,11 @@ class AnalysisPool {
       p.onProgress(m.fraction);
       return false;
     }
-    p.resolve(m.type === "done" ? { ok: true, analysisJson: m.analysisJson } : { ok: false, message: m.message, badInput: m.badInput });
+    p.resolve(
+      m.type === "done"
+        ? { ok: true, analysisJson: m.analysisJson }
+        : { ok: false, message: m.message, badInput: m.badInput },
+    );
     return true;
   }
 
@@ -97,7 +101,11 @@ class AnalysisPool {
       this.busy.delete(worker);
       this.started--;
       console.error("analysis worker crashed", err);
-      p?.resolve({ ok: false, message: "the analysis stopped unexpectedly; try re-running it", badInput: false });
+      p?.resolve({
+        ok: false,
+        message: "the analysis stopped unexpectedly; try re-running it",
+        badInput: false,
+      });
       this.pump();
     });
     return worker;
@@ -111,5 +119,6 @@ function poolSize(): number {
 }
 
 const globalForPool = globalThis as unknown as { heatcheckPool?: AnalysisPool };
-export const analysisPool: AnalysisPool = globalForPool.heatcheckPool ?? new AnalysisPool(poolSize());
+export const analysisPool: AnalysisPool =
+  globalForPool.heatcheckPool ?? new AnalysisPool(poolSize());
 globalForPool.heatcheckPool = analysisPool;

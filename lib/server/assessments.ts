@@ -13,11 +13,25 @@ import { baselineFlownAt, repairsBetween } from "./repairs";
  * explain some of its changes: those are stored as "changed after repair" (no points, after the
  * scored findings), and the airframe stays at watch at best until a post-repair baseline exists.
  */
-export async function storeAssessment(tx: Tx, logId: string, analysis: LogAnalysis, baselineId: string, baseline: Baseline) {
+export async function storeAssessment(
+  tx: Tx,
+  logId: string,
+  analysis: LogAnalysis,
+  baselineId: string,
+  baseline: Baseline,
+) {
   const compared = compareWithBaseline(analysis, baseline, { motorPositions: MOTOR_POSITIONS });
-  const log = await tx.flightLog.findUnique({ where: { id: logId }, select: { airframeId: true, flownAt: true } });
-  const repairs = log?.airframeId ? await repairsBetween(tx, log.airframeId, await baselineFlownAt(tx, baselineId), log.flownAt) : [];
-  const a = separateRepairEffects({ ...compared, score: Number.isFinite(compared.score) ? compared.score : null }, repairs);
+  const log = await tx.flightLog.findUnique({
+    where: { id: logId },
+    select: { airframeId: true, flownAt: true },
+  });
+  const repairs = log?.airframeId
+    ? await repairsBetween(tx, log.airframeId, await baselineFlownAt(tx, baselineId), log.flownAt)
+    : [];
+  const a = separateRepairEffects(
+    { ...compared, score: Number.isFinite(compared.score) ? compared.score : null },
+    repairs,
+  );
   const data = {
     score: a.score,
     status: a.status,

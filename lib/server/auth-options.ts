@@ -5,7 +5,14 @@ import { signInSchema } from "@/lib/validations/auth";
 import { db } from "./db";
 import { DUMMY_HASH, passwordMatches } from "./passwords";
 import { endSession, SESSION_ABSOLUTE_MS, startSession } from "./sessions";
-import { ACCOUNT_RULE, ADDRESS_RULE, clearFailures, recordFailure, throttleMessage, waitMs } from "./sign-in-throttle";
+import {
+  ACCOUNT_RULE,
+  ADDRESS_RULE,
+  clearFailures,
+  recordFailure,
+  throttleMessage,
+  waitMs,
+} from "./sign-in-throttle";
 
 /**
  * next-auth with email + password (bcrypt hashes), JWT cookies that carry a user id and a session
@@ -21,7 +28,8 @@ import { ACCOUNT_RULE, ADDRESS_RULE, clearFailures, recordFailure, throttleMessa
  */
 function clientAddress(headers: Record<string, unknown> | undefined): string {
   const raw = headers?.["x-forwarded-for"];
-  const value = typeof raw === "string" ? raw : Array.isArray(raw) && typeof raw[0] === "string" ? raw[0] : "";
+  const value =
+    typeof raw === "string" ? raw : Array.isArray(raw) && typeof raw[0] === "string" ? raw[0] : "";
   const last = value.split(",").pop()?.trim();
   return last ? last : "unknown";
 }
@@ -33,7 +41,10 @@ export const authOptions: NextAuthOptions = {
   providers: [
     Credentials({
       name: "email and password",
-      credentials: { email: { label: "Email", type: "email" }, password: { label: "Password", type: "password" } },
+      credentials: {
+        email: { label: "Email", type: "email" },
+        password: { label: "Password", type: "password" },
+      },
       async authorize(raw, req) {
         const parsed = signInSchema.safeParse(raw);
         if (!parsed.success) return null;
@@ -46,7 +57,9 @@ export const authOptions: NextAuthOptions = {
         const user = await db.user.findUnique({ where: { email } });
         // Spend the same time for an unknown email as for a real check, so response times do not
         // reveal which emails exist; a disabled account answers like a wrong password.
-        const ok = user ? await passwordMatches(parsed.data.password, user.passwordHash) : await passwordMatches(parsed.data.password, DUMMY_HASH).then(() => false);
+        const ok = user
+          ? await passwordMatches(parsed.data.password, user.passwordHash)
+          : await passwordMatches(parsed.data.password, DUMMY_HASH).then(() => false);
         if (!user || !ok || user.disabledAt) {
           recordFailure(accountKey);
           recordFailure(addressKey);

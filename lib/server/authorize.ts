@@ -8,7 +8,9 @@ import { roleAtLeast, type Actor, type Role } from "@/lib/roles";
 /** Throws ForbiddenError unless the actor's role is at least `minimum`. Services call it too. */
 export function assertRole(actor: Actor, minimum: Role): void {
   if (!roleAtLeast(actor.role, minimum)) {
-    throw new ForbiddenError(`This needs the ${minimum} role or higher; you are ${actor.role === "owner" ? "an" : "a"} ${actor.role}.`);
+    throw new ForbiddenError(
+      `This needs the ${minimum} role or higher; you are ${actor.role === "owner" ? "an" : "a"} ${actor.role}.`,
+    );
   }
 }
 
@@ -16,4 +18,3 @@ export function assertRole(actor: Actor, minimum: Role): void {
 export function hashToken(token: string): string {
   return createHash("sha256").update(token).digest("hex");
 }
-

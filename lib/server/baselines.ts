@@ -14,21 +14,34 @@ import { assertRole } from "./authorize";
  * inactive, and every analysed log of the airframe flown after the newest baseline log is scored
  * again against the new one.
  */
-export async function setBaseline(actor: Actor, airframeId: string, logIds: string[], reason: string) {
+export async function setBaseline(
+  actor: Actor,
+  airframeId: string,
+  logIds: string[],
+  reason: string,
+) {
   assertRole(actor, "tech");
   const airframe = await airframeOfTeam(actor, airframeId);
   const logs = await db.flightLog.findMany({
     where: { id: { in: logIds }, teamId: actor.teamId, airframeId: airframe.id },
     include: { analysis: true },
   });
-  if (logs.length !== new Set(logIds).size) throw new InputError("Every baseline log must be a log of this airframe.", "logIds");
+  if (logs.length !== new Set(logIds).size)
+    throw new InputError("Every baseline log must be a log of this airframe.", "logIds");
   const notReady = logs.filter((l) => l.status !== "analysed" || !l.analysis);
-  if (notReady.length > 0) throw new InputError(`Wait for the analysis of ${notReady.map((l) => l.fileName).join(", ")} to finish.`, "logIds");
+  if (notReady.length > 0)
+    throw new InputError(
+      `Wait for the analysis of ${notReady.map((l) => l.fileName).join(", ")} to finish.`,
+      "logIds",
+    );
   const analyses = logs.map((l) => JSON.parse(l.analysis?.json ?? "{}") as LogAnalysis);
   const baseline = buildBaseline(analyses);
   const newest = logs.reduce((t, l) => (l.flownAt > t ? l.flownAt : t), new Date(0));
   return db.$transaction(async (tx) => {
-    await tx.baseline.updateMany({ where: { airframeId: airframe.id, active: true }, data: { active: false } });
+    await tx.baseline.updateMany({
+      where: { airframeId: airframe.id, active: true },
+      data: { active: false },
+    });
     const created = await tx.baseline.create({
       data: {
         teamId: actor.teamId,
@@ -45,14 +58,50 @@ export async function setBaseline(actor: Actor, airframeId: string, logIds: stri
       include: { analysis: true },
     });
     for (const l of later) {
-      if (l.analysis) await storeAssessment(tx, l.id, JSON.parse(l.analysis.json) as LogAnalysis, created.id, baseline);
+      if (l.analysis)
+        await storeAssessment(
+          tx,
+          l.id,
+          JSON.parse(l.analysis.json) as LogAnalysis,
+          created.id,
+          baseline,
+        );
     }
-    await audit(tx, actor, "set baseline", "airframe", airframe.id, `${logs.length} log(s): ${reason}; ${later.length} later log(s) re-scored`);
+    await audit(
+      tx,
+      actor,
+      "set baseline",
+      "airframe",
+      airframe.id,
+      `${logs.length} log(s): ${reason}; ${later.length} later log(s) re-scored`,
+    );
     return { baseline: created, rescored: later.length };
   });
 }
 
-export async function activeBaseline(airframeId: string): Promise<{ id: string; baseline: Baseline; createdAt: Date; reason: string; setByName: string; logIds: string[] } | null> {
-  const b = await db.baseline.findFirst({ where: { airframeId, active: true }, orderBy: { createdAt: "desc" }, include: { logs: true } });
-  return b ? { id: b.id, baseline: JSON.parse(b.json) as Baseline, createdAt: b.createdAt, reason: b.reason, setByName: b.setByName, logIds: b.logs.map((l) => l.logId) } : null;
+export async function activeBaseline(
+  airframeId: string,
+): Promise<{
+  id: string;
+  baseline: Baseline;
+  createdAt: Date;
+  reason: string;
+  setByName: string;
+  logIds: string[];
+} | null> {
+  const b = await db.baseline.findFirst({
+    where: { airframeId, active: true },
+    orderBy: { createdAt: "desc" },
+    include: { logs: true },
+  });
+  return b
+    ? {
+        id: b.id,
+        baseline: JSON.parse(b.json) as Baseline,
+        createdAt: b.createdAt,
+        reason: b.reason,
+        setByName: b.setByName,
+        logIds: b.logs.map((l) => l.logId),
+      }
+    : null;
 }

@@ -30,8 +30,16 @@ export async function logCrash(actor: Actor, input: CrashInput) {
         loggedById: actor.userId ?? "token",
       },
     });
-    if (ground) await tx.airframe.update({ where: { id: airframe.id }, data: { status: "grounded" } });
-    await audit(tx, actor, "log crash", "airframe", airframe.id, `${input.severity}${input.positions.length ? ` (${input.positions.join(", ")})` : ""}${ground ? ", grounded" : ""}`);
+    if (ground)
+      await tx.airframe.update({ where: { id: airframe.id }, data: { status: "grounded" } });
+    await audit(
+      tx,
+      actor,
+      "log crash",
+      "airframe",
+      airframe.id,
+      `${input.severity}${input.positions.length ? ` (${input.positions.join(", ")})` : ""}${ground ? ", grounded" : ""}`,
+    );
     return crash;
   });
 }
@@ -53,8 +61,16 @@ export async function recordInspection(actor: Actor, input: InspectionInput) {
         returnedToService: input.returnToService,
       },
     });
-    if (input.returnToService) await tx.airframe.update({ where: { id: airframe.id }, data: { status: "ready" } });
-    await audit(tx, actor, "inspect", "airframe", airframe.id, input.returnToService ? "returned to service" : "still grounded");
+    if (input.returnToService)
+      await tx.airframe.update({ where: { id: airframe.id }, data: { status: "ready" } });
+    await audit(
+      tx,
+      actor,
+      "inspect",
+      "airframe",
+      airframe.id,
+      input.returnToService ? "returned to service" : "still grounded",
+    );
     return inspection;
   });
 }

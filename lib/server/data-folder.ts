@@ -37,7 +37,8 @@ export function storedFileOf(storedPath: string): string {
 /** A path under the data folder as it is stored in the database (forward slashes, relative). */
 export function storedPathOf(absolute: string): string {
   const rel = relative(dataDir(), absolute);
-  if (rel.startsWith("..") || isAbsolute(rel)) throw new Error(`${absolute} is outside the data folder`);
+  if (rel.startsWith("..") || isAbsolute(rel))
+    throw new Error(`${absolute} is outside the data folder`);
   return rel.split(sep).join("/");
 }
 
@@ -67,7 +68,8 @@ export async function prepareDataFolder(): Promise<FolderReport> {
   await ensurePrivateDir(uploadsDir());
   const db = databaseFile();
   if (db) {
-    for (const f of [db, `${db}-wal`, `${db}-shm`, `${db}-journal`]) await tighten(f, PRIVATE_FILE_MODE, report);
+    for (const f of [db, `${db}-wal`, `${db}-shm`, `${db}-journal`])
+      await tighten(f, PRIVATE_FILE_MODE, report);
   }
   await tighten(join(root, ".auth-secret"), PRIVATE_FILE_MODE, report);
   await walkUploads(uploadsDir(), report);
@@ -81,7 +83,10 @@ async function walkUploads(dir: string, report: FolderReport): Promise<void> {
       await tighten(p, PRIVATE_DIR_MODE, report);
       await walkUploads(p, report);
     } else if (entry.name.startsWith(INCOMING_PREFIX)) {
-      const size = await stat(p).then((s) => s.size, () => 0);
+      const size = await stat(p).then(
+        (s) => s.size,
+        () => 0,
+      );
       await rm(p, { force: true });
       report.sweptTemporaries++;
       report.sweptBytes += size;

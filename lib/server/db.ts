@@ -11,7 +11,9 @@ import { PrismaClient } from "@/generated/prisma/client";
 export const DEFAULT_DATABASE_URL = "file:./data/heatcheck.db";
 
 function createClient(): PrismaClient {
-  const adapter = new PrismaBetterSQLite3({ url: process.env.DATABASE_URL ?? DEFAULT_DATABASE_URL });
+  const adapter = new PrismaBetterSQLite3({
+    url: process.env.DATABASE_URL ?? DEFAULT_DATABASE_URL,
+  });
   return new PrismaClient({ adapter });
 }
 

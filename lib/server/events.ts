@@ -9,11 +9,19 @@ export async function listEvents(actor: Actor) {
   return db.event.findMany({
     where: { teamId: actor.teamId },
     orderBy: { startsAt: "desc" },
-    include: { heats: { orderBy: { startsAt: "asc" }, include: { entries: { include: { airframe: { select: { name: true } } } } } } },
+    include: {
+      heats: {
+        orderBy: { startsAt: "asc" },
+        include: { entries: { include: { airframe: { select: { name: true } } } } },
+      },
+    },
   });
 }
 
-export async function createEvent(actor: Actor, input: { name: string; venue: string; startsAt: Date }) {
+export async function createEvent(
+  actor: Actor,
+  input: { name: string; venue: string; startsAt: Date },
+) {
   assertRole(actor, "tech");
   return db.$transaction(async (tx) => {
     const e = await tx.event.create({ data: { ...input, teamId: actor.teamId } });
@@ -22,7 +30,10 @@ export async function createEvent(actor: Actor, input: { name: string; venue: st
   });
 }
 
-export async function createHeat(actor: Actor, input: { eventId: string; name: string; startsAt: Date }) {
+export async function createHeat(
+  actor: Actor,
+  input: { eventId: string; name: string; startsAt: Date },
+) {
   assertRole(actor, "tech");
   const event = await db.event.findFirst({ where: { id: input.eventId, teamId: actor.teamId } });
   if (!event) throw new NotFoundError("That event");
@@ -38,8 +49,11 @@ export async function setHeatEntries(actor: Actor, heatId: string, airframeIds: 
   assertRole(actor, "tech");
   const heat = await db.heat.findFirst({ where: { id: heatId, teamId: actor.teamId } });
   if (!heat) throw new NotFoundError("That heat");
-  const airframes = await db.airframe.findMany({ where: { id: { in: airframeIds }, teamId: actor.teamId } });
-  if (airframes.length !== new Set(airframeIds).size) throw new InputError("Every airframe must be one of this team's.", "airframeIds");
+  const airframes = await db.airframe.findMany({
+    where: { id: { in: airframeIds }, teamId: actor.teamId },
+  });
+  if (airframes.length !== new Set(airframeIds).size)
+    throw new InputError("Every airframe must be one of this team's.", "airframeIds");
   return db.$transaction(async (tx) => {
     await tx.heatEntry.deleteMany({ where: { heatId } });
     for (const a of airframes) await tx.heatEntry.create({ data: { heatId, airframeId: a.id } });

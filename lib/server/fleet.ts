@@ -2,7 +2,16 @@ import "server-only";
 import { DEFAULT_ANALYSIS, throttleBandLabel } from "@/lib/analysis/settings";
 import type { LogAnalysis } from "@/lib/analysis/types";
 import type { Baseline } from "@/lib/health/baseline";
-import { buildFleetReference, judgeAgainstFleet, memberFromBaseline, memberFromLog, OUTLIER_Z, type FleetMember, type FleetNote, type FleetReference } from "@/lib/health/fleet-reference";
+import {
+  buildFleetReference,
+  judgeAgainstFleet,
+  memberFromBaseline,
+  memberFromLog,
+  OUTLIER_Z,
+  type FleetMember,
+  type FleetNote,
+  type FleetReference,
+} from "@/lib/health/fleet-reference";
 import type { Status } from "@/lib/health/thresholds";
 import type { Actor } from "@/lib/roles";
 import { db } from "./db";
@@ -13,14 +22,29 @@ export async function fleetTable(actor: Actor) {
     where: { teamId: actor.teamId },
     orderBy: [{ retired: "asc" }, { name: "asc" }],
     include: {
-      baselines: { where: { active: true }, include: { logs: { include: { log: { select: { flownAt: true } } } } }, take: 1 },
-      logs: { orderBy: { flownAt: "asc" }, select: { id: true, flownAt: true, assessments: { select: { baselineId: true, score: true, status: true } } } },
+      baselines: {
+        where: { active: true },
+        include: { logs: { include: { log: { select: { flownAt: true } } } } },
+        take: 1,
+      },
+      logs: {
+        orderBy: { flownAt: "asc" },
+        select: {
+          id: true,
+          flownAt: true,
+          assessments: { select: { baselineId: true, score: true, status: true } },
+        },
+      },
     },
   });
   return airframes.map((a) => {
     const baseline = a.baselines[0];
     const scored = baseline
-      ? a.logs.flatMap((l) => l.assessments.filter((x) => x.baselineId === baseline.id).map((x) => ({ score: x.score, status: x.status as Status })))
+      ? a.logs.flatMap((l) =>
+          l.assessments
+            .filter((x) => x.baselineId === baseline.id)
+            .map((x) => ({ score: x.score, status: x.status as Status })),
+        )
       : [];
     const since = baseline ? Math.max(...baseline.logs.map((l) => l.log.flownAt.getTime())) : null;
     const latest = scored[scored.length - 1];
@@ -34,7 +58,8 @@ export async function fleetTable(actor: Actor) {
       score: latest?.score ?? null,
       trend: scored.slice(-10).map((s) => s.score ?? 0),
       lastFlight: a.logs[a.logs.length - 1]?.flownAt ?? null,
-      flightsSinceBaseline: since === null ? null : a.logs.filter((l) => l.flownAt.getTime() > since).length,
+      flightsSinceBaseline:
+        since === null ? null : a.logs.filter((l) => l.flownAt.getTime() > since).length,
     };
   });
 }
@@ -45,7 +70,11 @@ export const BAND_WORDS = {
     const e = DEFAULT_ANALYSIS.bandEdgesHz;
     return `${e[band] ?? "?"}–${e[band + 1] ?? "?"} Hz`;
   },
-  throttleLabel: (tb: number) => throttleBandLabel(tb / DEFAULT_ANALYSIS.throttleBands, (tb + 1) / DEFAULT_ANALYSIS.throttleBands),
+  throttleLabel: (tb: number) =>
+    throttleBandLabel(
+      tb / DEFAULT_ANALYSIS.throttleBands,
+      (tb + 1) / DEFAULT_ANALYSIS.throttleBands,
+    ),
 };
 
 /**
@@ -76,7 +105,13 @@ export async function fleetPlacement(actor: Actor): Promise<FleetPlacement> {
   // The placement parses every active baseline of the team: keep the last one per team and
   // reuse it while nothing it rests on has changed (the queue asks for it on every refresh).
   const sources = await placementSources(actor);
-  const fingerprint = sources.map((r) => [r.id, r.name, r.frameDesign, r.status, r.baselines[0]?.id ?? "", r.logs[0]?.id ?? ""].join("|")).join(";");
+  const fingerprint = sources
+    .map((r) =>
+      [r.id, r.name, r.frameDesign, r.status, r.baselines[0]?.id ?? "", r.logs[0]?.id ?? ""].join(
+        "|",
+      ),
+    )
+    .join(";");
   const cached = placementCache.get(actor.teamId);
   if (cached && cached.fingerprint === fingerprint) return cached.value;
   const value = await computePlacement(sources);
@@ -84,7 +119,11 @@ export async function fleetPlacement(actor: Actor): Promise<FleetPlacement> {
   return value;
 }
 
-const placementCache = ((globalThis as unknown as { heatcheckFleetCache?: Map<string, { fingerprint: string; value: FleetPlacement }> }).heatcheckFleetCache ??= new Map());
+const placementCache = ((
+  globalThis as unknown as {
+    heatcheckFleetCache?: Map<string, { fingerprint: string; value: FleetPlacement }>;
+  }
+).heatcheckFleetCache ??= new Map());
 
 /** What the placement rests on, read cheaply: airframes, their state and design, active baseline, latest analysed log. */
 function placementSources(actor: Actor) {
@@ -96,15 +135,29 @@ function placementSources(actor: Actor) {
       name: true,
       frameDesign: true,
       status: true,
-      baselines: { where: { active: true }, orderBy: { createdAt: "desc" }, take: 1, select: { id: true } },
-      logs: { where: { status: "analysed" }, orderBy: { flownAt: "desc" }, take: 1, select: { id: true } },
+      baselines: {
+        where: { active: true },
+        orderBy: { createdAt: "desc" },
+        take: 1,
+        select: { id: true },
+      },
+      logs: {
+        where: { status: "analysed" },
+        orderBy: { flownAt: "desc" },
+        take: 1,
+        select: { id: true },
+      },
     },
   });
 }
 
-async function computePlacement(airframes: Awaited<ReturnType<typeof placementSources>>): Promise<FleetPlacement> {
+async function computePlacement(
+  airframes: Awaited<ReturnType<typeof placementSources>>,
+): Promise<FleetPlacement> {
   const baselineIds = airframes.flatMap((a) => a.baselines.map((b) => b.id));
-  const logIds = airframes.filter((a) => a.baselines.length === 0).flatMap((a) => a.logs.map((l) => l.id));
+  const logIds = airframes
+    .filter((a) => a.baselines.length === 0)
+    .flatMap((a) => a.logs.map((l) => l.id));
   const [baselineRows, analysisRows] = await Promise.all([
     db.baseline.findMany({ where: { id: { in: baselineIds } }, select: { id: true, json: true } }),
     db.analysis.findMany({ where: { logId: { in: logIds } }, select: { logId: true, json: true } }),
@@ -116,19 +169,42 @@ async function computePlacement(airframes: Awaited<ReturnType<typeof placementSo
     const bJson = baselineJson.get(a.baselines[0]?.id ?? "");
     const logId = a.logs[0]?.id ?? null;
     const aJson = logId ? analysisJson.get(logId) : undefined;
-    const fromBaseline = bJson ? memberFromBaseline(a.id, a.name, JSON.parse(bJson) as Baseline) : null;
-    if (fromBaseline && a.status !== "grounded") members.set(a.frameDesign, [...(members.get(a.frameDesign) ?? []), fromBaseline]);
-    const fromLog = !fromBaseline && aJson ? memberFromLog(a.id, a.name, JSON.parse(aJson) as LogAnalysis) : null;
+    const fromBaseline = bJson
+      ? memberFromBaseline(a.id, a.name, JSON.parse(bJson) as Baseline)
+      : null;
+    if (fromBaseline && a.status !== "grounded")
+      members.set(a.frameDesign, [...(members.get(a.frameDesign) ?? []), fromBaseline]);
+    const fromLog =
+      !fromBaseline && aJson ? memberFromLog(a.id, a.name, JSON.parse(aJson) as LogAnalysis) : null;
     return { airframe: a, fromBaseline, fromLog, logId };
   });
   const placements = subjects.map(({ airframe, fromBaseline, fromLog, logId }) => {
-    const reference = buildFleetReference(airframe.frameDesign, members.get(airframe.frameDesign) ?? [], airframe.id);
+    const reference = buildFleetReference(
+      airframe.frameDesign,
+      members.get(airframe.frameDesign) ?? [],
+      airframe.id,
+    );
     const subject = fromBaseline ?? fromLog;
-    const notes = subject ? judgeAgainstFleet(reference, subject, { what: fromBaseline ? "baseline" : "log", ...BAND_WORDS }) : [];
-    const placement: AirframePlacement = { airframeId: airframe.id, name: airframe.name, design: airframe.frameDesign, judged: fromBaseline ? "baseline" : fromLog && reference.enough ? "log" : null, logId, reference, notes };
+    const notes = subject
+      ? judgeAgainstFleet(reference, subject, {
+          what: fromBaseline ? "baseline" : "log",
+          ...BAND_WORDS,
+        })
+      : [];
+    const placement: AirframePlacement = {
+      airframeId: airframe.id,
+      name: airframe.name,
+      design: airframe.frameDesign,
+      judged: fromBaseline ? "baseline" : fromLog && reference.enough ? "log" : null,
+      logId,
+      reference,
+      notes,
+    };
     return placement;
   });
-  const designs = [...new Set(airframes.map((a) => a.frameDesign))].map((design) => buildFleetReference(design, members.get(design) ?? []));
+  const designs = [...new Set(airframes.map((a) => a.frameDesign))].map((design) =>
+    buildFleetReference(design, members.get(design) ?? []),
+  );
   return { placements, designs };
 }
 
@@ -146,10 +222,24 @@ export interface ModeStrip {
  * fleet questions for this mode, at the frequency the judgement found (a mode that moved far can
  * fall out of the cluster the reference is built from, and must still be seen on its strip).
  */
-function stripDots(mode: FleetReference["modes"][number], judged: AirframePlacement[], nameOf: Map<string, string>): ModeStrip["dots"] {
+function stripDots(
+  mode: FleetReference["modes"][number],
+  judged: AirframePlacement[],
+  nameOf: Map<string, string>,
+): ModeStrip["dots"] {
   const offFor = (p: AirframePlacement) =>
-    p.notes.find((n) => n.kind === "mode-off-fleet" && n.axis === mode.axis && Math.abs((n.fleetHz ?? 0) - mode.medianHz) <= 0.15 * mode.medianHz);
-  const dots = mode.members.map((x) => ({ name: nameOf.get(x.id) ?? "?", freqHz: x.freqHz, outlier: false, id: x.id }));
+    p.notes.find(
+      (n) =>
+        n.kind === "mode-off-fleet" &&
+        n.axis === mode.axis &&
+        Math.abs((n.fleetHz ?? 0) - mode.medianHz) <= 0.15 * mode.medianHz,
+    );
+  const dots = mode.members.map((x) => ({
+    name: nameOf.get(x.id) ?? "?",
+    freqHz: x.freqHz,
+    outlier: false,
+    id: x.id,
+  }));
   for (const p of judged) {
     const note = offFor(p);
     if (!note || note.freqHz === undefined) continue;
@@ -177,10 +267,16 @@ export async function fleetDesignView(actor: Actor) {
         medianHz: m.medianHz,
         loHz: m.medianHz - OUTLIER_Z * sigma,
         hiHz: m.medianHz + OUTLIER_Z * sigma,
-        dots: stripDots(m, placements.filter((p) => p.design === ref.design && p.judged === "baseline"), nameOf),
+        dots: stripDots(
+          m,
+          placements.filter((p) => p.design === ref.design && p.judged === "baseline"),
+          nameOf,
+        ),
       };
     }),
     // Airframes judged against the fleet because they have no baseline, with what the fleet says.
-    withoutBaseline: placements.filter((p) => p.design === ref.design && p.judged === "log").map((p) => ({ name: p.name, notes: p.notes.map((n) => n.text) })),
+    withoutBaseline: placements
+      .filter((p) => p.design === ref.design && p.judged === "log")
+      .map((p) => ({ name: p.name, notes: p.notes.map((n) => n.text) })),
   }));
 }

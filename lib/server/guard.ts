@@ -23,7 +23,12 @@ export { assertRole, hashToken };
  */
 export const SECURE_COOKIES = (process.env.NEXTAUTH_URL ?? "").startsWith("https://");
 export const TEAM_COOKIE = SECURE_COOKIES ? "__Secure-hc-team" : "hc-team";
-export const TEAM_COOKIE_OPTIONS = { httpOnly: true, sameSite: "lax", path: "/", secure: SECURE_COOKIES } as const;
+export const TEAM_COOKIE_OPTIONS = {
+  httpOnly: true,
+  sameSite: "lax",
+  path: "/",
+  secure: SECURE_COOKIES,
+} as const;
 
 /**
  * The signed-in person's open session: a server action (a cookie-authenticated write) must come
@@ -35,7 +40,8 @@ async function openSession(): Promise<{ userId: string; sessionId: string }> {
   const session = await getServerSession(authOptions);
   const userId = session?.user?.id;
   const sessionId = session?.sid;
-  if (typeof userId !== "string" || userId === "" || typeof sessionId !== "string") throw new UnauthenticatedError();
+  if (typeof userId !== "string" || userId === "" || typeof sessionId !== "string")
+    throw new UnauthenticatedError();
   await assertSessionOpen(sessionId, userId);
   return { userId, sessionId };
 }
@@ -57,7 +63,8 @@ export async function requireMember(minimum: Role = "viewer"): Promise<Actor> {
  */
 export function assertSameOrigin(h: Headers): void {
   const origin = h.get("origin");
-  const refuse = () => new ForbiddenError("This request came from another site; open heatcheck itself and try again.");
+  const refuse = () =>
+    new ForbiddenError("This request came from another site; open heatcheck itself and try again.");
   if (!origin || origin === "null") throw refuse();
   let originUrl: URL;
   try {
@@ -78,13 +85,18 @@ export function assertSameOrigin(h: Headers): void {
   throw refuse();
 }
 
-export const NO_TEAM_MESSAGE = "Your account is not a member of any team. Ask a team owner to invite you.";
+export const NO_TEAM_MESSAGE =
+  "Your account is not a member of any team. Ask a team owner to invite you.";
 
 /**
  * The membership of a user: in the wanted team if they belong to it, else their first team.
  * Exported for the tests, which have no request.
  */
-export async function actorForUser(userId: string, wantedTeamId: string | undefined, minimum: Role): Promise<Actor> {
+export async function actorForUser(
+  userId: string,
+  wantedTeamId: string | undefined,
+  minimum: Role,
+): Promise<Actor> {
   const memberships = await db.membership.findMany({
     where: { userId },
     include: { user: { select: { name: true } } },
@@ -93,7 +105,13 @@ export async function actorForUser(userId: string, wantedTeamId: string | undefi
   const m = memberships.find((x) => x.teamId === wantedTeamId) ?? memberships[0];
   if (!m) throw new ForbiddenError(NO_TEAM_MESSAGE);
   if (!isRole(m.role)) throw new ForbiddenError();
-  const actor: Actor = { teamId: m.teamId, role: m.role, userId, name: m.user.name, via: "session" };
+  const actor: Actor = {
+    teamId: m.teamId,
+    role: m.role,
+    userId,
+    name: m.user.name,
+    via: "session",
+  };
   assertRole(actor, minimum);
   return actor;
 }
@@ -105,15 +123,28 @@ export async function actorForUser(userId: string, wantedTeamId: string | undefi
 export async function requireToken(request: Request, minimum: Role = "viewer"): Promise<Actor> {
   const header = request.headers.get("authorization") ?? "";
   const m = /^Bearer\s+(\S+)$/i.exec(header);
-  if (!m?.[1]) throw new UnauthenticatedError("Send an API token as: Authorization: Bearer <token>.");
+  if (!m?.[1])
+    throw new UnauthenticatedError("Send an API token as: Authorization: Bearer <token>.");
   const token = await db.apiToken.findUnique({ where: { tokenHash: hashToken(m[1]) } });
-  if (!token || token.revokedAt) throw new UnauthenticatedError("That API token is not valid or has been revoked.");
-  if (token.suspendedAt) throw new UnauthenticatedError("That API token is paused until another team owner confirms it.");
+  if (!token || token.revokedAt)
+    throw new UnauthenticatedError("That API token is not valid or has been revoked.");
+  if (token.suspendedAt)
+    throw new UnauthenticatedError(
+      "That API token is paused until another team owner confirms it.",
+    );
   // Best effort and at most once a minute: a read must not depend on a write (a full disk).
   if (!token.lastUsedAt || Date.now() - token.lastUsedAt.getTime() > 60_000) {
-    void db.apiToken.update({ where: { id: token.id }, data: { lastUsedAt: new Date() } }).catch(() => undefined);
+    void db.apiToken
+      .update({ where: { id: token.id }, data: { lastUsedAt: new Date() } })
+      .catch(() => undefined);
   }
-  const actor: Actor = { teamId: token.teamId, role: "pilot", userId: null, name: `token ${token.name}`, via: "token" };
+  const actor: Actor = {
+    teamId: token.teamId,
+    role: "pilot",
+    userId: null,
+    name: `token ${token.name}`,
+    via: "token",
+  };
   assertRole(actor, minimum);
   return actor;
 }
@@ -129,9 +160,17 @@ export async function requireApiCaller(request: Request, minimum: Role = "viewer
 }
 
 /** A signed-in person, whether or not they belong to a team yet (for accepting invitations). */
-export async function requireUser(): Promise<{ userId: string; sessionId: string; name: string; email: string }> {
+export async function requireUser(): Promise<{
+  userId: string;
+  sessionId: string;
+  name: string;
+  email: string;
+}> {
   const { userId, sessionId } = await openSession();
-  const user = await db.user.findUnique({ where: { id: userId }, select: { name: true, email: true } });
+  const user = await db.user.findUnique({
+    where: { id: userId },
+    select: { name: true, email: true },
+  });
   if (!user) throw new UnauthenticatedError();
   return { userId, sessionId, name: user.name, email: user.email };
 }

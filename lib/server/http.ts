@@ -12,10 +12,17 @@ export async function jsonRoute(name: string, run: () => Promise<unknown>): Prom
     return NextResponse.json(body, { headers: NO_STORE });
   } catch (e) {
     if (isDomainError(e)) {
-      const retry: Record<string, string> = e instanceof TooManyRequestsError ? { "Retry-After": String(e.retryAfterSeconds) } : {};
-      return NextResponse.json({ error: e.message, code: e.code }, { status: e.httpStatus, headers: { ...NO_STORE, ...retry } });
+      const retry: Record<string, string> =
+        e instanceof TooManyRequestsError ? { "Retry-After": String(e.retryAfterSeconds) } : {};
+      return NextResponse.json(
+        { error: e.message, code: e.code },
+        { status: e.httpStatus, headers: { ...NO_STORE, ...retry } },
+      );
     }
     console.error(`route ${name} failed`, e);
-    return NextResponse.json({ error: "Something went wrong on the server.", code: "internal" }, { status: 500, headers: NO_STORE });
+    return NextResponse.json(
+      { error: "Something went wrong on the server.", code: "internal" },
+      { status: 500, headers: NO_STORE },
+    );
   }
 }

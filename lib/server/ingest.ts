@@ -3,7 +3,12 @@ import { createHash, randomUUID, type Hash } from "node:crypto";
 import { open, rename, rm, type FileHandle } from "node:fs/promises";
 import { join } from "node:path";
 import { DEFAULT_ANALYSIS } from "@/lib/analysis/settings";
-import { InputError, InsufficientStorageError, LimitExceededError, LogFormatError } from "@/lib/errors";
+import {
+  InputError,
+  InsufficientStorageError,
+  LimitExceededError,
+  LogFormatError,
+} from "@/lib/errors";
 import { parseColumnMap } from "@/lib/logs/columns";
 import { formatBytes, readLog, type LogSink, type ReadSummary } from "@/lib/logs/read-log";
 import { matchAirframe } from "@/lib/logs/sniff";
@@ -87,7 +92,11 @@ async function ingest(actor: Actor, req: IngestRequest): Promise<IngestResult> {
     const flownAt = parseFlownAt(summary.info.metadata.flown_at);
     const existing = await findExisting(actor, hash);
     if (existing) return existing;
-    const { airframe, matchedBy } = await resolveAirframe(actor, req, summary.info.metadata.airframe);
+    const { airframe, matchedBy } = await resolveAirframe(
+      actor,
+      req,
+      summary.info.metadata.airframe,
+    );
     return await oneAtATime(`${actor.teamId}:${hash}`, async () => {
       const again = await findExisting(actor, hash);
       if (again) return again;
@@ -109,7 +118,14 @@ async function ingest(actor: Actor, req: IngestRequest): Promise<IngestResult> {
               uploadedById: actor.userId ?? "token",
             },
           });
-          await audit(tx, actor, "upload log", "airframe", airframe.id, `${req.fileName} (${formatBytes(spool.bytes)})`);
+          await audit(
+            tx,
+            actor,
+            "upload log",
+            "airframe",
+            airframe.id,
+            `${req.fileName} (${formatBytes(spool.bytes)})`,
+          );
           return created;
         });
         stored = null;
@@ -142,12 +158,21 @@ async function findExisting(actor: Actor, hash: string): Promise<IngestResult | 
     where: { teamId_contentHash: { teamId: actor.teamId, contentHash: hash } },
     include: { airframe: { select: { name: true } } },
   });
-  return existing ? { logId: existing.id, airframe: existing.airframe?.name ?? "", duplicate: true, matchedBy: "chosen" } : null;
+  return existing
+    ? {
+        logId: existing.id,
+        airframe: existing.airframe?.name ?? "",
+        duplicate: true,
+        matchedBy: "chosen",
+      }
+    : null;
 }
 
 // Recording one content hash for one team happens one request at a time in this process, so
 // parallel uploads of the same bytes all end on the one record.
-const locks = ((globalThis as unknown as { heatcheckIngestLocks?: Map<string, Promise<unknown>> }).heatcheckIngestLocks ??= new Map());
+const locks = ((
+  globalThis as unknown as { heatcheckIngestLocks?: Map<string, Promise<unknown>> }
+).heatcheckIngestLocks ??= new Map());
 
 async function oneAtATime<T>(key: string, run: () => Promise<T>): Promise<T> {
   const before = locks.get(key) ?? Promise.resolve();
@@ -187,7 +212,9 @@ class Spool {
     for await (const chunk of body) {
       this.bytes += chunk.length;
       if (this.bytes > limit) {
-        this.failure = new LimitExceededError(`The file is larger than the ${formatBytes(limit)} upload limit.`);
+        this.failure = new LimitExceededError(
+          `The file is larger than the ${formatBytes(limit)} upload limit.`,
+        );
         throw this.failure;
       }
       this.hash.update(chunk);
@@ -207,7 +234,11 @@ class Spool {
     try {
       await this.fh.writev(batch);
     } catch (e) {
-      this.failure = isDiskFull(e) ? new InsufficientStorageError() : e instanceof Error ? e : new Error(String(e));
+      this.failure = isDiskFull(e)
+        ? new InsufficientStorageError()
+        : e instanceof Error
+          ? e
+          : new Error(String(e));
       throw this.failure;
     }
   }
@@ -261,7 +292,11 @@ class UploadCheck implements LogSink {
   }
 }
 
-async function resolveAirframe(actor: Actor, req: IngestRequest, metadataAirframe: string | undefined) {
+async function resolveAirframe(
+  actor: Actor,
+  req: IngestRequest,
+  metadataAirframe: string | undefined,
+) {
   if (req.airframeId) {
     const a = await db.airframe.findFirst({ where: { id: req.airframeId, teamId: actor.teamId } });
     if (!a) throw new InputError("The chosen airframe is not in this team.", "airframeId");
@@ -269,11 +304,20 @@ async function resolveAirframe(actor: Actor, req: IngestRequest, metadataAirfram
   }
   const airframes = await db.airframe.findMany({ where: { teamId: actor.teamId, retired: false } });
   if (req.airframeName) {
-    const a = airframes.find((x) => x.name.toLowerCase() === req.airframeName?.trim().toLowerCase());
-    if (!a) throw new InputError(`There is no airframe named "${req.airframeName}" in this team.`, "airframe");
+    const a = airframes.find(
+      (x) => x.name.toLowerCase() === req.airframeName?.trim().toLowerCase(),
+    );
+    if (!a)
+      throw new InputError(
+        `There is no airframe named "${req.airframeName}" in this team.`,
+        "airframe",
+      );
     return { airframe: a, matchedBy: "chosen" as const };
   }
-  const match = matchAirframe(airframes.map((a) => a.name), { metadataAirframe, fileName: req.fileName });
+  const match = matchAirframe(
+    airframes.map((a) => a.name),
+    { metadataAirframe, fileName: req.fileName },
+  );
   const a = match ? airframes.find((x) => x.name === match.name) : undefined;
   if (!a || !match) {
     throw new InputError(
@@ -289,7 +333,9 @@ export function parseFlownAt(text: string | undefined, now = new Date()): Date {
   if (text === undefined || text.trim() === "") return now;
   const trimmed = text.trim();
   // ISO 8601 date with optional time; Date.parse alone also takes "10000-01-01" or "March 3".
-  const iso = /^\d{4}-\d{2}-\d{2}([T ]\d{2}:\d{2}(:\d{2}(\.\d+)?)?(Z|[+-]\d{2}:?\d{2})?)?$/.test(trimmed);
+  const iso = /^\d{4}-\d{2}-\d{2}([T ]\d{2}:\d{2}(:\d{2}(\.\d+)?)?(Z|[+-]\d{2}:?\d{2})?)?$/.test(
+    trimmed,
+  );
   const d = new Date(trimmed);
   const latest = new Date(now.getTime() + FLOWN_AT_LEEWAY_MS);
   if (!iso || Number.isNaN(d.getTime()) || d < EARLIEST_FLOWN_AT || d > latest) {
@@ -307,6 +353,9 @@ export async function reanalyseLog(actor: Actor, logId: string, mapText?: string
   const log = await db.flightLog.findFirst({ where: { id: logId, teamId: actor.teamId } });
   if (!log) throw new InputError("That log is not in this team.");
   if (mapText !== undefined) parseColumnMap(mapText);
-  await db.flightLog.update({ where: { id: log.id }, data: { status: "pending", error: null, ...(mapText !== undefined ? { mapText } : {}) } });
+  await db.flightLog.update({
+    where: { id: log.id },
+    data: { status: "pending", error: null, ...(mapText !== undefined ? { mapText } : {}) },
+  });
   void enqueueAnalysis(log.id);
 }

@@ -26,7 +26,14 @@ export async function logView(actor: Actor, logId: string) {
     include: {
       airframe: { select: { id: true, name: true, frameDesign: true } },
       analysis: true,
-      assessments: { include: { baseline: { select: { id: true, json: true, active: true, createdAt: true, reason: true } } }, orderBy: { createdAt: "desc" } },
+      assessments: {
+        include: {
+          baseline: {
+            select: { id: true, json: true, active: true, createdAt: true, reason: true },
+          },
+        },
+        orderBy: { createdAt: "desc" },
+      },
     },
   });
   if (!log) throw new NotFoundError("That log");
@@ -34,20 +41,35 @@ export async function logView(actor: Actor, logId: string) {
   const judged = log.assessments.find((a) => a.baseline.active) ?? log.assessments[0] ?? null;
   const baseline = judged ? (JSON.parse(judged.baseline.json) as Baseline) : undefined;
   const spectra = {} as Record<Axis, SpectrumPoint[]>;
-  for (const axis of AXES) spectra[axis] = analysis ? spectrumOverlay(analysis, axis, baseline) : [];
+  for (const axis of AXES)
+    spectra[axis] = analysis ? spectrumOverlay(analysis, axis, baseline) : [];
 
   let fleetNotes: FleetNote[] = [];
   let fleetAirframes = 0;
   if (analysis && log.airframe) {
-    const placement = (await fleetPlacement(actor)).placements.find((p) => p.airframeId === log.airframe?.id);
+    const placement = (await fleetPlacement(actor)).placements.find(
+      (p) => p.airframeId === log.airframe?.id,
+    );
     if (placement) {
       fleetAirframes = placement.reference.enough ? placement.reference.airframes : 0;
-      fleetNotes = judgeAgainstFleet(placement.reference, memberFromLog(log.airframe.id, log.airframe.name, analysis), { what: "log", ...BAND_WORDS });
+      fleetNotes = judgeAgainstFleet(
+        placement.reference,
+        memberFromLog(log.airframe.id, log.airframe.name, analysis),
+        { what: "log", ...BAND_WORDS },
+      );
     }
   }
 
   return {
-    log: { id: log.id, fileName: log.fileName, flownAt: log.flownAt, status: log.status, error: log.error, sizeBytes: log.sizeBytes, mapText: log.mapText },
+    log: {
+      id: log.id,
+      fileName: log.fileName,
+      flownAt: log.flownAt,
+      status: log.status,
+      error: log.error,
+      sizeBytes: log.sizeBytes,
+      mapText: log.mapText,
+    },
     airframe: log.airframe,
     analysis,
     assessment: judged
@@ -56,7 +78,11 @@ export async function logView(actor: Actor, logId: string) {
           status: judged.status as Status,
           findings: JSON.parse(judged.findings) as Finding[],
           notCompared: JSON.parse(judged.notCompared) as NotCompared[],
-          baseline: { active: judged.baseline.active, createdAt: judged.baseline.createdAt, reason: judged.baseline.reason },
+          baseline: {
+            active: judged.baseline.active,
+            createdAt: judged.baseline.createdAt,
+            reason: judged.baseline.reason,
+          },
         }
       : null,
     spectra,
@@ -64,7 +90,11 @@ export async function logView(actor: Actor, logId: string) {
       motor: m.motor,
       name: motorPositionName(m.motor),
       meanRpm: m.meanRpm,
-      track: m.track.map((p) => ({ tS: Math.round(p.tS * 10) / 10, rotationHz: Math.round(p.rotationHz * 10) / 10, order1Db: Math.round(p.order1Db * 10) / 10 })),
+      track: m.track.map((p) => ({
+        tS: Math.round(p.tS * 10) / 10,
+        rotationHz: Math.round(p.rotationHz * 10) / 10,
+        order1Db: Math.round(p.order1Db * 10) / 10,
+      })),
     })),
     orders: analysis ? orderTable(analysis) : null,
     fleet: { airframes: fleetAirframes, notes: fleetNotes },
@@ -77,18 +107,25 @@ export async function logView(actor: Actor, logId: string) {
  * their segments (dB re 1 (deg/s)²), with the share of the motor's telemetry that was masked.
  */
 function orderTable(analysis: LogAnalysis) {
-  const bands = analysis.throttleBands.filter((b) => b.segments >= DEFAULT_ANALYSIS.minBandSegments);
+  const bands = analysis.throttleBands.filter(
+    (b) => b.segments >= DEFAULT_ANALYSIS.minBandSegments,
+  );
   const labels: string[] = [];
-  for (const b of bands) for (const m of b.motors) for (const o of m.orders) if (!labels.includes(o.label)) labels.push(o.label);
+  for (const b of bands)
+    for (const m of b.motors)
+      for (const o of m.orders) if (!labels.includes(o.label)) labels.push(o.label);
   const orderOf = new Map<string, number>();
-  for (const b of bands) for (const m of b.motors) for (const o of m.orders) orderOf.set(o.label, o.order);
+  for (const b of bands)
+    for (const m of b.motors) for (const o of m.orders) orderOf.set(o.label, o.order);
   labels.sort((x, y) => (orderOf.get(x) ?? 0) - (orderOf.get(y) ?? 0));
   const motors = analysis.motors.map((summary) => {
     const levels = labels.map((label) => {
       let power = 0;
       let weight = 0;
       for (const b of bands) {
-        const o = b.motors.find((m) => m.motor === summary.motor)?.orders.find((x) => x.label === label);
+        const o = b.motors
+          .find((m) => m.motor === summary.motor)
+          ?.orders.find((x) => x.label === label);
         if (!o) continue;
         const loudest = Math.max(...AXES.map((a) => o.powerDb[a]));
         if (!Number.isFinite(loudest)) continue;
@@ -97,7 +134,13 @@ function orderTable(analysis: LogAnalysis) {
       }
       return weight > 0 ? Math.round(toDb(power / weight) * 10) / 10 : null;
     });
-    return { motor: summary.motor, name: motorPositionName(summary.motor), meanRpm: Math.round(summary.meanRpm), maskedShare: summary.maskedShare ?? 0, levels };
+    return {
+      motor: summary.motor,
+      name: motorPositionName(summary.motor),
+      meanRpm: Math.round(summary.meanRpm),
+      maskedShare: summary.maskedShare ?? 0,
+      levels,
+    };
   });
   return { labels, motors };
 }

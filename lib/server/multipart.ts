@@ -24,10 +24,15 @@ export interface MultipartFile {
  */
 const DRAIN_MS = 30_000;
 
-export function readMultipartFile<T>(request: Request, handle: (file: MultipartFile) => Promise<T>): Promise<T> {
+export function readMultipartFile<T>(
+  request: Request,
+  handle: (file: MultipartFile) => Promise<T>,
+): Promise<T> {
   const type = request.headers.get("content-type") ?? "";
   if (!type.toLowerCase().startsWith("multipart/form-data") || !request.body) {
-    return Promise.reject(new InputError("Send the log as multipart/form-data with a part named file."));
+    return Promise.reject(
+      new InputError("Send the log as multipart/form-data with a part named file."),
+    );
   }
   const body = request.body;
   return new Promise<T>((resolve, reject) => {
@@ -42,7 +47,10 @@ export function readMultipartFile<T>(request: Request, handle: (file: MultipartF
     };
     let bb: busboy.Busboy;
     try {
-      bb = busboy({ headers: { "content-type": type }, limits: { files: 1, fields: 20, fieldSize: 16 * 1024 } });
+      bb = busboy({
+        headers: { "content-type": type },
+        limits: { files: 1, fields: 20, fieldSize: 16 * 1024 },
+      });
     } catch {
       finish(false, new InputError("The multipart body could not be read."));
       return;
@@ -58,7 +66,8 @@ export function readMultipartFile<T>(request: Request, handle: (file: MultipartF
       source.once("error", end);
       source.once("close", end);
     });
-    const cutOff = () => new InputError("The upload was cut off or is not valid multipart data; nothing was kept.");
+    const cutOff = () =>
+      new InputError("The upload was cut off or is not valid multipart data; nothing was kept.");
     let fileStream: Readable | null = null;
     source.on("error", () => {
       // The client went away: fail the file stream so its consumer cleans up, and this request.
@@ -77,8 +86,14 @@ export function readMultipartFile<T>(request: Request, handle: (file: MultipartF
       }
       fileStream = stream;
       // Not destroyed when the consumer stops early, so that the rest can be drained (see above).
-      const bytes: AsyncIterable<Uint8Array> = { [Symbol.asyncIterator]: () => stream.iterator({ destroyOnReturn: false }) };
-      handled = handle({ fields: { ...fields }, fileName: info.filename || "upload.csv", body: bytes });
+      const bytes: AsyncIterable<Uint8Array> = {
+        [Symbol.asyncIterator]: () => stream.iterator({ destroyOnReturn: false }),
+      };
+      handled = handle({
+        fields: { ...fields },
+        fileName: info.filename || "upload.csv",
+        body: bytes,
+      });
       handled.then(
         (v) => finish(true, v),
         (e: unknown) => {

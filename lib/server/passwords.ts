@@ -31,7 +31,10 @@ export const MAX_PASSWORD_BYTES = 72;
 
 function assertBcryptLength(password: string): void {
   if (Buffer.byteLength(password, "utf8") > MAX_PASSWORD_BYTES) {
-    throw new InputError(`Keep the password to ${MAX_PASSWORD_BYTES} bytes (about ${MAX_PASSWORD_BYTES} plain letters); longer ones cannot be checked in full.`, "password");
+    throw new InputError(
+      `Keep the password to ${MAX_PASSWORD_BYTES} bytes (about ${MAX_PASSWORD_BYTES} plain letters); longer ones cannot be checked in full.`,
+      "password",
+    );
   }
 }
 
@@ -58,15 +61,22 @@ export async function assertAcceptablePassword(
   context: { email: string; field: string; currentHash?: string },
 ): Promise<void> {
   const field = context.field;
-  if (password.trim() === "") throw new InputError("A password of spaces only is too easy to guess; choose another.", field);
-  if ([...password].length < MIN_PASSWORD_CHARS) throw new InputError(`Choose a password of at least ${MIN_PASSWORD_CHARS} characters.`, field);
+  if (password.trim() === "")
+    throw new InputError("A password of spaces only is too easy to guess; choose another.", field);
+  if ([...password].length < MIN_PASSWORD_CHARS)
+    throw new InputError(`Choose a password of at least ${MIN_PASSWORD_CHARS} characters.`, field);
   if (Buffer.byteLength(password, "utf8") > MAX_PASSWORD_BYTES) {
-    throw new InputError(`Keep the password to ${MAX_PASSWORD_BYTES} bytes (about ${MAX_PASSWORD_BYTES} plain letters); longer ones cannot be checked in full.`, field);
+    throw new InputError(
+      `Keep the password to ${MAX_PASSWORD_BYTES} bytes (about ${MAX_PASSWORD_BYTES} plain letters); longer ones cannot be checked in full.`,
+      field,
+    );
   }
   const lower = password.toLowerCase();
   const email = context.email.trim().toLowerCase();
-  if (email !== "" && (lower === email || lower === email.split("@")[0])) throw new InputError("The password must not be the email address.", field);
-  if (commonPasswords().has(lower)) throw new InputError("That password is on a list of common passwords; choose another.", field);
+  if (email !== "" && (lower === email || lower === email.split("@")[0]))
+    throw new InputError("The password must not be the email address.", field);
+  if (commonPasswords().has(lower))
+    throw new InputError("That password is on a list of common passwords; choose another.", field);
   if (context.currentHash && (await bcrypt.compare(password, context.currentHash))) {
     throw new InputError("The new password is the current one; choose a different one.", field);
   }

@@ -30,15 +30,24 @@ const QUEUE_MAX_AGE_MS = 10_000;
 // the event loop, so recomputing it per request starved uploads under 50 readers. A team's ranking
 // is computed once per change of the database (SQLite's change counter of this connection, and
 // data_version for commits by another process such as a seed) and shared by concurrent readers.
-const cache = ((globalThis as unknown as { heatcheckQueueCache?: Map<string, { version: string; at: number; ranked: Promise<Ranked> }> }).heatcheckQueueCache ??= new Map());
+const cache = ((
+  globalThis as unknown as {
+    heatcheckQueueCache?: Map<string, { version: string; at: number; ranked: Promise<Ranked> }>;
+  }
+).heatcheckQueueCache ??= new Map());
 
 async function databaseVersion(): Promise<string> {
-  const [row] = await db.$queryRaw<{ c: bigint | number; d: bigint | number }[]>`SELECT total_changes() AS c, (SELECT data_version FROM pragma_data_version) AS d`;
+  const [row] = await db.$queryRaw<
+    { c: bigint | number; d: bigint | number }[]
+  >`SELECT total_changes() AS c, (SELECT data_version FROM pragma_data_version) AS d`;
   return `${String(row?.c)}:${String(row?.d)}`;
 }
 
 /** Every active airframe of the team, ranked for inspection before the next heat. */
-export async function inspectionQueue(actor: Actor, options: { onlyNextHeat?: boolean } = {}): Promise<Ranked> {
+export async function inspectionQueue(
+  actor: Actor,
+  options: { onlyNextHeat?: boolean } = {},
+): Promise<Ranked> {
   const version = await databaseVersion();
   let hit = cache.get(actor.teamId);
   if (!hit || hit.version !== version || Date.now() - hit.at > QUEUE_MAX_AGE_MS) {
@@ -50,7 +59,11 @@ export async function inspectionQueue(actor: Actor, options: { onlyNextHeat?: bo
     });
   }
   const { entries, heat } = await hit.ranked;
-  return { entries: options.onlyNextHeat && heat ? entries.filter((e: QueueEntry) => e.inNextHeat) : entries, heat };
+  return {
+    entries:
+      options.onlyNextHeat && heat ? entries.filter((e: QueueEntry) => e.inNextHeat) : entries,
+    heat,
+  };
 }
 
 async function rankTeam(actor: Actor): Promise<Ranked> {
@@ -62,13 +75,20 @@ async function rankTeam(actor: Actor): Promise<Ranked> {
       crashes: { orderBy: { at: "desc" } },
       inspections: { orderBy: { at: "desc" }, take: 1 },
       installations: { where: { toAt: null }, include: { part: true } },
-      baselines: { where: { active: true }, take: 1, orderBy: { createdAt: "desc" }, include: { logs: { select: { log: { select: { flownAt: true } } } } } },
+      baselines: {
+        where: { active: true },
+        take: 1,
+        orderBy: { createdAt: "desc" },
+        include: { logs: { select: { log: { select: { flownAt: true } } } } },
+      },
       logs: { orderBy: { flownAt: "desc" }, select: { flownAt: true } },
     },
   });
   // Life is counted over each part's whole history, as on the parts screens, in one go for the fleet.
   const fleet = new Map((await fleetPlacement(actor)).placements.map((p) => [p.airframeId, p]));
-  const limited = airframes.flatMap((a) => a.installations.filter((i) => i.part.lifeFlights || i.part.lifeMinutes));
+  const limited = airframes.flatMap((a) =>
+    a.installations.filter((i) => i.part.lifeFlights || i.part.lifeMinutes),
+  );
   const life = await lifeOfParts(limited.map((i) => i.part));
   const facts: AirframeFacts[] = [];
   for (const a of airframes) {
@@ -83,16 +103,36 @@ async function rankTeam(actor: Actor): Promise<Ranked> {
       : null;
     const partsPastLife = a.installations.flatMap((i) => {
       const fraction = life.get(i.partId)?.fraction ?? 0;
-      return fraction >= 1 ? [{ position: i.position, what: `${i.part.model} (${i.part.kind})`, fraction }] : [];
+      return fraction >= 1
+        ? [{ position: i.position, what: `${i.part.model} (${i.part.kind})`, fraction }]
+        : [];
     });
     const lastLog = a.logs[0]?.flownAt ?? new Date(0);
     // Parts still fitted that went on after the baseline's flights and change the spectrum.
-    const baselineAt = baseline?.logs.reduce((t, l) => (l.log.flownAt > t ? l.log.flownAt : t), new Date(0));
+    const baselineAt = baseline?.logs.reduce(
+      (t, l) => (l.log.flownAt > t ? l.log.flownAt : t),
+      new Date(0),
+    );
     const repairs = baselineAt
-      ? repairsSince(baselineAt, a.installations.map((i) => ({ at: i.fromAt, position: i.position, kind: i.part.kind, model: i.part.model })))
+      ? repairsSince(
+          baselineAt,
+          a.installations.map((i) => ({
+            at: i.fromAt,
+            position: i.position,
+            kind: i.part.kind,
+            model: i.part.model,
+          })),
+        )
       : [];
     const firstRepair = repairs[0]?.at;
-    const staleBaseline = firstRepair ? { reason: staleBaselineReason(repairs, a.logs.filter((l) => l.flownAt > firstRepair).length) } : null;
+    const staleBaseline = firstRepair
+      ? {
+          reason: staleBaselineReason(
+            repairs,
+            a.logs.filter((l) => l.flownAt > firstRepair).length,
+          ),
+        }
+      : null;
     const lastWork = [
       ...a.inspections.map((x) => ({ what: "inspection", at: x.at })),
       ...a.installations.map((x) => ({ what: `${x.position} swap`, at: x.fromAt })),
@@ -114,7 +154,11 @@ async function rankTeam(actor: Actor): Promise<Ranked> {
       fleet: fleet.get(a.id) ?? null,
       openCrashes: a.crashes
         .filter((c) => c.at > lastInspection)
-        .map((c) => ({ at: c.at, severity: c.severity, positions: JSON.parse(c.positions) as string[] })),
+        .map((c) => ({
+          at: c.at,
+          severity: c.severity,
+          positions: JSON.parse(c.positions) as string[],
+        })),
       partsPastLife,
       noLogSince: lastWork && lastWork.at > lastLog ? lastWork : null,
       inNextHeat: inHeat.has(a.id),

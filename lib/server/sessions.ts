@@ -19,7 +19,8 @@ export const SESSION_ABSOLUTE_MS = 12 * 3600_000;
 /** lastSeenAt is written at most this often, so reading pages does not write the database each time. */
 const TOUCH_EVERY_MS = 60_000;
 
-export type SessionEndReason = "sign-out" | "password change" | "removed from a team" | "account disabled" | "idle" | "expired";
+export type SessionEndReason =
+  "sign-out" | "password change" | "removed from a team" | "account disabled" | "idle" | "expired";
 
 export async function startSession(userId: string): Promise<string> {
   const s = await db.session.create({ data: { userId } });
@@ -27,11 +28,20 @@ export async function startSession(userId: string): Promise<string> {
 }
 
 /** Throws UnauthenticatedError unless the session is open, its user's, and within both lifetimes. */
-export async function assertSessionOpen(sessionId: string, userId: string, now = new Date()): Promise<void> {
+export async function assertSessionOpen(
+  sessionId: string,
+  userId: string,
+  now = new Date(),
+): Promise<void> {
   const s = await db.session.findUnique({ where: { id: sessionId } });
-  if (!s || s.userId !== userId || s.endedAt) throw new UnauthenticatedError("Your session has ended; sign in again.");
+  if (!s || s.userId !== userId || s.endedAt)
+    throw new UnauthenticatedError("Your session has ended; sign in again.");
   const reason: SessionEndReason | null =
-    now.getTime() - s.createdAt.getTime() > SESSION_ABSOLUTE_MS ? "expired" : now.getTime() - s.lastSeenAt.getTime() > SESSION_IDLE_MS ? "idle" : null;
+    now.getTime() - s.createdAt.getTime() > SESSION_ABSOLUTE_MS
+      ? "expired"
+      : now.getTime() - s.lastSeenAt.getTime() > SESSION_IDLE_MS
+        ? "idle"
+        : null;
   if (reason) {
     await db.session.update({ where: { id: s.id }, data: { endedAt: now, endedReason: reason } });
     throw new UnauthenticatedError("Your session has ended; sign in again.");
@@ -42,11 +52,18 @@ export async function assertSessionOpen(sessionId: string, userId: string, now =
 }
 
 export async function endSession(sessionId: string, reason: SessionEndReason): Promise<void> {
-  await db.session.updateMany({ where: { id: sessionId, endedAt: null }, data: { endedAt: new Date(), endedReason: reason } });
+  await db.session.updateMany({
+    where: { id: sessionId, endedAt: null },
+    data: { endedAt: new Date(), endedReason: reason },
+  });
 }
 
 /** Ends every open session of a user, except `keep` (the caller's own, after a password change). */
-export async function endUserSessions(userId: string, reason: SessionEndReason, keep?: string): Promise<number> {
+export async function endUserSessions(
+  userId: string,
+  reason: SessionEndReason,
+  keep?: string,
+): Promise<number> {
   const r = await db.session.updateMany({
     where: { userId, endedAt: null, ...(keep ? { id: { not: keep } } : {}) },
     data: { endedAt: new Date(), endedReason: reason },

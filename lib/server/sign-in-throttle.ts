@@ -30,7 +30,9 @@ export const ADDRESS_RULE: ThrottleRule = { free: 20, maxDelayMs: 15 * 60_000 };
 const FORGET_AFTER_MS = 15 * 60_000;
 const MAX_KEYS = 50_000;
 
-const globalForThrottle = globalThis as unknown as { heatcheckSignInThrottle?: Map<string, Counter> };
+const globalForThrottle = globalThis as unknown as {
+  heatcheckSignInThrottle?: Map<string, Counter>;
+};
 const counters: Map<string, Counter> = (globalForThrottle.heatcheckSignInThrottle ??= new Map());
 
 /** Milliseconds the key must still wait before its next attempt (0: it may try now). */

@@ -19,7 +19,9 @@ export function shutdownGraceSeconds(): number {
 export async function startServer(): Promise<void> {
   const folder = await prepareDataFolder();
   if (folder.sweptTemporaries > 0) {
-    console.log(`heatcheck: removed ${folder.sweptTemporaries} interrupted uploads (${(folder.sweptBytes / 1e6).toFixed(1)} MB)`);
+    console.log(
+      `heatcheck: removed ${folder.sweptTemporaries} interrupted uploads (${(folder.sweptBytes / 1e6).toFixed(1)} MB)`,
+    );
   }
   const orphans = await removeOrphanOriginals();
   if (orphans > 0) console.log(`heatcheck: removed ${orphans} stored files no log record names`);
@@ -31,7 +33,9 @@ export async function startServer(): Promise<void> {
 const ORIGINAL = /^[0-9a-f]{64}\.csv$/;
 
 async function removeOrphanOriginals(): Promise<number> {
-  const known = new Set((await db.flightLog.findMany({ select: { storedPath: true } })).map((l) => l.storedPath));
+  const known = new Set(
+    (await db.flightLog.findMany({ select: { storedPath: true } })).map((l) => l.storedPath),
+  );
   let removed = 0;
   const walk = async (dir: string): Promise<void> => {
     for (const entry of await readdir(dir, { withFileTypes: true })) {

@@ -5,5 +5,7 @@ export function isDiskFull(e: unknown): boolean {
   if (!(e instanceof Error)) return false;
   const code = (e as NodeJS.ErrnoException).code;
   if (code === "ENOSPC" || code === "EDQUOT" || code === "SQLITE_FULL") return true;
-  return /SQLITE_FULL|database or disk is full|ENOSPC|no space left on device/i.test(`${e.message} ${String(e.cause ?? "")}`);
+  return /SQLITE_FULL|database or disk is full|ENOSPC|no space left on device/i.test(
+    `${e.message} ${String(e.cause ?? "")}`,
+  );
 }

@@ -25,10 +25,20 @@ type Row = Record<string, unknown>;
 export function toCsv(rows: readonly Row[], columns?: readonly string[]): string {
   const cols = columns ?? [...new Set(rows.flatMap((r) => Object.keys(r)))];
   const cell = (v: unknown): string => {
-    const s = v === null || v === undefined ? "" : v instanceof Date ? v.toISOString() : typeof v === "object" ? JSON.stringify(v) : String(v);
+    const s =
+      v === null || v === undefined
+        ? ""
+        : v instanceof Date
+          ? v.toISOString()
+          : typeof v === "object"
+            ? JSON.stringify(v)
+            : String(v);
     return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
   };
-  return [cols.join(","), ...rows.map((r) => cols.map((c) => cell(r[c])).join(","))].join("\r\n") + "\r\n";
+  return (
+    [cols.join(","), ...rows.map((r) => cols.map((c) => cell(r[c])).join(","))].join("\r\n") +
+    "\r\n"
+  );
 }
 
 function parsed(json: string): unknown {
@@ -43,7 +53,21 @@ export async function collectTeam(teamId: string) {
   const team = await db.team.findUnique({ where: { id: teamId } });
   if (!team) throw new Error(`no team ${teamId}`);
   const where = { teamId };
-  const [members, airframes, parts, installations, crashes, inspections, events, heats, logs, baselines, importProfiles, tokens, audit] = await Promise.all([
+  const [
+    members,
+    airframes,
+    parts,
+    installations,
+    crashes,
+    inspections,
+    events,
+    heats,
+    logs,
+    baselines,
+    importProfiles,
+    tokens,
+    audit,
+  ] = await Promise.all([
     db.membership.findMany({ where, include: { user: { select: { name: true, email: true } } } }),
     db.airframe.findMany({ where, orderBy: { name: "asc" } }),
     db.part.findMany({ where, orderBy: { createdAt: "asc" } }),
@@ -53,26 +77,65 @@ export async function collectTeam(teamId: string) {
     db.event.findMany({ where, orderBy: { startsAt: "asc" } }),
     db.heat.findMany({ where, orderBy: { startsAt: "asc" }, include: { entries: true } }),
     db.flightLog.findMany({ where, orderBy: { flownAt: "asc" } }),
-    db.baseline.findMany({ where, orderBy: { createdAt: "asc" }, include: { logs: { select: { logId: true } } } }),
+    db.baseline.findMany({
+      where,
+      orderBy: { createdAt: "asc" },
+      include: { logs: { select: { logId: true } } },
+    }),
     db.importProfile.findMany({ where }),
-    db.apiToken.findMany({ where, select: { id: true, name: true, prefix: true, createdById: true, createdAt: true, lastUsedAt: true, revokedAt: true } }),
+    db.apiToken.findMany({
+      where,
+      select: {
+        id: true,
+        name: true,
+        prefix: true,
+        createdById: true,
+        createdAt: true,
+        lastUsedAt: true,
+        revokedAt: true,
+      },
+    }),
     db.auditEntry.findMany({ where, orderBy: { at: "asc" } }),
   ]);
   const logIds = logs.map((l) => l.id);
-  const assessments = await db.assessment.findMany({ where: { logId: { in: logIds } }, orderBy: { createdAt: "asc" } });
+  const assessments = await db.assessment.findMany({
+    where: { logId: { in: logIds } },
+    orderBy: { createdAt: "asc" },
+  });
   return {
     team,
-    members: members.map((m) => ({ userId: m.userId, name: m.user.name, email: m.user.email, role: m.role })),
+    members: members.map((m) => ({
+      userId: m.userId,
+      name: m.user.name,
+      email: m.user.email,
+      role: m.role,
+    })),
     airframes,
     parts,
     installations,
     crashes: crashes.map((c) => ({ ...c, positions: parsed(c.positions) })),
     inspections: inspections.map((i) => ({ ...i, checklist: parsed(i.checklist) })),
     events,
-    heats: heats.map(({ entries, ...h }) => ({ ...h, airframeIds: entries.map((e) => e.airframeId) })),
-    logs: logs.map(({ storedPath, ...l }) => ({ ...l, original: `originals/${l.id}.csv`, analysis: `analyses/${l.id}.json`, storedPath })),
-    baselines: baselines.map(({ logs: bl, json, ...b }) => ({ ...b, logIds: bl.map((x) => x.logId), baseline: parsed(json) })),
-    assessments: assessments.map((a) => ({ ...a, findings: parsed(a.findings), notCompared: parsed(a.notCompared) })),
+    heats: heats.map(({ entries, ...h }) => ({
+      ...h,
+      airframeIds: entries.map((e) => e.airframeId),
+    })),
+    logs: logs.map(({ storedPath, ...l }) => ({
+      ...l,
+      original: `originals/${l.id}.csv`,
+      analysis: `analyses/${l.id}.json`,
+      storedPath,
+    })),
+    baselines: baselines.map(({ logs: bl, json, ...b }) => ({
+      ...b,
+      logIds: bl.map((x) => x.logId),
+      baseline: parsed(json),
+    })),
+    assessments: assessments.map((a) => ({
+      ...a,
+      findings: parsed(a.findings),
+      notCompared: parsed(a.notCompared),
+    })),
     importProfiles,
     tokens,
     audit,
@@ -95,10 +158,18 @@ aid, not an airworthiness certificate.
 `;
 
 /** Writes the archive (uncompressed tar) to `out`; returns what it holds. */
-export async function writeTeamExport(teamId: string, out: Writable): Promise<{ records: number; originals: number; missing: number }> {
+export async function writeTeamExport(
+  teamId: string,
+  out: Writable,
+): Promise<{ records: number; originals: number; missing: number }> {
   const data = await collectTeam(teamId);
   const tar = new TarWriter(out);
-  const doc = { format: TEAM_EXPORT_FORMAT, version: 1, exportedAt: new Date().toISOString(), ...data };
+  const doc = {
+    format: TEAM_EXPORT_FORMAT,
+    version: 1,
+    exportedAt: new Date().toISOString(),
+    ...data,
+  };
   await tar.bytes("README.txt", README);
   await tar.bytes("team.json", JSON.stringify(doc, null, 2) + "\n");
   let records = 0;

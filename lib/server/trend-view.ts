@@ -21,7 +21,11 @@ export interface TrendRow {
  * axis's largest band rise at matched throttle, one point per analysed log, with the airframe's
  * work (crashes, swaps, inspections, baselines) on the same time axis and the thresholds to draw.
  */
-export async function trendView(airframeId: string, teamId: string, baseline: { id: string; baseline: Baseline } | null) {
+export async function trendView(
+  airframeId: string,
+  teamId: string,
+  baseline: { id: string; baseline: Baseline } | null,
+) {
   if (!baseline) return null;
   const [logs, crashes, swaps, inspections, baselines] = await Promise.all([
     db.flightLog.findMany({
@@ -31,9 +35,15 @@ export async function trendView(airframeId: string, teamId: string, baseline: { 
       select: { id: true, fileName: true, flownAt: true, analysis: { select: { json: true } } },
     }),
     db.crash.findMany({ where: { airframeId, teamId }, select: { at: true, severity: true } }),
-    db.installation.findMany({ where: { airframeId, teamId, reason: { not: "initial build" } }, select: { fromAt: true, position: true } }),
+    db.installation.findMany({
+      where: { airframeId, teamId, reason: { not: "initial build" } },
+      select: { fromAt: true, position: true },
+    }),
     db.inspection.findMany({ where: { airframeId, teamId }, select: { at: true } }),
-    db.baseline.findMany({ where: { airframeId, teamId }, select: { createdAt: true, active: true } }),
+    db.baseline.findMany({
+      where: { airframeId, teamId },
+      select: { createdAt: true, active: true },
+    }),
   ]);
   const modes = baseline.baseline.modes.map(modeKey);
   const rows: TrendRow[] = logs
@@ -50,7 +60,18 @@ export async function trendView(airframeId: string, teamId: string, baseline: { 
     ...crashes.map((c) => ({ t: c.at.getTime(), label: `${c.severity} crash` })),
     ...swaps.map((s) => ({ t: s.fromAt.getTime(), label: `swap: ${s.position}` })),
     ...inspections.map((i) => ({ t: i.at.getTime(), label: "inspection" })),
-    ...baselines.map((b) => ({ t: b.createdAt.getTime(), label: b.active ? "baseline (active)" : "baseline" })),
+    ...baselines.map((b) => ({
+      t: b.createdAt.getTime(),
+      label: b.active ? "baseline (active)" : "baseline",
+    })),
   ].sort((a, b) => a.t - b.t);
-  return { rows, modes, events, thresholds: { modeShiftPct: DEFAULT_THRESHOLDS.modeShiftPct, levelDb: DEFAULT_THRESHOLDS.levelDb } };
+  return {
+    rows,
+    modes,
+    events,
+    thresholds: {
+      modeShiftPct: DEFAULT_THRESHOLDS.modeShiftPct,
+      levelDb: DEFAULT_THRESHOLDS.levelDb,
+    },
+  };
 }

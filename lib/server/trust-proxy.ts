@@ -8,10 +8,16 @@ import http from "node:http";
  * and Next then writes the socket's address. Installed once, from instrumentation.ts.
  */
 export function dropClientForwardedFor(): void {
-  const emit: (this: unknown, event: string, ...args: unknown[]) => boolean = http.Server.prototype.emit;
-  http.Server.prototype.emit = function (this: unknown, event: string, ...args: unknown[]): boolean {
+  const emit: (this: unknown, event: string, ...args: unknown[]) => boolean =
+    http.Server.prototype.emit;
+  http.Server.prototype.emit = function (
+    this: unknown,
+    event: string,
+    ...args: unknown[]
+  ): boolean {
     const req = args[0];
-    if (event === "request" && req instanceof http.IncomingMessage) delete req.headers["x-forwarded-for"];
+    if (event === "request" && req instanceof http.IncomingMessage)
+      delete req.headers["x-forwarded-for"];
     return emit.call(this, event, ...args);
   };
 }

@@ -24,7 +24,10 @@ export async function takeUploadSlot(actor: Actor): Promise<() => void> {
   const limit = uploadsPerCaller();
   const now = open.get(key) ?? 0;
   if (now >= limit) {
-    throw new TooManyRequestsError(`You already have ${limit} uploads running; wait for one to finish and try again.`, 5);
+    throw new TooManyRequestsError(
+      `You already have ${limit} uploads running; wait for one to finish and try again.`,
+      5,
+    );
   }
   // Taken before the first await, so parallel requests cannot all pass the check.
   open.set(key, now + 1);
@@ -40,7 +43,10 @@ export async function takeUploadSlot(actor: Actor): Promise<() => void> {
     const queued = await db.flightLog.count({ where: { teamId: actor.teamId, status: "pending" } });
     const max = queuedAnalysesPerTeam();
     if (queued >= max) {
-      throw new TooManyRequestsError(`Your team already has ${queued} logs waiting for analysis; try again when some are done.`, 30);
+      throw new TooManyRequestsError(
+        `Your team already has ${queued} logs waiting for analysis; try again when some are done.`,
+        30,
+      );
     }
   } catch (e) {
     release();

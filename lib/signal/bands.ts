@@ -7,7 +7,11 @@ export interface FrequencyBand {
 }
 
 /** Bin index range [first, end) of the bins whose centres fall inside the band. */
-export function bandBins(band: FrequencyBand, binHz: number, bins: number): { first: number; end: number } {
+export function bandBins(
+  band: FrequencyBand,
+  binHz: number,
+  bins: number,
+): { first: number; end: number } {
   const first = Math.max(0, Math.ceil(band.loHz / binHz - 1e-9));
   const end = Math.min(bins, Math.ceil(band.hiHz / binHz - 1e-9));
   return { first, end: Math.max(first, end) };
@@ -25,12 +29,19 @@ export function bandPower(psd: Float64Array, binHz: number, band: FrequencyBand)
 }
 
 /** Median PSD over the bins at or above `cornerHz` (and below `maxHz`): a robust noise floor. */
-export function noiseFloor(psd: Float64Array, binHz: number, cornerHz: number, maxHz = Infinity): number {
+export function noiseFloor(
+  psd: Float64Array,
+  binHz: number,
+  cornerHz: number,
+  maxHz = Infinity,
+): number {
   const { first, end } = bandBins({ loHz: cornerHz, hiHz: maxHz }, binHz, psd.length);
   if (end <= first) return Number.NaN;
   const values = psd.slice(first, end).sort();
   const mid = values.length >> 1;
-  return values.length % 2 === 1 ? (values[mid] ?? 0) : ((values[mid - 1] ?? 0) + (values[mid] ?? 0)) / 2;
+  return values.length % 2 === 1
+    ? (values[mid] ?? 0)
+    : ((values[mid - 1] ?? 0) + (values[mid] ?? 0)) / 2;
 }
 
 /** 10·log10 of a power, floored so that zero power gives a finite, very low level. */

@@ -59,7 +59,13 @@ export class ComplexPowerSpectrum {
    * i < count (count ≤ size; the rest is zero). The returned buffer is owned by this instance
    * and overwritten by the next call.
    */
-  powers(re: ArrayLike<number>, im: ArrayLike<number>, count: number, stride = 1, offset = 0): Float64Array {
+  powers(
+    re: ArrayLike<number>,
+    im: ArrayLike<number>,
+    count: number,
+    stride = 1,
+    offset = 0,
+  ): Float64Array {
     const x = this.input;
     x.fill(0);
     for (let i = 0; i < count; i++) {
@@ -69,7 +75,8 @@ export class ComplexPowerSpectrum {
     this.fft.transform(this.out, x);
     const out = this.out;
     const p = this.power;
-    for (let k = 0, j = 0; k < this.size; k++, j += 2) p[k] = (out[j] as number) ** 2 + (out[j + 1] as number) ** 2;
+    for (let k = 0, j = 0; k < this.size; k++, j += 2)
+      p[k] = (out[j] as number) ** 2 + (out[j + 1] as number) ** 2;
     return p;
   }
 }

@@ -62,7 +62,12 @@ export function peakProminence(x: ArrayLike<number>, peak: number): Prominence {
  * Width in samples of a peak at `relHeight` of its prominence below the top (0.5: half
  * prominence), with linear interpolation between samples, as scipy's `peak_widths`.
  */
-export function peakWidth(x: ArrayLike<number>, peak: number, p: Prominence, relHeight = 0.5): number {
+export function peakWidth(
+  x: ArrayLike<number>,
+  peak: number,
+  p: Prominence,
+  relHeight = 0.5,
+): number {
   const height = (x[peak] ?? 0) - p.prominence * relHeight;
   let i = peak;
   while (p.leftBase < i && height < (x[i] ?? 0)) i--;
@@ -79,7 +84,11 @@ export function peakWidth(x: ArrayLike<number>, peak: number, p: Prominence, rel
  * Offset in samples (−0.5..0.5) of the vertex of the parabola through three neighbouring values,
  * and the value there. On a dB spectrum this refines a peak's frequency to a fraction of a bin.
  */
-export function quadraticVertex(before: number, at: number, after: number): { offset: number; value: number } {
+export function quadraticVertex(
+  before: number,
+  at: number,
+  after: number,
+): { offset: number; value: number } {
   const curvature = before - 2 * at + after;
   if (curvature >= 0) return { offset: 0, value: at };
   const offset = (0.5 * (before - after)) / curvature;
@@ -114,7 +123,11 @@ export interface PeakSearch {
  * Prominence is measured over the whole spectrum; the frequency limits only select which peaks
  * are reported. Sorted by frequency.
  */
-export function spectralPeaks(db: Float64Array, binHz: number, search: PeakSearch = {}): SpectralPeak[] {
+export function spectralPeaks(
+  db: Float64Array,
+  binHz: number,
+  search: PeakSearch = {},
+): SpectralPeak[] {
   const minProminence = search.minProminenceDb ?? 6;
   const lo = search.minFreqHz ?? binHz;
   const hi = search.maxFreqHz ?? (db.length - 1) * binHz;
@@ -177,8 +190,14 @@ export function peaksAboveLocalMedian(
     const inner = Math.max(2, Math.round(outer / 3));
     const left = medianOf(k - outer, k - inner);
     const right = medianOf(k + inner, k + outer);
-    const background = Number.isFinite(left) && Number.isFinite(right) ? (left + right) / 2 : Number.isFinite(left) ? left : right;
-    residual[k - first] = (db[k] ?? background) - (Number.isFinite(background) ? background : (db[k] ?? 0));
+    const background =
+      Number.isFinite(left) && Number.isFinite(right)
+        ? (left + right) / 2
+        : Number.isFinite(left)
+          ? left
+          : right;
+    residual[k - first] =
+      (db[k] ?? background) - (Number.isFinite(background) ? background : (db[k] ?? 0));
   }
   const out: SpectralPeak[] = [];
   for (const i of localMaxima(residual)) {
@@ -187,7 +206,13 @@ export function peaksAboveLocalMedian(
     const k = i + first;
     // Refined on the residual (the slope would pull the plain spectrum's vertex downhill).
     const v = quadraticVertex(residual[i - 1] ?? 0, residual[i] ?? 0, residual[i + 1] ?? 0);
-    out.push({ freqHz: (k + v.offset) * binHz, levelDb: (db[k] ?? 0) + v.value - (residual[i] ?? 0), prominenceDb: p.prominence, widthHz: peakWidth(residual, i, p) * binHz, bin: k });
+    out.push({
+      freqHz: (k + v.offset) * binHz,
+      levelDb: (db[k] ?? 0) + v.value - (residual[i] ?? 0),
+      prominenceDb: p.prominence,
+      widthHz: peakWidth(residual, i, p) * binHz,
+      bin: k,
+    });
   }
   return out;
 }

@@ -58,7 +58,10 @@ export function defaultNperseg(sampleRateHz: number, maxBinHz = 2): number {
 }
 
 /** Validates options once and fills defaults. Throws RangeError with a plain message. */
-export function resolveWelchOptions(sampleRateHz: number, options: WelchOptions = {}): ResolvedWelchOptions {
+export function resolveWelchOptions(
+  sampleRateHz: number,
+  options: WelchOptions = {},
+): ResolvedWelchOptions {
   if (!Number.isFinite(sampleRateHz) || sampleRateHz <= 0) {
     throw new RangeError(`sample rate must be a positive number of Hz, got ${sampleRateHz}`);
   }
@@ -150,7 +153,11 @@ export interface SampleRun {
 }
 
 /** Start indices of every Welch segment that fits inside the runs; no segment straddles two runs. */
-export function segmentStarts(runs: readonly SampleRun[], nperseg: number, noverlap: number): number[] {
+export function segmentStarts(
+  runs: readonly SampleRun[],
+  nperseg: number,
+  noverlap: number,
+): number[] {
   const step = nperseg - noverlap;
   const starts: number[] = [];
   for (const run of runs) {
@@ -207,6 +214,7 @@ export function medianAcross(spectra: readonly Float64Array[], target: Float64Ar
     for (let j = 0; j < count; j++) column[j] = spectra[j]?.[k] ?? 0;
     column.sort();
     const mid = count >> 1;
-    target[k] = count % 2 === 1 ? (column[mid] ?? 0) : ((column[mid - 1] ?? 0) + (column[mid] ?? 0)) / 2;
+    target[k] =
+      count % 2 === 1 ? (column[mid] ?? 0) : ((column[mid - 1] ?? 0) + (column[mid] ?? 0)) / 2;
   }
 }

@@ -2,9 +2,14 @@ import { z } from "zod";
 
 /** A trimmed, non-empty line of text. */
 export const nameField = (what: string, max = 80) =>
-  z.string().trim().min(1, `Give the ${what}.`).max(max, `Keep the ${what} under ${max} characters.`);
+  z
+    .string()
+    .trim()
+    .min(1, `Give the ${what}.`)
+    .max(max, `Keep the ${what} under ${max} characters.`);
 
-export const optionalText = (max = 2000) => z.string().trim().max(max, `Keep this under ${max} characters.`).default("");
+export const optionalText = (max = 2000) =>
+  z.string().trim().max(max, `Keep this under ${max} characters.`).default("");
 
 export const idField = z.string().trim().min(1, "Choose one.").max(64);
 
@@ -33,7 +38,10 @@ export const optionalNumber = (min: number, max: number, integer = false) =>
       if (v === undefined || v === "") return null;
       const n = Number(v);
       if (!Number.isFinite(n) || n < min || n > max || (integer && !Number.isInteger(n))) {
-        ctx.addIssue({ code: "custom", message: `Give ${integer ? "a whole number" : "a number"} from ${min} to ${max}, or leave it empty.` });
+        ctx.addIssue({
+          code: "custom",
+          message: `Give ${integer ? "a whole number" : "a number"} from ${min} to ${max}, or leave it empty.`,
+        });
         return z.NEVER;
       }
       return n;
@@ -55,4 +63,6 @@ export function formToObject(form: FormData): Record<string, string | string[]> 
 export const stringList = z
   .union([z.string(), z.array(z.string())])
   .optional()
-  .transform((v) => (v === undefined ? [] : Array.isArray(v) ? v : [v]).map((s) => s.trim()).filter(Boolean));
+  .transform((v) =>
+    (v === undefined ? [] : Array.isArray(v) ? v : [v]).map((s) => s.trim()).filter(Boolean),
+  );

@@ -19,6 +19,9 @@ export const inspectionSchema = z.object({
   at: dateTimeField,
   findings: nameField("findings (what you saw and did)", 2000),
   checklist: stringList,
-  returnToService: z.string().optional().transform((v) => v === "on" || v === "true"),
+  returnToService: z
+    .string()
+    .optional()
+    .transform((v) => v === "on" || v === "true"),
 });
 export type InspectionInput = z.infer<typeof inspectionSchema>;

@@ -22,7 +22,11 @@ export const partSchema = z.object({
   label: optionalText(40),
   supplier: optionalText(80),
   cost: optionalNumber(0, 100000),
-  acquiredAt: z.string().trim().optional().transform((v) => (v ? new Date(v) : null)),
+  acquiredAt: z
+    .string()
+    .trim()
+    .optional()
+    .transform((v) => (v ? new Date(v) : null)),
   lifeFlights: optionalNumber(1, 100000, true),
   lifeMinutes: optionalNumber(1, 1000000),
   quantity: optionalNumber(1, 200, true),
@@ -32,7 +36,9 @@ export type PartInput = z.infer<typeof partSchema>;
 
 export const partStatusSchema = z.object({
   partId: idField,
-  status: z.enum(["stock", "damaged", "scrapped"], { message: "Choose stock, damaged or scrapped." }),
+  status: z.enum(["stock", "damaged", "scrapped"], {
+    message: "Choose stock, damaged or scrapped.",
+  }),
 });
 
 /** Take one part off an airframe position and put another on, with a reason. */

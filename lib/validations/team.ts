@@ -9,7 +9,10 @@ import { nameField } from "./common";
 export const newPasswordField = z
   .string()
   .min(12, "Choose a password of at least 12 characters.")
-  .refine((v) => new TextEncoder().encode(v).length <= 72, "Keep the password to 72 bytes (about 72 plain letters).");
+  .refine(
+    (v) => new TextEncoder().encode(v).length <= 72,
+    "Keep the password to 72 bytes (about 72 plain letters).",
+  );
 
 export const memberSchema = z.object({
   email: z.string().trim().toLowerCase().email("Give the member's email."),
@@ -19,7 +22,10 @@ export const memberSchema = z.object({
 });
 
 export const membershipSchema = z.object({ membershipId: z.string().min(1).max(64) });
-export const invitationSchema = z.object({ invitationId: z.string().min(1).max(64), answer: z.enum(["accept", "decline"]).default("accept") });
+export const invitationSchema = z.object({
+  invitationId: z.string().min(1).max(64),
+  answer: z.enum(["accept", "decline"]).default("accept"),
+});
 
 export const roleChangeSchema = z.object({
   membershipId: z.string().min(1),
@@ -41,6 +47,9 @@ export const passwordChangeSchema = z
     next: newPasswordField,
     confirm: z.string(),
   })
-  .refine((v) => v.next === v.confirm, { message: "The two new passwords differ.", path: ["confirm"] });
+  .refine((v) => v.next === v.confirm, {
+    message: "The two new passwords differ.",
+    path: ["confirm"],
+  });
 
 export const switchTeamSchema = z.object({ teamId: z.string().min(1) });

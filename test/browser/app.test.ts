@@ -8,12 +8,24 @@ import { startApp, type AppServer } from "../support/app-server";
 // The built app in Debian's chromium, driven by playwright-core, against the seeded demo team.
 // Screenshots of each main screen land in test/screenshots/ (git-ignored) for a person to look at.
 const SHOTS = "test/screenshots";
-const CHROMIUM_ARGS = ["--headless", "--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update", "--disable-sync", "--no-first-run"];
+const CHROMIUM_ARGS = [
+  "--headless",
+  "--no-sandbox",
+  "--disable-gpu",
+  "--disable-background-networking",
+  "--disable-component-update",
+  "--disable-sync",
+  "--no-first-run",
+];
 
 let app: AppServer;
 let browser: Browser;
 
-async function signedIn(email: string, password: string, width = 1440): Promise<{ context: BrowserContext; page: Page }> {
+async function signedIn(
+  email: string,
+  password: string,
+  width = 1440,
+): Promise<{ context: BrowserContext; page: Page }> {
   const context = await browser.newContext({ viewport: { width, height: 900 } });
   const page = await context.newPage();
   await page.goto(`${app.url}/signin`);
@@ -30,7 +42,10 @@ async function shot(page: Page, name: string): Promise<void> {
 
 async function airframeUrl(page: Page, name: string): Promise<string> {
   await page.goto(`${app.url}/fleet`);
-  const href = await page.locator(`table[data-testid=fleet] a:has-text("${name}")`).first().getAttribute("href");
+  const href = await page
+    .locator(`table[data-testid=fleet] a:has-text("${name}")`)
+    .first()
+    .getAttribute("href");
   return `${app.url}${href ?? ""}`;
 }
 
@@ -77,7 +92,9 @@ describe("the crew at work (owner)", () => {
     expect(text).toMatch(/motor 3 \(rear-right\) vibrates \d+ dB more/);
     expect(text).toMatch(/broadband noise above \d+ Hz is up \d+ dB/);
     expect(text).toMatch(/crash on .* with no inspection since/);
-    expect(await page.locator(".caution").innerText()).toMatch(/decision aid, not an airworthiness certificate/);
+    expect(await page.locator(".caution").innerText()).toMatch(
+      /decision aid, not an airworthiness certificate/,
+    );
     await shot(page, "queue");
     await page.setViewportSize({ width: 1024, height: 768 });
     await shot(page, "queue-tablet");
@@ -85,7 +102,9 @@ describe("the crew at work (owner)", () => {
   });
 
   it("logging a crash on a healthy quad moves it up the queue", async () => {
-    const before = await page.locator("[data-testid=queue] > li").evaluateAll((els) => els.map((e) => e.getAttribute("data-airframe")));
+    const before = await page
+      .locator("[data-testid=queue] > li")
+      .evaluateAll((els) => els.map((e) => e.getAttribute("data-airframe")));
     expect(before.indexOf("HV-01")).toBeGreaterThan(3);
     await page.goto(await airframeUrl(page, "HV-01"));
     await page.click("[data-testid=crash-form] summary");
@@ -95,9 +114,13 @@ describe("the crew at work (owner)", () => {
     await page.click("[data-testid=crash-form] button[type=submit]");
     await page.waitForSelector("[data-testid=crash-form] .form-message.ok");
     await page.goto(`${app.url}/`);
-    const after = await page.locator("[data-testid=queue] > li").evaluateAll((els) => els.map((e) => e.getAttribute("data-airframe")));
+    const after = await page
+      .locator("[data-testid=queue] > li")
+      .evaluateAll((els) => els.map((e) => e.getAttribute("data-airframe")));
     expect(after.indexOf("HV-01")).toBeLessThan(2);
-    expect(await page.locator('[data-airframe="HV-01"]').innerText()).toMatch(/hard crash .* \(arm front-right\) with no inspection since/);
+    expect(await page.locator('[data-airframe="HV-01"]').innerText()).toMatch(
+      /hard crash .* \(arm front-right\) with no inspection since/,
+    );
   });
 
   it("the airframe screen draws spectra, the throttle map, parts and history", async () => {
@@ -120,9 +143,15 @@ describe("the crew at work (owner)", () => {
     expect(await page.locator("[data-testid=motor-orders] path.recharts-curve").count()).toBe(4);
     // The order spectrum per motor: four motors, whole and half orders with the blade pass.
     expect(await page.locator("[data-testid=order-table] tbody tr").count()).toBe(4);
-    expect(await page.locator("[data-testid=order-table] thead").innerText()).toMatch(/1x[\s\S]*2x[\s\S]*blade-pass/);
-    expect(await page.locator("[data-testid=fleet-view]").innerText()).toMatch(/sister airframes|fleet/);
-    expect(await page.locator("body").innerText()).toMatch(/motor 3 \(rear-right\) vibrates \d+ dB more/);
+    expect(await page.locator("[data-testid=order-table] thead").innerText()).toMatch(
+      /1x[\s\S]*2x[\s\S]*blade-pass/,
+    );
+    expect(await page.locator("[data-testid=fleet-view]").innerText()).toMatch(
+      /sister airframes|fleet/,
+    );
+    expect(await page.locator("body").innerText()).toMatch(
+      /motor 3 \(rear-right\) vibrates \d+ dB more/,
+    );
     await shot(page, "log");
     await page.setViewportSize({ width: 390, height: 844 });
     await shot(page, "log-phone");
@@ -146,15 +175,24 @@ describe("the crew at work (owner)", () => {
     const airframe = await airframeUrl(page, "HV-03");
     await page.goto(airframe);
     const logHref = await page.locator("a:has-text('Open the latest log')").getAttribute("href");
-    const screens = { queue: `${app.url}/`, airframe, fleet: `${app.url}/fleet`, log: `${app.url}${logHref ?? ""}` };
+    const screens = {
+      queue: `${app.url}/`,
+      airframe,
+      fleet: `${app.url}/fleet`,
+      log: `${app.url}${logHref ?? ""}`,
+    };
     for (const width of [390, 1024, 1366]) {
       await page.setViewportSize({ width, height: 900 });
       for (const [name, url] of Object.entries(screens)) {
         await page.goto(url);
-        if (name === "airframe") await page.waitForSelector("[data-testid=trend-modes] svg path.recharts-curve");
-        if (name === "log") await page.waitForSelector("[data-testid=spectrum-pitch] svg path.recharts-curve");
+        if (name === "airframe")
+          await page.waitForSelector("[data-testid=trend-modes] svg path.recharts-curve");
+        if (name === "log")
+          await page.waitForSelector("[data-testid=spectrum-pitch] svg path.recharts-curve");
         // Nothing wider than the screen: every screen reflows down to a phone.
-        expect(await page.evaluate(() => document.documentElement.scrollWidth - window.innerWidth)).toBeLessThanOrEqual(1);
+        expect(
+          await page.evaluate(() => document.documentElement.scrollWidth - window.innerWidth),
+        ).toBeLessThanOrEqual(1);
         await shot(page, `${name}-${width}`);
       }
     }
@@ -169,7 +207,9 @@ describe("the crew at work (owner)", () => {
     // The reasons get (nearly) the row's whole width, not a squeezed column.
     const [rowBox, reasonsBox] = [await row.boundingBox(), await reasons.boundingBox()];
     expect((reasonsBox?.width ?? 0) / (rowBox?.width ?? 1)).toBeGreaterThan(0.8);
-    const overflow = await page.evaluate(() => document.documentElement.scrollWidth - window.innerWidth);
+    const overflow = await page.evaluate(
+      () => document.documentElement.scrollWidth - window.innerWidth,
+    );
     expect(overflow).toBeLessThanOrEqual(1);
     await shot(page, "queue-phone");
     await page.goto(await airframeUrl(page, "HV-03"));
@@ -182,15 +222,31 @@ describe("the crew at work (owner)", () => {
     mkdirSync(dir, { recursive: true });
     const good = join(dir, "hv-04-practice-good.csv");
     const loose = join(dir, "hv-04-practice-loose.csv");
-    writeFileSync(good, demoCsv({ seed: 901, durationS: 24, airframeSeed: 3 }, { airframe: "HV-04", flownAt: new Date(Date.now() - 20 * 60_000).toISOString() }));
-    writeFileSync(loose, demoCsv({ seed: 902, durationS: 24, airframeSeed: 3, scenario: "loose-stack", severity: 3 }, { airframe: "HV-04", flownAt: new Date(Date.now() - 10 * 60_000).toISOString() }));
+    writeFileSync(
+      good,
+      demoCsv(
+        { seed: 901, durationS: 24, airframeSeed: 3 },
+        { airframe: "HV-04", flownAt: new Date(Date.now() - 20 * 60_000).toISOString() },
+      ),
+    );
+    writeFileSync(
+      loose,
+      demoCsv(
+        { seed: 902, durationS: 24, airframeSeed: 3, scenario: "loose-stack", severity: 3 },
+        { airframe: "HV-04", flownAt: new Date(Date.now() - 10 * 60_000).toISOString() },
+      ),
+    );
     await page.goto(`${app.url}/upload`);
     await page.setInputFiles("[data-testid=file-input]", [good, loose]);
     await expect.poll(() => page.locator("[data-testid=upload-list] tbody tr").count()).toBe(2);
-    expect(await page.locator("[data-testid=upload-list]").innerText()).toMatch(/matched by metadata/);
+    expect(await page.locator("[data-testid=upload-list]").innerText()).toMatch(
+      /matched by metadata/,
+    );
     await page.click("[data-testid=import-all]");
     await expect
-      .poll(async () => page.locator('[data-testid=upload-list] tr[data-phase="done"]').count(), { timeout: 60_000 })
+      .poll(async () => page.locator('[data-testid=upload-list] tr[data-phase="done"]').count(), {
+        timeout: 60_000,
+      })
       .toBe(2);
     const results = await page.locator("[data-testid=upload-result]").allInnerTexts();
     expect(results.join(" ")).toMatch(/score \d+/);
@@ -199,26 +255,48 @@ describe("the crew at work (owner)", () => {
 
   it("a log with foreign headers gets a proposed column map, saved as an import profile", async () => {
     // Same flight, written the way another logger might: ms, rad/s, throttle in percent.
-    const lines = demoCsv({ seed: 904, durationS: 12, sampleRateHz: 2000, airframeSeed: 7 }, { airframe: "HV-08" }).trim().split("\n");
-    const rows = lines.filter((l) => !l.startsWith("#")).slice(1).map((l) => {
-      const [t, r, p, y, thr] = l.split(",").map(Number);
-      const rad = (v: number | undefined) => (((v ?? 0) * Math.PI) / 180).toFixed(6);
-      return `${((t ?? 0) / 1000).toFixed(3)},${rad(r)},${rad(p)},${rad(y)},${((thr ?? 0) * 100).toFixed(2)}`;
-    });
+    const lines = demoCsv(
+      { seed: 904, durationS: 12, sampleRateHz: 2000, airframeSeed: 7 },
+      { airframe: "HV-08" },
+    )
+      .trim()
+      .split("\n");
+    const rows = lines
+      .filter((l) => !l.startsWith("#"))
+      .slice(1)
+      .map((l) => {
+        const [t, r, p, y, thr] = l.split(",").map(Number);
+        const rad = (v: number | undefined) => (((v ?? 0) * Math.PI) / 180).toFixed(6);
+        return `${((t ?? 0) / 1000).toFixed(3)},${rad(r)},${rad(p)},${rad(y)},${((thr ?? 0) * 100).toFixed(2)}`;
+      });
     const file = join(app.dataDir, "HV-08 other logger.csv");
-    writeFileSync(file, ["Time (ms),Gyro X (rad/s),Gyro Y (rad/s),Gyro Z (rad/s),Thr %", ...rows].join("\n"));
+    writeFileSync(
+      file,
+      ["Time (ms),Gyro X (rad/s),Gyro Y (rad/s),Gyro Z (rad/s),Thr %", ...rows].join("\n"),
+    );
     await page.goto(`${app.url}/upload`);
     await page.setInputFiles("[data-testid=file-input]", [file]);
     await page.waitForSelector("[data-testid=map-step]");
-    const map = await page.locator('[data-testid=map-step] label:has-text("Map text") input').first().inputValue();
+    const map = await page
+      .locator('[data-testid=map-step] label:has-text("Map text") input')
+      .first()
+      .inputValue();
     expect(map).toContain("time=Time (ms)|ms");
     expect(map).toContain("roll=Gyro X (rad/s)|rad/s");
-    expect(await page.locator("[data-testid=upload-list]").innerText()).toMatch(/matched by file name/);
+    expect(await page.locator("[data-testid=upload-list]").innerText()).toMatch(
+      /matched by file name/,
+    );
     await page.fill('[data-testid=map-step] input[placeholder="logger model"]', "other logger");
     await page.click('[data-testid=map-step] button:has-text("Save profile")');
-    await expect.poll(() => page.locator("[data-testid=profile-note]").innerText()).toMatch(/Import profile "other logger" saved/);
+    await expect
+      .poll(() => page.locator("[data-testid=profile-note]").innerText())
+      .toMatch(/Import profile "other logger" saved/);
     await page.click("[data-testid=import-all]");
-    await expect.poll(async () => page.locator('[data-testid=upload-list] tr[data-phase="done"]').count(), { timeout: 60_000 }).toBe(1);
+    await expect
+      .poll(async () => page.locator('[data-testid=upload-list] tr[data-phase="done"]').count(), {
+        timeout: 60_000,
+      })
+      .toBe(1);
     await page.goto(`${app.url}/team`);
     expect(await page.locator("main").innerText()).toMatch(/other logger/);
   });
@@ -226,60 +304,112 @@ describe("the crew at work (owner)", () => {
   it("a foreign log's column map is finished in the table, with no syntax typed", async () => {
     // Headers of an invented logger: time with a unit but no time word, rad/s rates, one of them
     // named so that no guess can tell its axis, throttle as a pulse width, motor speed in Hz.
-    const lines = demoCsv({ seed: 905, durationS: 12, sampleRateHz: 2000, airframeSeed: 7 }, { airframe: "HV-08" }).trim().split("\n");
-    const rows = lines.filter((l) => !l.startsWith("#")).slice(1).map((l) => {
-      const [t, r, p, y, thr, ...rpm] = l.split(",").map(Number);
-      const rad = (v: number | undefined) => (((v ?? 0) * Math.PI) / 180).toFixed(6);
-      return [t ?? 0, rad(r), rad(p), rad(y), (1000 + (thr ?? 0) * 1000).toFixed(0), ...rpm.map((v) => (v / 60).toFixed(2))].join(",");
-    });
+    const lines = demoCsv(
+      { seed: 905, durationS: 12, sampleRateHz: 2000, airframeSeed: 7 },
+      { airframe: "HV-08" },
+    )
+      .trim()
+      .split("\n");
+    const rows = lines
+      .filter((l) => !l.startsWith("#"))
+      .slice(1)
+      .map((l) => {
+        const [t, r, p, y, thr, ...rpm] = l.split(",").map(Number);
+        const rad = (v: number | undefined) => (((v ?? 0) * Math.PI) / 180).toFixed(6);
+        return [
+          t ?? 0,
+          rad(r),
+          rad(p),
+          rad(y),
+          (1000 + (thr ?? 0) * 1000).toFixed(0),
+          ...rpm.map((v) => (v / 60).toFixed(2)),
+        ].join(",");
+      });
     const file = join(app.dataDir, "HV-08 bench logger.csv");
-    writeFileSync(file, ["clock us,rate X rad,rate Y rad,turn rate rad,thr pwm,esc1 Hz,esc2 Hz,esc3 Hz,esc4 Hz", ...rows].join("\n"));
+    writeFileSync(
+      file,
+      [
+        "clock us,rate X rad,rate Y rad,turn rate rad,thr pwm,esc1 Hz,esc2 Hz,esc3 Hz,esc4 Hz",
+        ...rows,
+      ].join("\n"),
+    );
     await page.goto(`${app.url}/upload`);
     await page.setInputFiles("[data-testid=file-input]", [file]);
     await page.waitForSelector("[data-testid=map-table]");
-    expect(await page.locator("[data-testid=map-check]").innerText()).toMatch(/Still to do: the map needs a column for yaw/);
+    expect(await page.locator("[data-testid=map-check]").innerText()).toMatch(
+      /Still to do: the map needs a column for yaw/,
+    );
     expect(await page.locator("[data-testid=import-all]").isDisabled()).toBe(true);
     // The guesses are already in the table: time from its unit and rising values, rpm from esc + Hz.
-    expect(await page.locator('select[aria-label="column for time"]').inputValue()).toBe("clock us");
-    expect(await page.locator('select[aria-label="column for motor 3 speed"]').inputValue()).toBe("esc3 Hz");
+    expect(await page.locator('select[aria-label="column for time"]').inputValue()).toBe(
+      "clock us",
+    );
+    expect(await page.locator('select[aria-label="column for motor 3 speed"]').inputValue()).toBe(
+      "esc3 Hz",
+    );
     await page.selectOption('select[aria-label="column for gyro yaw"]', "turn rate rad");
     await page.selectOption('select[aria-label="unit of gyro yaw"]', "rad/s");
-    await expect.poll(() => page.locator("[data-testid=map-check]").innerText()).toMatch(/Every needed field has a column/);
+    await expect
+      .poll(() => page.locator("[data-testid=map-check]").innerText())
+      .toMatch(/Every needed field has a column/);
     // The preview shows the first rows as heatcheck reads them: time from 0 s, rpm from Hz.
-    expect(await page.locator("[data-testid=map-table]").innerText()).toMatch(/0, 0\.0005, 0\.001 s from the first row/);
+    expect(await page.locator("[data-testid=map-table]").innerText()).toMatch(
+      /0, 0\.0005, 0\.001 s from the first row/,
+    );
     await shot(page, "upload-map-table");
     await page.setViewportSize({ width: 390, height: 844 });
     await shot(page, "upload-map-table-phone");
     await page.setViewportSize({ width: 1440, height: 900 });
     await page.click("[data-testid=import-all]");
-    await expect.poll(async () => page.locator('[data-testid=upload-list] tr[data-phase="done"]').count(), { timeout: 60_000 }).toBe(1);
+    await expect
+      .poll(async () => page.locator('[data-testid=upload-list] tr[data-phase="done"]').count(), {
+        timeout: 60_000,
+      })
+      .toBe(1);
   });
 
   it("setting a baseline from the uploaded good log scores the later one against it", async () => {
     await page.goto(await airframeUrl(page, "HV-04"));
     await page.click("[data-testid=baseline-form] summary");
     await page.check('[data-testid=baseline-form] label:has-text("hv-04-practice-good.csv") input');
-    await page.fill("[data-testid=baseline-form] input[name=reason]", "clean practice pack after re-torquing");
+    await page.fill(
+      "[data-testid=baseline-form] input[name=reason]",
+      "clean practice pack after re-torquing",
+    );
     await page.click("[data-testid=baseline-form] button[type=submit]");
-    await expect.poll(() => page.locator("[data-testid=baseline-form] .form-message.ok").innerText()).toMatch(/1 later log\(s\) scored again/);
+    await expect
+      .poll(() => page.locator("[data-testid=baseline-form] .form-message.ok").innerText())
+      .toMatch(/1 later log\(s\) scored again/);
     await page.reload();
-    expect(await page.locator("[data-testid=timeline]").innerText()).toMatch(/baseline set by Mara Quill: clean practice pack/);
+    expect(await page.locator("[data-testid=timeline]").innerText()).toMatch(
+      /baseline set by Mara Quill: clean practice pack/,
+    );
     expect(await page.locator("body").innerText()).toMatch(/new (pitch|roll) peak at 1\d\d Hz/);
   });
 
   it("swapping a part records it on the airframe", async () => {
     await page.goto(await airframeUrl(page, "HV-02"));
     await page.click("[data-testid=swap-form] summary");
-    await page.selectOption("[data-testid=swap-form] select[name=position]", "motor 3 (rear-right)");
-    const spare = await page.locator('[data-testid=swap-form] select[name=newPartId] option:has-text("spare-motor")').first().getAttribute("value");
+    await page.selectOption(
+      "[data-testid=swap-form] select[name=position]",
+      "motor 3 (rear-right)",
+    );
+    const spare = await page
+      .locator('[data-testid=swap-form] select[name=newPartId] option:has-text("spare-motor")')
+      .first()
+      .getAttribute("value");
     await page.selectOption("[data-testid=swap-form] select[name=newPartId]", spare ?? "");
     await page.fill("[data-testid=swap-form] input[name=reason]", "bearing felt rough by hand");
     await page.click("[data-testid=swap-form] button[type=submit]");
     await page.waitForSelector("[data-testid=swap-form] .form-message.ok");
     await page.reload();
-    const row = page.locator("[data-testid=installed-parts] tr", { hasText: "motor 3 (rear-right)" });
+    const row = page.locator("[data-testid=installed-parts] tr", {
+      hasText: "motor 3 (rear-right)",
+    });
     expect(await row.innerText()).toMatch(/spare-motor/);
-    expect(await page.locator("[data-testid=timeline]").innerText()).toMatch(/bearing felt rough by hand/);
+    expect(await page.locator("[data-testid=timeline]").innerText()).toMatch(
+      /bearing felt rough by hand/,
+    );
   });
 
   it("fleet, parts, events and team screens are filled", async () => {
@@ -295,7 +425,9 @@ describe("the crew at work (owner)", () => {
     }
     await page.goto(`${app.url}/fleet`);
     // Charts draw after hydration.
-    await expect.poll(() => page.locator("[data-testid=sparkline]").count(), { timeout: 15_000 }).toBeGreaterThan(4);
+    await expect
+      .poll(() => page.locator("[data-testid=sparkline]").count(), { timeout: 15_000 })
+      .toBeGreaterThan(4);
   });
 
   it("an API token uploads a log and reads the queue and an airframe", async () => {
@@ -304,18 +436,39 @@ describe("the crew at work (owner)", () => {
     await page.click("[data-testid=token-form] button[type=submit]");
     const token = (await page.locator("[data-testid=new-token]").innerText()).trim();
     const auth = { authorization: `Bearer ${token}` };
-    const queue = (await (await fetch(`${app.url}/api/v1/queue`, { headers: auth })).json()) as { airframe: string; status: string; reasons: string[] }[];
+    const queue = (await (await fetch(`${app.url}/api/v1/queue`, { headers: auth })).json()) as {
+      airframe: string;
+      status: string;
+      reasons: string[];
+    }[];
     expect(queue[0]).toMatchObject({ airframe: expect.any(String), status: "ground" });
     const form = new FormData();
     form.append("airframe", "HV-08");
-    form.append("file", new Blob([demoCsv({ seed: 903, durationS: 12, sampleRateHz: 2000, airframeSeed: 7 }, { airframe: "HV-08" })]), "scripted.csv");
+    form.append(
+      "file",
+      new Blob([
+        demoCsv(
+          { seed: 903, durationS: 12, sampleRateHz: 2000, airframeSeed: 7 },
+          { airframe: "HV-08" },
+        ),
+      ]),
+      "scripted.csv",
+    );
     const up = await fetch(`${app.url}/api/v1/logs`, { method: "POST", headers: auth, body: form });
     expect(up.status).toBe(200);
-    const rec = (await (await fetch(`${app.url}/api/v1/airframes/HV-08`, { headers: auth })).json()) as { name: string; parts: unknown[]; logs: { fileName: string }[] };
+    const rec = (await (
+      await fetch(`${app.url}/api/v1/airframes/HV-08`, { headers: auth })
+    ).json()) as { name: string; parts: unknown[]; logs: { fileName: string }[] };
     expect(rec.name).toBe("HV-08");
     expect(rec.parts).toHaveLength(16);
     expect(rec.logs.map((l) => l.fileName)).toContain("scripted.csv");
-    expect((await fetch(`${app.url}/api/v1/queue`, { headers: { authorization: "Bearer hc_not-a-token" } })).status).toBe(401);
+    expect(
+      (
+        await fetch(`${app.url}/api/v1/queue`, {
+          headers: { authorization: "Bearer hc_not-a-token" },
+        })
+      ).status,
+    ).toBe(401);
   });
 });
 
@@ -323,7 +476,9 @@ describe("a viewer", () => {
   it("sees everything and can change nothing", async () => {
     const { context, page } = await signedIn("viewer@heatcheck.test", "pitwall-viewer-2026", 1024);
     await page.goto(await airframeUrl(page, "HV-05"));
-    expect(await page.locator("body").innerText()).toMatch(/can view this airframe but not change it/);
+    expect(await page.locator("body").innerText()).toMatch(
+      /can view this airframe but not change it/,
+    );
     expect(await page.locator("details.action").count()).toBe(0);
     expect(await page.locator('button:has-text("Re-run analysis")').count()).toBe(0);
     await shot(page, "airframe-viewer-tablet");
@@ -333,7 +488,11 @@ describe("a viewer", () => {
     const cookies = (await context.cookies()).map((c) => `${c.name}=${c.value}`).join("; ");
     const form = new FormData();
     form.append("file", new Blob(["time_us,gyro_roll,gyro_pitch,gyro_yaw\n"]), "v.csv");
-    const r = await fetch(`${app.url}/api/v1/logs`, { method: "POST", headers: { cookie: cookies }, body: form });
+    const r = await fetch(`${app.url}/api/v1/logs`, {
+      method: "POST",
+      headers: { cookie: cookies },
+      body: form,
+    });
     expect(r.status).toBe(403);
     await page.goto(`${app.url}/team`);
     expect(await page.locator("main").innerText()).toMatch(/managed by the team's owners/);
@@ -343,7 +502,9 @@ describe("a viewer", () => {
     await page.fill("[data-testid=account] input[name=next]", "pitwall-viewer-2027");
     await page.fill("[data-testid=account] input[name=confirm]", "pitwall-viewer-2027");
     await page.click('[data-testid=account] button:has-text("Change password")');
-    await expect.poll(() => page.locator("[data-testid=account] .form-message").innerText()).toMatch(/Password changed/);
+    await expect
+      .poll(() => page.locator("[data-testid=account] .form-message").innerText())
+      .toMatch(/Password changed/);
     await context.close();
   });
 });

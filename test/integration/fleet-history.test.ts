@@ -23,24 +23,42 @@ const actors = {} as Record<Role, Actor>;
 const ids: Record<string, string> = {};
 let seed = 100;
 
-async function upload(name: string, options: Partial<DemoLogOptions>, airframeSeed: number): Promise<string> {
-  const csv = demoCsv({ seed: seed++, durationS: 24, sampleRateHz: 2000, airframeSeed, ...options }, { airframe: name, flownAt: new Date(Date.UTC(2026, 10, 1, 10, seed)).toISOString() });
-  const r = await ingestLog(actors.pilot, { fileName: `${name}-${seed}.csv`, body: Readable.from([Buffer.from(csv)]) });
+async function upload(
+  name: string,
+  options: Partial<DemoLogOptions>,
+  airframeSeed: number,
+): Promise<string> {
+  const csv = demoCsv(
+    { seed: seed++, durationS: 24, sampleRateHz: 2000, airframeSeed, ...options },
+    { airframe: name, flownAt: new Date(Date.UTC(2026, 10, 1, 10, seed)).toISOString() },
+  );
+  const r = await ingestLog(actors.pilot, {
+    fileName: `${name}-${seed}.csv`,
+    body: Readable.from([Buffer.from(csv)]),
+  });
   return r.logId;
 }
 
 beforeAll(async () => {
   Object.assign(actors, await makeTeam("Fleet test club"));
   const names = ["F-1", "F-2", "F-3", "F-4", "F-5", "F-6"];
-  for (const name of names) ids[name] = (await createAirframe(actors.tech, { name, frameDesign: "test frame", serial: "", notes: "" })).id;
+  for (const name of names)
+    ids[name] = (
+      await createAirframe(actors.tech, { name, frameDesign: "test frame", serial: "", notes: "" })
+    ).id;
   // F-1..F-4 healthy baselines; F-5's baseline flown with a cracked arm (severity 3); F-6 has none.
   const baselineLogs: Record<string, string> = {};
   for (const [i, name] of names.slice(0, 5).entries()) {
-    baselineLogs[name] = await upload(name, name === "F-5" ? { scenario: "cracked-arm", severity: 3 } : {}, i);
+    baselineLogs[name] = await upload(
+      name,
+      name === "F-5" ? { scenario: "cracked-arm", severity: 3 } : {},
+      i,
+    );
   }
   await upload("F-6", {}, 5);
   await analysesSettled();
-  for (const name of names.slice(0, 5)) await setBaseline(actors.tech, ids[name] ?? "", [baselineLogs[name] ?? ""], "known-good");
+  for (const name of names.slice(0, 5))
+    await setBaseline(actors.tech, ids[name] ?? "", [baselineLogs[name] ?? ""], "known-good");
 }, 120_000);
 
 describe("the fleet as its own reference", () => {
@@ -52,7 +70,9 @@ describe("the fleet as its own reference", () => {
     // The generator lowers the pitch bending mode by the crack; the reference is the other four.
     expect(note?.axis).toBe("pitch");
     expect(note?.deviationPct ?? 0).toBeLessThan(-3);
-    expect(note?.text).toMatch(/^F-5's baseline pitch mode at \d+ Hz sits [\d.]+ % below the median of 4 sister airframes of test frame \(\d+ Hz\)/);
+    expect(note?.text).toMatch(
+      /^F-5's baseline pitch mode at \d+ Hz sits [\d.]+ % below the median of 4 sister airframes of test frame \(\d+ Hz\)/,
+    );
     expect(flagged[0]?.reference.airframes).toBe(4);
   });
 
@@ -61,7 +81,8 @@ describe("the fleet as its own reference", () => {
     const f6 = placements.find((p) => p.name === "F-6");
     expect(f6?.judged).toBe("log");
     expect(f6?.reference.airframes).toBe(5);
-    for (const n of f6?.notes ?? []) expect(n.text).toContain("judged against the fleet, no baseline of its own");
+    for (const n of f6?.notes ?? [])
+      expect(n.text).toContain("judged against the fleet, no baseline of its own");
   });
 
   it("draws a strip per shared mode with every baseline airframe on it", async () => {
@@ -75,7 +96,15 @@ describe("the fleet as its own reference", () => {
   });
 
   it("a grounded airframe does not count towards the reference", async () => {
-    await logCrash(actors.pilot, { airframeId: ids["F-1"] ?? "", at: new Date(), heatId: null, severity: "hard", positions: [], note: "", ground: true });
+    await logCrash(actors.pilot, {
+      airframeId: ids["F-1"] ?? "",
+      at: new Date(),
+      heatId: null,
+      severity: "hard",
+      positions: [],
+      note: "",
+      ground: true,
+    });
     const [design] = await fleetDesignView(actors.viewer);
     expect(design?.airframes).toBe(4);
   });
@@ -94,9 +123,22 @@ describe("the reference's size (1, 2, 3 and 8 airframes of one design)", () => {
     const ids8: string[] = [];
     for (let i = 0; i < 8; i++) {
       const name = `S-${i + 1}`;
-      const id = (await createAirframe(actors.tech, { name, frameDesign: "size frame", serial: "", notes: "" })).id;
-      const csv = demoCsv({ seed: 700 + i, durationS: 24, sampleRateHz: 2000, airframeSeed: 20 + i }, { airframe: name, flownAt: new Date(Date.UTC(2026, 10, 3, 10, i)).toISOString() });
-      const r = await ingestLog(actors.pilot, { fileName: `${name}.csv`, body: Readable.from([Buffer.from(csv)]) });
+      const id = (
+        await createAirframe(actors.tech, {
+          name,
+          frameDesign: "size frame",
+          serial: "",
+          notes: "",
+        })
+      ).id;
+      const csv = demoCsv(
+        { seed: 700 + i, durationS: 24, sampleRateHz: 2000, airframeSeed: 20 + i },
+        { airframe: name, flownAt: new Date(Date.UTC(2026, 10, 3, 10, i)).toISOString() },
+      );
+      const r = await ingestLog(actors.pilot, {
+        fileName: `${name}.csv`,
+        body: Readable.from([Buffer.from(csv)]),
+      });
       await analysesSettled();
       await setBaseline(actors.tech, id, [r.logId], "known-good");
       ids8.push(id);
@@ -107,8 +149,14 @@ describe("the reference's size (1, 2, 3 and 8 airframes of one design)", () => {
     }
     const { designs } = await fleetPlacement(actors.viewer);
     const ref = designs.find((d) => d.design === "size frame");
-    const baselines = await db.baseline.findMany({ where: { airframeId: { in: ids8 }, active: true } });
-    const yaw = baselines.map((b) => (JSON.parse(b.json) as { modes: { axis: string; freqHz: number }[] }).modes.filter((m) => m.axis === "yaw").map((m) => m.freqHz));
+    const baselines = await db.baseline.findMany({
+      where: { airframeId: { in: ids8 }, active: true },
+    });
+    const yaw = baselines.map((b) =>
+      (JSON.parse(b.json) as { modes: { axis: string; freqHz: number }[] }).modes
+        .filter((m) => m.axis === "yaw")
+        .map((m) => m.freqHz),
+    );
     // The demo frame has one yaw mode (lib/demo/airframe-model.ts); each airframe's baseline shows it once.
     expect(yaw.every((v) => v.length === 1)).toBe(true);
     const f = yaw.map((v) => v[0] ?? NaN);
@@ -123,14 +171,24 @@ describe("the reference's size (1, 2, 3 and 8 airframes of one design)", () => {
 
 describe("history export", () => {
   it("has every record and writes RFC 4180 CSV (quotes doubled, fields with commas quoted)", async () => {
-    await logCrash(actors.pilot, { airframeId: ids["F-2"] ?? "", at: new Date("2026-11-20T12:00:00Z"), heatId: null, severity: "minor", positions: ["props"], note: 'clipped the "blue" gate, props chipped', ground: false });
+    await logCrash(actors.pilot, {
+      airframeId: ids["F-2"] ?? "",
+      at: new Date("2026-11-20T12:00:00Z"),
+      heatId: null,
+      severity: "minor",
+      positions: ["props"],
+      note: 'clipped the "blue" gate, props chipped',
+      ground: false,
+    });
     const h = await airframeHistory(actors.viewer, "F-2");
     expect(h.logs).toHaveLength(1);
     expect(h.baselines).toHaveLength(1);
     expect(h.crashes).toHaveLength(1);
     const csv = historyCsv(h);
     expect(csv.split("\r\n")[0]).toBe("at,kind,position,part,score,verdict,detail");
-    expect(csv).toContain('2026-11-20T12:00:00.000Z,crash,props,,,minor,"clipped the ""blue"" gate, props chipped"\r\n');
+    expect(csv).toContain(
+      '2026-11-20T12:00:00.000Z,crash,props,,,minor,"clipped the ""blue"" gate, props chipped"\r\n',
+    );
   });
 
   it("finds no airframe of another team", async () => {

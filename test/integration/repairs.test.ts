@@ -27,8 +27,14 @@ let seed = 300;
 const day = (d: number, h = 10) => new Date(Date.UTC(2026, 10, d, h));
 
 async function upload(options: Partial<DemoLogOptions>, flownAt: Date): Promise<string> {
-  const csv = demoCsv({ seed: seed++, durationS: 24, sampleRateHz: 2000, ...options }, { airframe: "R-1", flownAt: flownAt.toISOString() });
-  const r = await ingestLog(actors.pilot, { fileName: `r1-${seed}.csv`, body: Readable.from([Buffer.from(csv)]) });
+  const csv = demoCsv(
+    { seed: seed++, durationS: 24, sampleRateHz: 2000, ...options },
+    { airframe: "R-1", flownAt: flownAt.toISOString() },
+  );
+  const r = await ingestLog(actors.pilot, {
+    fileName: `r1-${seed}.csv`,
+    body: Readable.from([Buffer.from(csv)]),
+  });
   await analysesSettled();
   return r.logId;
 }
@@ -36,7 +42,16 @@ async function upload(options: Partial<DemoLogOptions>, flownAt: Date): Promise<
 async function assessmentOf(logId: string) {
   const a = await db.assessment.findFirst({ where: { logId, baseline: { active: true } } });
   if (!a) throw new Error("no assessment");
-  return { ...a, findings: JSON.parse(a.findings) as { kind: string; points: number; repair?: string; text: string; motor?: number }[] };
+  return {
+    ...a,
+    findings: JSON.parse(a.findings) as {
+      kind: string;
+      points: number;
+      repair?: string;
+      text: string;
+      motor?: number;
+    }[],
+  };
 }
 
 async function queueRow() {
@@ -48,13 +63,45 @@ async function queueRow() {
 
 beforeAll(async () => {
   Object.assign(actors, await makeTeam("Repair test club"));
-  airframeId = (await createAirframe(actors.tech, { name: "R-1", frameDesign: "test frame", serial: "", notes: "" })).id;
-  const [arm, spare] = await createParts(actors.tech, { kind: "arm", model: "test arm", label: "arm", supplier: "", cost: null, acquiredAt: null, lifeFlights: null, lifeMinutes: null, quantity: 2, notes: "" });
+  airframeId = (
+    await createAirframe(actors.tech, {
+      name: "R-1",
+      frameDesign: "test frame",
+      serial: "",
+      notes: "",
+    })
+  ).id;
+  const [arm, spare] = await createParts(actors.tech, {
+    kind: "arm",
+    model: "test arm",
+    label: "arm",
+    supplier: "",
+    cost: null,
+    acquiredAt: null,
+    lifeFlights: null,
+    lifeMinutes: null,
+    quantity: 2,
+    notes: "",
+  });
   if (!arm || !spare) throw new Error("parts not created");
-  await swapPart(actors.tech, { airframeId, position: "arm rear-left", newPartId: arm.id, reason: "initial build", removedStatus: "stock", at: day(1) });
+  await swapPart(actors.tech, {
+    airframeId,
+    position: "arm rear-left",
+    newPartId: arm.id,
+    reason: "initial build",
+    removedStatus: "stock",
+    at: day(1),
+  });
   const good = await upload({}, day(2));
   await setBaseline(actors.tech, airframeId, [good], "known-good");
-  await swapPart(actors.tech, { airframeId, position: "arm rear-left", newPartId: spare.id, reason: "arm cracked in a crash", removedStatus: "damaged", at: day(5) });
+  await swapPart(actors.tech, {
+    airframeId,
+    position: "arm rear-left",
+    newPartId: spare.id,
+    reason: "arm cracked in a crash",
+    removedStatus: "damaged",
+    at: day(5),
+  });
 }, 120_000);
 
 describe("a baseline across a repair", () => {
@@ -62,7 +109,9 @@ describe("a baseline across a repair", () => {
 
   it("after the swap the queue says the baseline is stale and what to do", async () => {
     const row = await queueRow();
-    expect(row.reasons).toContain("arm rear-left replaced on 5 Nov: fly one log, then confirm a new baseline");
+    expect(row.reasons).toContain(
+      "arm rear-left replaced on 5 Nov: fly one log, then confirm a new baseline",
+    );
     expect(row.status).not.toBe("ok");
   });
 
@@ -71,11 +120,21 @@ describe("a baseline across a repair", () => {
     const a = await assessmentOf(postRepair);
     const explained = a.findings.filter((f) => f.repair);
     expect(explained.map((f) => f.kind)).toContain("mode-shift");
-    expect(explained.every((f) => f.points === 0 && f.text.startsWith("changed after repair (arm rear-left replaced on 5 Nov)"))).toBe(true);
+    expect(
+      explained.every(
+        (f) =>
+          f.points === 0 &&
+          f.text.startsWith("changed after repair (arm rear-left replaced on 5 Nov)"),
+      ),
+    ).toBe(true);
     expect(a.score).toBeGreaterThanOrEqual(80);
     // Stale baseline: watch at best.
     expect(a.status).toBe("watch");
-    expect((await queueRow()).reasons.some((r) => r.includes("1 log flown since — check them, then confirm a new baseline"))).toBe(true);
+    expect(
+      (await queueRow()).reasons.some((r) =>
+        r.includes("1 log flown since — check them, then confirm a new baseline"),
+      ),
+    ).toBe(true);
   });
 
   let prop = "";
@@ -88,8 +147,16 @@ describe("a baseline across a repair", () => {
   });
 
   it("confirming a post-repair log as the new baseline ends the stale state and keeps the old baseline", async () => {
-    await setBaseline(actors.tech, airframeId, [postRepair], "post-repair check after the arm swap");
-    const baselines = await db.baseline.findMany({ where: { airframeId }, orderBy: { createdAt: "asc" } });
+    await setBaseline(
+      actors.tech,
+      airframeId,
+      [postRepair],
+      "post-repair check after the arm swap",
+    );
+    const baselines = await db.baseline.findMany({
+      where: { airframeId },
+      orderBy: { createdAt: "asc" },
+    });
     expect(baselines.map((b) => b.active)).toEqual([false, true]);
     const row = await queueRow();
     expect(row.reasons.some((r) => r.includes("confirm a new baseline"))).toBe(false);

@@ -10,7 +10,9 @@ const { dir, url } = freshDatabase("seed");
 
 function filesUnder(path: string): string[] {
   try {
-    return readdirSync(path, { recursive: true, withFileTypes: true }).filter((e) => e.isFile()).map((e) => e.name);
+    return readdirSync(path, { recursive: true, withFileTypes: true })
+      .filter((e) => e.isFile())
+      .map((e) => e.name);
   } catch {
     return [];
   }
@@ -19,7 +21,13 @@ function filesUnder(path: string): string[] {
 describe("the demo seed", () => {
   it("is all-or-nothing: a failure leaves no team, no user and no stored file", async () => {
     const r = spawnSync("npx", ["tsx", "--conditions=react-server", "prisma/seed.ts"], {
-      env: { ...process.env, DATABASE_URL: url, HEATCHECK_DATA_DIR: dir, HEATCHECK_MAX_UPLOAD_MB: "1", HEATCHECK_WORKERS: "0" },
+      env: {
+        ...process.env,
+        DATABASE_URL: url,
+        HEATCHECK_DATA_DIR: dir,
+        HEATCHECK_MAX_UPLOAD_MB: "1",
+        HEATCHECK_WORKERS: "0",
+      },
       encoding: "utf8",
     });
     expect(r.status).toBe(1);

@@ -9,7 +9,16 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { readTar } from "@/lib/archive/tar";
 import { demoCsv } from "@/lib/demo/demo-csv";
 import { openSqlite } from "../support/sqlite";
-import { addToken, seededDataDir, getJson, newDataDir, settled, startThroughScript, upload, type RunningApp } from "./harness";
+import {
+  addToken,
+  seededDataDir,
+  getJson,
+  newDataDir,
+  settled,
+  startThroughScript,
+  upload,
+  type RunningApp,
+} from "./harness";
 
 // Data safety: a backup taken while the server runs restores into an empty folder and serves the
 // same demo team (same records, same queue, originals whose SHA-256 still matches the recorded
@@ -26,7 +35,21 @@ function tableCounts(dbFile: string): Record<string, number> {
   const db = openSqlite(dbFile, true);
   try {
     const out: Record<string, number> = {};
-    for (const t of ["Team", "User", "Membership", "Airframe", "Part", "Installation", "Crash", "Inspection", "FlightLog", "Analysis", "Baseline", "Assessment", "AuditEntry"]) {
+    for (const t of [
+      "Team",
+      "User",
+      "Membership",
+      "Airframe",
+      "Part",
+      "Installation",
+      "Crash",
+      "Inspection",
+      "FlightLog",
+      "Analysis",
+      "Baseline",
+      "Assessment",
+      "AuditEntry",
+    ]) {
       out[t] = Number(db.prepare(`SELECT count(*) AS n FROM "${t}"`).get()?.n ?? -1);
     }
     return out;
@@ -53,10 +76,20 @@ afterAll(async () => {
 describe("backup and restore", () => {
   it("a backup taken during an upload restores into an empty folder with the same records, queue and originals", async () => {
     const archive = join(work, "backup.tar.gz");
-    const bytes = Buffer.from(demoCsv({ seed: 77, durationS: 20, sampleRateHz: 2000 }, { airframe: "HV-04", flownAt: "2026-11-30T12:00:00Z" }));
+    const bytes = Buffer.from(
+      demoCsv(
+        { seed: 77, durationS: 20, sampleRateHz: 2000 },
+        { airframe: "HV-04", flownAt: "2026-11-30T12:00:00Z" },
+      ),
+    );
     // The backup runs while the server takes an upload and analyses it.
     const [up, backup] = await Promise.all([
-      upload(app.url, bytes, { token, fileName: "hv-04-during-backup.csv", chunkBytes: 64 * 1024, pauseMs: 5 }),
+      upload(app.url, bytes, {
+        token,
+        fileName: "hv-04-during-backup.csv",
+        chunkBytes: 64 * 1024,
+        pauseMs: 5,
+      }),
       run("npm", ["run", "-s", "backup", "--", archive], { env: app.env }),
     ]);
     expect(up.status).toBe(200);
@@ -71,11 +104,17 @@ describe("backup and restore", () => {
 
     const target = newDataDir("backup-dst");
     made.push(target);
-    const env = { ...app.env, HEATCHECK_DATA_DIR: target, DATABASE_URL: `file:${join(target, "heatcheck.db")}` };
+    const env = {
+      ...app.env,
+      HEATCHECK_DATA_DIR: target,
+      DATABASE_URL: `file:${join(target, "heatcheck.db")}`,
+    };
     const restored = await run("npm", ["run", "-s", "restore", "--", archive2], { env });
     expect(restored.stdout).toMatch(/restored/);
     // restoring again into the now full folder is refused and changes nothing
-    await expect(run("npm", ["run", "-s", "restore", "--", archive2], { env })).rejects.toMatchObject({ code: 1 });
+    await expect(
+      run("npm", ["run", "-s", "restore", "--", archive2], { env }),
+    ).rejects.toMatchObject({ code: 1 });
 
     expect(tableCounts(join(target, "heatcheck.db"))).toEqual(countsBefore);
     const db = openSqlite(join(target, "heatcheck.db"), true);
@@ -91,27 +130,46 @@ describe("backup and restore", () => {
     // The first archive (taken mid-upload) is consistent too: every log it records has its original.
     const mid = newDataDir("backup-mid");
     made.push(mid);
-    await run("npm", ["run", "-s", "restore", "--", archive], { env: { ...app.env, HEATCHECK_DATA_DIR: mid, DATABASE_URL: `file:${join(mid, "heatcheck.db")}` } });
+    await run("npm", ["run", "-s", "restore", "--", archive], {
+      env: {
+        ...app.env,
+        HEATCHECK_DATA_DIR: mid,
+        DATABASE_URL: `file:${join(mid, "heatcheck.db")}`,
+      },
+    });
     const mdb = openSqlite(join(mid, "heatcheck.db"), true);
-    for (const l of mdb.prepare(`SELECT "storedPath" AS p, "contentHash" AS h FROM "FlightLog"`).all()) expect(sha256(join(mid, String(l.p)))).toBe(l.h);
+    for (const l of mdb
+      .prepare(`SELECT "storedPath" AS p, "contentHash" AS h FROM "FlightLog"`)
+      .all())
+      expect(sha256(join(mid, String(l.p)))).toBe(l.h);
     mdb.close();
 
     await app.stop();
-    const again = await startThroughScript(target, { NEXTAUTH_SECRET: String(app.env.NEXTAUTH_SECRET) });
+    const again = await startThroughScript(target, {
+      NEXTAUTH_SECRET: String(app.env.NEXTAUTH_SECRET),
+    });
     try {
       const queueAfter = await getJson(again.url, "/api/v1/queue", token);
       expect(queueAfter).toEqual(queueBefore);
     } finally {
       await again.stop();
     }
-    app = await startThroughScript(app.dataDir, { NEXTAUTH_SECRET: String(app.env.NEXTAUTH_SECRET) }, app.port);
+    app = await startThroughScript(
+      app.dataDir,
+      { NEXTAUTH_SECRET: String(app.env.NEXTAUTH_SECRET) },
+      app.port,
+    );
   }, 300_000);
 });
 
 describe("team export", () => {
   it("is a ustar archive with every record of the team and every original byte for byte", async () => {
     const archive = join(work, "team.tar.gz");
-    const r = await run("npm", ["run", "-s", "export-team", "--", "Harrow Vale Quad Club", archive], { env: app.env });
+    const r = await run(
+      "npm",
+      ["run", "-s", "export-team", "--", "Harrow Vale Quad Club", archive],
+      { env: app.env },
+    );
     expect(r.stdout).toMatch(/exported/);
     const listing = (await run("tar", ["-tzf", archive])).stdout.split("\n").filter(Boolean);
     expect(listing).toContain("team.json");
@@ -122,7 +180,12 @@ describe("team export", () => {
       for await (const c of body) parts.push(Buffer.from(c));
       files.set(entry.name, Buffer.concat(parts));
     });
-    const doc = JSON.parse(files.get("team.json")?.toString("utf8") ?? "{}") as { format: string; airframes: unknown[]; logs: { id: string; contentHash: string }[]; members: Record<string, unknown>[] };
+    const doc = JSON.parse(files.get("team.json")?.toString("utf8") ?? "{}") as {
+      format: string;
+      airframes: unknown[];
+      logs: { id: string; contentHash: string }[];
+      members: Record<string, unknown>[];
+    };
     expect(doc.format).toBe("heatcheck-team-export");
     const counts = tableCounts(join(app.dataDir, "heatcheck.db"));
     expect(doc.airframes.length).toBe(counts.Airframe);
@@ -133,7 +196,9 @@ describe("team export", () => {
     }
     expect(JSON.stringify(doc.members)).not.toMatch(/passwordHash|\$2[aby]\$/);
     // the CSV header row of the airframes table plus one row per airframe
-    expect((files.get("csv/airframes.csv")?.toString("utf8") ?? "").trim().split("\r\n").length).toBe((counts.Airframe ?? 0) + 1);
+    expect(
+      (files.get("csv/airframes.csv")?.toString("utf8") ?? "").trim().split("\r\n").length,
+    ).toBe((counts.Airframe ?? 0) + 1);
     expect(existsSync(archive)).toBe(true);
   }, 120_000);
 });

@@ -3,7 +3,14 @@ import { join } from "node:path";
 import { afterAll, beforeAll, expect, it } from "vitest";
 import { openSqlite } from "../support/sqlite";
 import { buildCorpus, type CorpusCase } from "./corpus";
-import { addToken, filesUnder, seededDataDir, startThroughScript, upload, type RunningApp } from "./harness";
+import {
+  addToken,
+  filesUnder,
+  seededDataDir,
+  startThroughScript,
+  upload,
+  type RunningApp,
+} from "./harness";
 
 // The malformed corpus (corpus.ts, expected outcomes in corpus-table.md, from the README's reading
 // rules) through the upload API of the running app: a file the reader accepts is answered 200; a
@@ -47,7 +54,10 @@ it("every corpus case gets the reader's verdict from the API, and refused files 
   };
   for (const c of cases) {
     const before = logCount();
-    const fields: Record<string, string> = { airframe: "HV-01", ...(c.map ? { mapText: c.map } : {}) };
+    const fields: Record<string, string> = {
+      airframe: "HV-01",
+      ...(c.map ? { mapText: c.map } : {}),
+    };
     const r = await upload(app.url, c.bytes, { token, fileName: `${c.id}.csv`, fields });
     const body = r.body.startsWith("{") ? r.json() : {};
     const e = c.expect;
@@ -59,15 +69,37 @@ it("every corpus case gets the reader's verdict from the API, and refused files 
     }
     refused++;
     const message = String(body.error ?? "");
-    check(c, r.status === STATUS[e.code], `expected ${STATUS[e.code]}, got ${r.status} ${r.body.slice(0, 200)}`);
+    check(
+      c,
+      r.status === STATUS[e.code],
+      `expected ${STATUS[e.code]}, got ${r.status} ${r.body.slice(0, 200)}`,
+    );
     check(c, body.code === e.code, `code ${String(body.code)} instead of ${e.code}`);
-    check(c, message.includes(e.sentence), `message "${message.slice(0, 200)}" lacks "${e.sentence}"`);
-    if (e.line !== undefined) check(c, new RegExp(`\\bline ${e.line}\\b`).test(message), `message does not name line ${e.line}: ${message.slice(0, 160)}`);
-    if (e.column !== undefined) check(c, new RegExp(`\\bcolumn ${e.column}\\b`).test(message), `message does not name column ${e.column}: ${message.slice(0, 160)}`);
+    check(
+      c,
+      message.includes(e.sentence),
+      `message "${message.slice(0, 200)}" lacks "${e.sentence}"`,
+    );
+    if (e.line !== undefined)
+      check(
+        c,
+        new RegExp(`\\bline ${e.line}\\b`).test(message),
+        `message does not name line ${e.line}: ${message.slice(0, 160)}`,
+      );
+    if (e.column !== undefined)
+      check(
+        c,
+        new RegExp(`\\bcolumn ${e.column}\\b`).test(message),
+        `message does not name column ${e.column}: ${message.slice(0, 160)}`,
+      );
     check(c, logCount() === before, "a record was kept");
   }
-  console.log(`corpus through the API: ${cases.length} cases, ${accepted} accepted, ${refused} refused, ${mismatches.length} mismatches`);
+  console.log(
+    `corpus through the API: ${cases.length} cases, ${accepted} accepted, ${refused} refused, ${mismatches.length} mismatches`,
+  );
   expect(mismatches).toEqual([]);
-  expect(filesUnder(join(app.dataDir, "uploads")).filter((f) => f.includes("incoming-"))).toEqual([]);
+  expect(filesUnder(join(app.dataDir, "uploads")).filter((f) => f.includes("incoming-"))).toEqual(
+    [],
+  );
   expect(acceptedIds.size).toBeGreaterThan(0);
 }, 300_000);

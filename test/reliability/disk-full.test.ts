@@ -6,7 +6,15 @@ import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { demoCsv } from "@/lib/demo/demo-csv";
 import { openSqlite } from "../support/sqlite";
-import { addToken, filesUnder, getJson, seededDataDir, startThroughScript, upload, type RunningApp } from "./harness";
+import {
+  addToken,
+  filesUnder,
+  getJson,
+  seededDataDir,
+  startThroughScript,
+  upload,
+  type RunningApp,
+} from "./harness";
 
 // A full disk, made real: the data folder lives on a size-limited tmpfs (mount -t tmpfs -o size=,
 // Linux; needs root, skipped otherwise) and is filled with a filler file until writes fail with
@@ -70,7 +78,14 @@ beforeAll(async () => {
   if (!root) return;
   const seeded = seededDataDir("disk-full-src");
   const used = Number(execFileSync("du", ["-sb", seeded]).toString().split("\t")[0]);
-  execFileSync("mount", ["-t", "tmpfs", "-o", `size=${Math.ceil((used + 48e6) / 1e6)}m,mode=0700`, "tmpfs", mount]);
+  execFileSync("mount", [
+    "-t",
+    "tmpfs",
+    "-o",
+    `size=${Math.ceil((used + 48e6) / 1e6)}m,mode=0700`,
+    "tmpfs",
+    mount,
+  ]);
   mounted = true;
   const dataDir = join(mount, "data");
   cpSync(seeded, dataDir, { recursive: true });
@@ -104,12 +119,16 @@ describe.skipIf(!root)("disk full", () => {
   it.skip("an upload that does not fit: 507 with a sentence, the partial file removed, nothing recorded", async () => {
     const before = logCount(app.dataDir);
     fill(6e6);
-    const bytes = Buffer.from(demoCsv({ seed: 901, durationS: 60, sampleRateHz: 4000 }, { airframe: "HV-03" }));
+    const bytes = Buffer.from(
+      demoCsv({ seed: 901, durationS: 60, sampleRateHz: 4000 }, { airframe: "HV-03" }),
+    );
     expect(bytes.length).toBeGreaterThan(12e6);
     const r = await upload(app.url, bytes, { token, fileName: "hv-03-too-big-for-disk.csv" });
     expect(r.status).toBe(507);
     expect(String(r.json().error)).toMatch(/disk is full/);
-    expect(filesUnder(join(app.dataDir, "uploads")).filter((f) => f.includes("incoming-"))).toEqual([]);
+    expect(filesUnder(join(app.dataDir, "uploads")).filter((f) => f.includes("incoming-"))).toEqual(
+      [],
+    );
     expect(logCount(app.dataDir)).toBe(before);
   });
 
@@ -125,7 +144,9 @@ describe.skipIf(!root)("disk full", () => {
   });
 
   it("an analysis whose result cannot be stored waits visibly and is stored once space is back", async () => {
-    const bytes = Buffer.from(demoCsv({ seed: 902, durationS: 40, sampleRateHz: 4000 }, { airframe: "HV-03" }));
+    const bytes = Buffer.from(
+      demoCsv({ seed: 902, durationS: 40, sampleRateHz: 4000 }, { airframe: "HV-03" }),
+    );
     const r = await upload(app.url, bytes, { token, fileName: "hv-03-then-full.csv" });
     expect(r.status).toBe(200);
     fill(0);
@@ -134,7 +155,10 @@ describe.skipIf(!root)("disk full", () => {
     let status = "pending";
     const deadline = Date.now() + 20_000;
     while (Date.now() < deadline) {
-      const s = (await getJson(app.url, `/api/v1/logs/${id}`, token)).body as Record<string, unknown>;
+      const s = (await getJson(app.url, `/api/v1/logs/${id}`, token)).body as Record<
+        string,
+        unknown
+      >;
       status = String(s.status);
       if (typeof s.note === "string" && /disk is full/.test(s.note)) sawNote = true;
       if (status !== "pending" || sawNote) break;
@@ -146,7 +170,10 @@ describe.skipIf(!root)("disk full", () => {
     const end = Date.now() + 60_000;
     while (status === "pending" && Date.now() < end) {
       await new Promise((res) => setTimeout(res, 500));
-      status = String(((await getJson(app.url, `/api/v1/logs/${id}`, token)).body as Record<string, unknown>).status);
+      status = String(
+        ((await getJson(app.url, `/api/v1/logs/${id}`, token)).body as Record<string, unknown>)
+          .status,
+      );
     }
     expect(status).toBe("analysed");
   }, 120_000);
@@ -158,10 +185,16 @@ describe.skipIf(!root)("disk full", () => {
       port: url.port,
       path: url.pathname,
       method: "POST",
-      headers: { authorization: `Bearer ${token}`, "content-type": "multipart/form-data; boundary=x", "content-length": 1e9 },
+      headers: {
+        authorization: `Bearer ${token}`,
+        "content-type": "multipart/form-data; boundary=x",
+        "content-length": 1e9,
+      },
     });
     req.on("error", () => undefined);
-    req.write('--x\r\nContent-Disposition: form-data; name="file"; filename="hv-03-hang.csv"\r\n\r\n# airframe: HV-03\n');
+    req.write(
+      '--x\r\nContent-Disposition: form-data; name="file"; filename="hv-03-hang.csv"\r\n\r\n# airframe: HV-03\n',
+    );
     await new Promise((r) => setTimeout(r, 500));
     const t0 = Date.now();
     const exited = await app.stop(10_000);
@@ -169,7 +202,13 @@ describe.skipIf(!root)("disk full", () => {
     expect(Date.now() - t0).toBeLessThan(8_000); // 3 s grace (HEATCHECK_SHUTDOWN_S) plus start-up of the exit
     req.destroy();
     // the interrupted upload's temporary is swept at the next start
-    app = await startThroughScript(app.dataDir, { HEATCHECK_SHUTDOWN_S: "3", NEXTAUTH_SECRET: String(app.env.NEXTAUTH_SECRET) }, app.port);
-    expect(filesUnder(join(app.dataDir, "uploads")).filter((f) => f.includes("incoming-"))).toEqual([]);
+    app = await startThroughScript(
+      app.dataDir,
+      { HEATCHECK_SHUTDOWN_S: "3", NEXTAUTH_SECRET: String(app.env.NEXTAUTH_SECRET) },
+      app.port,
+    );
+    expect(filesUnder(join(app.dataDir, "uploads")).filter((f) => f.includes("incoming-"))).toEqual(
+      [],
+    );
   }, 120_000);
 });

@@ -26,7 +26,12 @@ const enc = new TextEncoder();
 
 /** Small valid logs to mutate: short so that thousands of runs take seconds. */
 function bases(): CorpusCase[] {
-  const rows = (n: number, rate: number, eol = "\n", header = "time_us,gyro_roll,gyro_pitch,gyro_yaw,throttle,rpm_1,rpm_2") => {
+  const rows = (
+    n: number,
+    rate: number,
+    eol = "\n",
+    header = "time_us,gyro_roll,gyro_pitch,gyro_yaw,throttle,rpm_1,rpm_2",
+  ) => {
     const rand = mulberry32(n + rate);
     let s = `# airframe: Fuzz-01${eol}# flown_at: 2026-11-28T14:05:00Z${eol}${header}${eol}`;
     for (let k = 0; k < n; k++) {
@@ -36,17 +41,43 @@ function bases(): CorpusCase[] {
     return enc.encode(s);
   };
   const accepted = { outcome: "accepted" } as const;
-  const corpusPicks = buildCorpus().filter((c) => ["foreign-map", "quoted-cells", "decimal-commas", "one-gap"].includes(c.id));
+  const corpusPicks = buildCorpus().filter((c) =>
+    ["foreign-map", "quoted-cells", "decimal-commas", "one-gap"].includes(c.id),
+  );
   return [
     { id: "fuzz-lf", family: "fuzz", what: "", bytes: rows(1100, 1000), expect: accepted },
-    { id: "fuzz-crlf", family: "fuzz", what: "", bytes: rows(1100, 1000, "\r\n"), expect: accepted },
+    {
+      id: "fuzz-crlf",
+      family: "fuzz",
+      what: "",
+      bytes: rows(1100, 1000, "\r\n"),
+      expect: accepted,
+    },
     { id: "fuzz-cr", family: "fuzz", what: "", bytes: rows(1100, 1000, "\r"), expect: accepted },
     { id: "fuzz-2k", family: "fuzz", what: "", bytes: rows(2100, 2000), expect: accepted },
     ...corpusPicks,
   ];
 }
 
-const INSERTS = [",", "\n", "\r", "\r\n", '"', "\u0000", "#", " ", "-", ".", "e", "9", ",,", "\uFEFF", "é", "\t", ";"];
+const INSERTS = [
+  ",",
+  "\n",
+  "\r",
+  "\r\n",
+  '"',
+  "\u0000",
+  "#",
+  " ",
+  "-",
+  ".",
+  "e",
+  "9",
+  ",,",
+  "\uFEFF",
+  "é",
+  "\t",
+  ";",
+];
 
 function mutate(input: Uint8Array, rand: Random): { bytes: Uint8Array; what: string } {
   let bytes = input;
@@ -97,7 +128,10 @@ function mutate(input: Uint8Array, rand: Random): { bytes: Uint8Array; what: str
       const text = new TextDecoder().decode(bytes);
       const cells = text.split(",");
       const i = Math.floor(rand() * cells.length);
-      const junk = ["", "abc", "1e400", "-", "NaN", "0x1", "1,5", "99999999999999999999", '"', "  "][Math.floor(rand() * 10)] ?? "";
+      const junk =
+        ["", "abc", "1e400", "-", "NaN", "0x1", "1,5", "99999999999999999999", '"', "  "][
+          Math.floor(rand() * 10)
+        ] ?? "";
       cells[i] = junk;
       bytes = enc.encode(cells.join(","));
       what.push(`cell ${i} = ${JSON.stringify(junk)}`);
@@ -124,14 +158,22 @@ function join(...parts: Uint8Array[]): Uint8Array {
 
 function clean(o: Outcome): string | null {
   if (o.outcome === "unexpected") return o.message;
-  if (o.outcome === "rejected" && (o.message.length < 10 || /\bat .*\.ts:\d+/.test(o.message))) return `unclear message: ${o.message}`;
+  if (o.outcome === "rejected" && (o.message.length < 10 || /\bat .*\.ts:\d+/.test(o.message)))
+    return `unclear message: ${o.message}`;
   return null;
 }
 
 /** Runs `count` mutations from `seed`; never throws for a finding, it reports it. */
 export async function fuzzReader(count: number, seed = 1): Promise<FuzzReport> {
   const sources = bases();
-  const report: FuzzReport = { runs: 0, accepted: 0, rejected: 0, failures: [], slowestMs: 0, totalMs: 0 };
+  const report: FuzzReport = {
+    runs: 0,
+    accepted: 0,
+    rejected: 0,
+    failures: [],
+    slowestMs: 0,
+    totalMs: 0,
+  };
   const start = performance.now();
   for (let n = 0; n < count; n++) {
     const caseSeed = seed * 1_000_003 + n;
@@ -156,7 +198,11 @@ export async function fuzzReader(count: number, seed = 1): Promise<FuzzReport> {
     if (n % 4 === 0) {
       const again = await runCaseInProcess(c, () => 1 << 20);
       if (JSON.stringify(again) !== JSON.stringify(o)) {
-        report.failures.push({ seed: caseSeed, what: `${base.id}: ${what}`, detail: `chunk-dependent: ${JSON.stringify(o)} vs ${JSON.stringify(again)}` });
+        report.failures.push({
+          seed: caseSeed,
+          what: `${base.id}: ${what}`,
+          detail: `chunk-dependent: ${JSON.stringify(o)} vs ${JSON.stringify(again)}`,
+        });
       }
     }
   }
@@ -171,6 +217,7 @@ if (process.argv[1] && /fuzz\.ts$/.test(process.argv[1])) {
   process.stdout.write(
     `${r.runs} mutations (seed ${seed}): ${r.accepted} accepted, ${r.rejected} rejected with a sentence, ${r.failures.length} failures; slowest ${r.slowestMs.toFixed(0)} ms, total ${(r.totalMs / 1000).toFixed(1)} s\n`,
   );
-  for (const f of r.failures.slice(0, 20)) process.stdout.write(`  seed ${f.seed} (${f.what}): ${f.detail}\n`);
+  for (const f of r.failures.slice(0, 20))
+    process.stdout.write(`  seed ${f.seed} (${f.what}): ${f.detail}\n`);
   process.exitCode = r.failures.length > 0 ? 1 : 0;
 }

@@ -1,6 +1,14 @@
 import { execFileSync } from "node:child_process";
 import { createHash, randomBytes } from "node:crypto";
-import { cpSync, existsSync, mkdtempSync, readFileSync, readdirSync, renameSync, rmSync } from "node:fs";
+import {
+  cpSync,
+  existsSync,
+  mkdtempSync,
+  readFileSync,
+  readdirSync,
+  renameSync,
+  rmSync,
+} from "node:fs";
 import { request as httpRequest } from "node:http";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
@@ -35,7 +43,10 @@ export function newDataDir(label: string): string {
 function seedInputsHash(): string {
   const h = createHash("sha256");
   for (const dir of ["prisma", "lib"]) {
-    for (const e of readdirSync(dir, { recursive: true, withFileTypes: true }).filter((x) => x.isFile()).map((x) => join(x.parentPath, x.name)).sort()) {
+    for (const e of readdirSync(dir, { recursive: true, withFileTypes: true })
+      .filter((x) => x.isFile())
+      .map((x) => join(x.parentPath, x.name))
+      .sort()) {
       h.update(e).update(readFileSync(e));
     }
   }
@@ -51,9 +62,17 @@ export function seededDataDir(label: string): string {
   const template = join(tmpdir(), `heatcheck-seeded-${seedInputsHash()}`);
   if (!existsSync(template)) {
     const build = mkdtempSync(join(tmpdir(), "heatcheck-seeding-"));
-    const env = { ...process.env, HEATCHECK_DATA_DIR: build, DATABASE_URL: `file:${join(build, "heatcheck.db")}`, HEATCHECK_WORKERS: "0" };
+    const env = {
+      ...process.env,
+      HEATCHECK_DATA_DIR: build,
+      DATABASE_URL: `file:${join(build, "heatcheck.db")}`,
+      HEATCHECK_WORKERS: "0",
+    };
     execFileSync("npx", ["prisma", "migrate", "deploy"], { env, stdio: "pipe" });
-    execFileSync("npx", ["tsx", "--conditions=react-server", "prisma/seed.ts"], { env, stdio: "pipe" });
+    execFileSync("npx", ["tsx", "--conditions=react-server", "prisma/seed.ts"], {
+      env,
+      stdio: "pipe",
+    });
     try {
       renameSync(build, template);
     } catch {
@@ -69,8 +88,16 @@ export function seededDataDir(label: string): string {
  * Starts the app with `startApp` (npm start, its own process group) on `dataDir`; `port` keeps the
  * address of a previous run (restarts after a kill).
  */
-export async function startThroughScript(dataDir: string, extraEnv: Record<string, string> = {}, port?: number): Promise<RunningApp> {
-  const app = await startApp({ dataDir, port, env: { HEATCHECK_MAX_UPLOAD_MB: undefined, ...extraEnv } });
+export async function startThroughScript(
+  dataDir: string,
+  extraEnv: Record<string, string> = {},
+  port?: number,
+): Promise<RunningApp> {
+  const app = await startApp({
+    dataDir,
+    port,
+    env: { HEATCHECK_MAX_UPLOAD_MB: undefined, ...extraEnv },
+  });
   const url = new URL(app.url);
   return {
     url: app.url,
@@ -99,13 +126,23 @@ export async function startThroughScript(dataDir: string, extraEnv: Record<strin
 }
 
 /** Writes an API token for the team of `ownerEmail` into the database and returns it. */
-export function addToken(dataDir: string, ownerEmail = "owner@heatcheck.test", name = `t-${randomBytes(3).toString("hex")}`): string {
+export function addToken(
+  dataDir: string,
+  ownerEmail = "owner@heatcheck.test",
+  name = `t-${randomBytes(3).toString("hex")}`,
+): string {
   const db = openSqlite(join(dataDir, "heatcheck.db"));
   try {
-    const owner = db.prepare(`SELECT m."teamId" AS teamId, u.id AS userId FROM "User" u JOIN "Membership" m ON m."userId" = u.id WHERE u.email = ?`).get(ownerEmail);
+    const owner = db
+      .prepare(
+        `SELECT m."teamId" AS teamId, u.id AS userId FROM "User" u JOIN "Membership" m ON m."userId" = u.id WHERE u.email = ?`,
+      )
+      .get(ownerEmail);
     if (!owner) throw new Error(`no member ${ownerEmail}`);
     const token = `hc_${randomBytes(24).toString("base64url")}`;
-    db.prepare(`INSERT INTO "ApiToken" (id, "teamId", name, prefix, "tokenHash", "createdById", "createdAt") VALUES (?, ?, ?, ?, ?, ?, ?)`).run(
+    db.prepare(
+      `INSERT INTO "ApiToken" (id, "teamId", name, prefix, "tokenHash", "createdById", "createdAt") VALUES (?, ?, ?, ?, ?, ?, ?)`,
+    ).run(
       `tok${randomBytes(8).toString("hex")}`,
       owner.teamId,
       name,
@@ -140,9 +177,13 @@ export interface UploadOptions {
 
 const BOUNDARY = "----heatcheck-test-boundary-7d1f";
 
-function multipartParts(fields: Record<string, string>, fileName: string): { head: Buffer; tail: Buffer } {
+function multipartParts(
+  fields: Record<string, string>,
+  fileName: string,
+): { head: Buffer; tail: Buffer } {
   let head = "";
-  for (const [k, v] of Object.entries(fields)) head += `--${BOUNDARY}\r\nContent-Disposition: form-data; name="${k}"\r\n\r\n${v}\r\n`;
+  for (const [k, v] of Object.entries(fields))
+    head += `--${BOUNDARY}\r\nContent-Disposition: form-data; name="${k}"\r\n\r\n${v}\r\n`;
   head += `--${BOUNDARY}\r\nContent-Disposition: form-data; name="file"; filename="${fileName}"\r\nContent-Type: text/csv\r\n\r\n`;
   return { head: Buffer.from(head), tail: Buffer.from(`\r\n--${BOUNDARY}--\r\n`) };
 }
@@ -164,20 +205,37 @@ export function upload(baseUrl: string, file: Uint8Array, o: UploadOptions): Pro
       }
     };
     const req = httpRequest(
-      { host: url.hostname, port: url.port, path: url.pathname, method: "POST", headers: { authorization: `Bearer ${o.token}`, "content-type": `multipart/form-data; boundary=${BOUNDARY}`, "content-length": total } },
+      {
+        host: url.hostname,
+        port: url.port,
+        path: url.pathname,
+        method: "POST",
+        headers: {
+          authorization: `Bearer ${o.token}`,
+          "content-type": `multipart/form-data; boundary=${BOUNDARY}`,
+          "content-length": total,
+        },
+      },
       (res) => {
         const chunks: Buffer[] = [];
         res.on("data", (c: Buffer) => chunks.push(c));
         res.on("end", () => {
           const body = Buffer.concat(chunks).toString("utf8");
-          finish({ status: res.statusCode ?? 0, headers: res.headers, body, json: () => JSON.parse(body) as Record<string, unknown> });
+          finish({
+            status: res.statusCode ?? 0,
+            headers: res.headers,
+            body,
+            json: () => JSON.parse(body) as Record<string, unknown>,
+          });
         });
         res.on("error", () => finish({ status: 0, headers: {}, body: "", json: () => ({}) }));
       },
     );
     // A server may answer early (413, 422, 429) and close while the body is still being sent:
     // the write then fails, but the answer may still arrive, so wait a moment for it.
-    req.on("error", () => setTimeout(() => finish({ status: 0, headers: {}, body: "", json: () => ({}) }), 500));
+    req.on("error", () =>
+      setTimeout(() => finish({ status: 0, headers: {}, body: "", json: () => ({}) }), 500),
+    );
     const chunk = o.chunkBytes ?? 1 << 20;
     const write = async () => {
       req.write(head);
@@ -199,7 +257,11 @@ export function upload(baseUrl: string, file: Uint8Array, o: UploadOptions): Pro
   });
 }
 
-export async function getJson(baseUrl: string, path: string, token: string): Promise<{ status: number; body: Record<string, unknown> | unknown[] }> {
+export async function getJson(
+  baseUrl: string,
+  path: string,
+  token: string,
+): Promise<{ status: number; body: Record<string, unknown> | unknown[] }> {
   const r = await fetch(new URL(path, baseUrl), { headers: { authorization: `Bearer ${token}` } });
   return { status: r.status, body: (await r.json()) as Record<string, unknown> };
 }
@@ -212,7 +274,12 @@ export function filesUnder(dir: string): string[] {
 }
 
 /** Waits until a log is no longer pending (or the deadline passes) and returns its status body. */
-export async function settled(baseUrl: string, logId: string, token: string, timeoutMs = 60_000): Promise<Record<string, unknown>> {
+export async function settled(
+  baseUrl: string,
+  logId: string,
+  token: string,
+  timeoutMs = 60_000,
+): Promise<Record<string, unknown>> {
   const deadline = Date.now() + timeoutMs;
   for (;;) {
     const r = await getJson(baseUrl, `/api/v1/logs/${logId}`, token);

@@ -23,9 +23,16 @@ afterAll(async () => {
 });
 
 it("10 kill -9 trials during upload and analysis lose nothing and leave nothing behind", async () => {
-  const { report, app: last } = await killTrials(app, token, Number(process.env.HEATCHECK_KILL_TRIALS ?? 10), 7);
+  const { report, app: last } = await killTrials(
+    app,
+    token,
+    Number(process.env.HEATCHECK_KILL_TRIALS ?? 10),
+    7,
+  );
   app = last;
-  console.log(`kill -9 trials: ${JSON.stringify({ ...report, restartMs: undefined, medianRestartMs: [...report.restartMs].sort((a, b) => a - b)[Math.floor(report.restartMs.length / 2)] })}`);
+  console.log(
+    `kill -9 trials: ${JSON.stringify({ ...report, restartMs: undefined, medianRestartMs: [...report.restartMs].sort((a, b) => a - b)[Math.floor(report.restartMs.length / 2)] })}`,
+  );
   expect(report.integrityFailures).toEqual([]);
   expect(report.lost).toBe(0);
   expect(report.leftovers).toBe(0);

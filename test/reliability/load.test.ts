@@ -20,7 +20,12 @@ afterAll(async () => {
 });
 
 it("20 readers and 4 uploaders for 10 s: no errors, no lost upload", async () => {
-  const report = await runLoad(app, app.pid, { readers: 20, uploaders: 4, seconds: 10, uploadMb: 4 });
+  const report = await runLoad(app, app.pid, {
+    readers: 20,
+    uploaders: 4,
+    seconds: 10,
+    uploadMb: 4,
+  });
   console.log(`load run: ${JSON.stringify(report)}`);
   expect(report.errorSamples).toEqual([]);
   expect(report.errors).toBe(0);

@@ -45,21 +45,41 @@ export interface LoadReport {
 
 export function stats(values: readonly number[]): Stats {
   const s = [...values].sort((a, b) => a - b);
-  const at = (q: number) => s[Math.min(s.length - 1, Math.max(0, Math.ceil(q * s.length) - 1))] ?? Number.NaN;
-  return { count: s.length, p50: at(0.5), p95: at(0.95), p99: at(0.99), max: s[s.length - 1] ?? Number.NaN };
+  const at = (q: number) =>
+    s[Math.min(s.length - 1, Math.max(0, Math.ceil(q * s.length) - 1))] ?? Number.NaN;
+  return {
+    count: s.length,
+    p50: at(0.5),
+    p95: at(0.95),
+    p99: at(0.99),
+    max: s[s.length - 1] ?? Number.NaN,
+  };
 }
 
-function get(baseUrl: string, path: string, headers: Record<string, string>): Promise<{ status: number; ms: number }> {
+function get(
+  baseUrl: string,
+  path: string,
+  headers: Record<string, string>,
+): Promise<{ status: number; ms: number }> {
   const url = new URL(path, baseUrl);
   const t0 = performance.now();
   return new Promise((resolve) => {
     // A new connection per request (no keep-alive): a reused socket the server is just closing
     // would count as an error of the client's making.
-    const req = httpRequest({ host: url.hostname, port: url.port, path: url.pathname + url.search, headers, agent: false }, (res) => {
-      res.resume();
-      res.on("end", () => resolve({ status: res.statusCode ?? 0, ms: performance.now() - t0 }));
-      res.on("error", () => resolve({ status: 0, ms: performance.now() - t0 }));
-    });
+    const req = httpRequest(
+      {
+        host: url.hostname,
+        port: url.port,
+        path: url.pathname + url.search,
+        headers,
+        agent: false,
+      },
+      (res) => {
+        res.resume();
+        res.on("end", () => resolve({ status: res.statusCode ?? 0, ms: performance.now() - t0 }));
+        res.on("error", () => resolve({ status: 0, ms: performance.now() - t0 }));
+      },
+    );
     req.on("error", () => resolve({ status: 0, ms: performance.now() - t0 }));
     req.end();
   });
@@ -82,15 +102,25 @@ export function maxRssOfGroup(groupPid: number): number {
   return max;
 }
 
-export async function runLoad(app: RunningApp, groupPid: number, o: LoadOptions): Promise<LoadReport> {
+export async function runLoad(
+  app: RunningApp,
+  groupPid: number,
+  o: LoadOptions,
+): Promise<LoadReport> {
   const readToken = addToken(app.dataDir, "owner@heatcheck.test", "load readers");
   const session = new HttpSession(app.url);
-  if (!(await session.signIn("viewer@heatcheck.test", "pitwall-viewer-2026"))) throw new Error("the demo viewer could not sign in");
+  if (!(await session.signIn("viewer@heatcheck.test", "pitwall-viewer-2026")))
+    throw new Error("the demo viewer could not sign in");
   const cookie = session.cookieHeader;
   const base = Buffer.from(
-    demoCsv({ seed: 5150, durationS: Math.max(3, (o.uploadMb * 1e6) / (4000 * 64)), sampleRateHz: 4000 }, { airframe: "HV-06", flownAt: "2026-11-30T11:00:00Z" }),
+    demoCsv(
+      { seed: 5150, durationS: Math.max(3, (o.uploadMb * 1e6) / (4000 * 64)), sampleRateHz: 4000 },
+      { airframe: "HV-06", flownAt: "2026-11-30T11:00:00Z" },
+    ),
   );
-  const tokens = Array.from({ length: o.uploaders }, (_, i) => addToken(app.dataDir, "owner@heatcheck.test", `load uploader ${i}`));
+  const tokens = Array.from({ length: o.uploaders }, (_, i) =>
+    addToken(app.dataDir, "owner@heatcheck.test", `load uploader ${i}`),
+  );
   const end = Date.now() + o.seconds * 1000;
   const queueMs: number[] = [];
   const homeMs: number[] = [];
@@ -121,9 +151,16 @@ export async function runLoad(app: RunningApp, groupPid: number, o: LoadOptions)
   };
   const uploader = async (i: number) => {
     for (let n = 0; Date.now() < end; n++) {
-      const bytes = Buffer.concat([Buffer.from(`# note: load run uploader ${i} upload ${n} ${Date.now()}\n`), base]);
+      const bytes = Buffer.concat([
+        Buffer.from(`# note: load run uploader ${i} upload ${n} ${Date.now()}\n`),
+        base,
+      ]);
       const t0 = performance.now();
-      const r = await upload(app.url, bytes, { token: tokens[i] ?? "", fileName: `hv-06-load-${i}-${n}.csv`, chunkBytes: 256 * 1024 });
+      const r = await upload(app.url, bytes, {
+        token: tokens[i] ?? "",
+        fileName: `hv-06-load-${i}-${n}.csv`,
+        chunkBytes: 256 * 1024,
+      });
       const ms = performance.now() - t0;
       if (r.status === 200) {
         uploadMs.push(ms);
@@ -135,10 +172,18 @@ export async function runLoad(app: RunningApp, groupPid: number, o: LoadOptions)
       } else fail(`upload ${r.status} ${r.body.slice(0, 120)}`);
     }
   };
-  await Promise.all([...Array.from({ length: o.readers }, (_, i) => reader(i)), ...Array.from({ length: o.uploaders }, (_, i) => uploader(i))]);
+  await Promise.all([
+    ...Array.from({ length: o.readers }, (_, i) => reader(i)),
+    ...Array.from({ length: o.uploaders }, (_, i) => uploader(i)),
+  ]);
   clearInterval(sampler);
   const db = openSqlite(join(app.dataDir, "heatcheck.db"), true);
-  const have = new Set(db.prepare(`SELECT id FROM "FlightLog"`).all().map((r) => String(r.id)));
+  const have = new Set(
+    db
+      .prepare(`SELECT id FROM "FlightLog"`)
+      .all()
+      .map((r) => String(r.id)),
+  );
   db.close();
   const sortedMbps = [...mbps].sort((a, b) => a - b);
   return {

@@ -45,7 +45,9 @@ function expectOutcome(c: CorpusCase, o: Outcome): void {
     if (e.droppedRows !== undefined) expect(o.droppedRows, label).toBe(e.droppedRows);
     if (e.sampleRateHz !== undefined) {
       // Tolerance as the case states it (0: the rate must come out exact).
-      expect(Math.abs(o.sampleRateHz / e.sampleRateHz - 1), label).toBeLessThanOrEqual(e.rateTolerance ?? 0);
+      expect(Math.abs(o.sampleRateHz / e.sampleRateHz - 1), label).toBeLessThanOrEqual(
+        e.rateTolerance ?? 0,
+      );
     }
     return;
   }
@@ -61,7 +63,9 @@ function expectOutcome(c: CorpusCase, o: Outcome): void {
 describe("the malformed corpus", () => {
   it("has at least 200 cases, and its committed table is up to date", () => {
     expect(cases.length).toBeGreaterThanOrEqual(200);
-    expect(readFileSync(new URL("./corpus-table.md", import.meta.url), "utf8")).toBe(corpusTable(cases));
+    expect(readFileSync(new URL("./corpus-table.md", import.meta.url), "utf8")).toBe(
+      corpusTable(cases),
+    );
   });
 
   it("every case through the reader and analyser gives its expected outcome (1 MiB reads)", async () => {
@@ -88,7 +92,13 @@ interface CliRun {
 }
 
 function cliArgs(c: CorpusCase): string[] {
-  return ["analyze", fileOf(c), "--json", ...(c.map ? ["--map", c.map] : []), ...(c.maxMb ? ["--max-mb", String(c.maxMb)] : [])];
+  return [
+    "analyze",
+    fileOf(c),
+    "--json",
+    ...(c.map ? ["--map", c.map] : []),
+    ...(c.maxMb ? ["--max-mb", String(c.maxMb)] : []),
+  ];
 }
 
 /** What the CLI must have done for a case: exit code, stdout and stderr. */
@@ -107,9 +117,15 @@ function expectCli(c: CorpusCase, r: CliRun): void {
   expect(r.stdout, label).toBe("");
   const lines = r.stderr.split("\n").filter((l) => l !== "");
   expect(lines, label).toHaveLength(1);
-  const where = [e.line !== undefined ? `line ${e.line}` : "", e.column !== undefined ? `column ${e.column}` : ""].filter(Boolean).join(", ");
+  const where = [
+    e.line !== undefined ? `line ${e.line}` : "",
+    e.column !== undefined ? `column ${e.column}` : "",
+  ]
+    .filter(Boolean)
+    .join(", ");
   // The map is refused before the file is opened, so its message names no file.
-  const prefix = e.stage === "map" ? "heatcheck: " : `heatcheck: ${fileOf(c)}: ${where ? `${where}` : ""}`;
+  const prefix =
+    e.stage === "map" ? "heatcheck: " : `heatcheck: ${fileOf(c)}: ${where ? `${where}` : ""}`;
   expect(lines[0]?.startsWith(prefix), label).toBe(true);
   expect(lines[0], label).toContain(e.sentence);
   expect(lines[0], label).not.toMatch(/unexpected failure|\bat .*\.ts:\d+/);
@@ -121,7 +137,10 @@ describe("the corpus through the CLI", () => {
     for (const c of cases) {
       let stdout = "";
       let stderr = "";
-      const code = await runCli(cliArgs(c), { stdout: (t) => (stdout += t), stderr: (t) => (stderr += t) });
+      const code = await runCli(cliArgs(c), {
+        stdout: (t) => (stdout += t),
+        stderr: (t) => (stderr += t),
+      });
       expectCli(c, { code, stdout, stderr });
     }
     expect(listing()).toBe(before);
@@ -134,22 +153,39 @@ describe("the corpus through the CLI", () => {
     : cases.filter((c) => {
         const first = !seen.has(c.family);
         seen.add(c.family);
-        return first || ["cr-only", "many-gaps", "rate-50k", "gzip", "utf16le-bom", "header-2mib", "decimal-commas", "map-twice-column"].includes(c.id);
+        return (
+          first ||
+          [
+            "cr-only",
+            "many-gaps",
+            "rate-50k",
+            "gzip",
+            "utf16le-bom",
+            "header-2mib",
+            "decimal-commas",
+            "map-twice-column",
+          ].includes(c.id)
+        );
       });
 
-  it(`\`npx heatcheck analyze\` as a process: ${full ? "every case" : `${chosen.length} cases (one per family and eight named ones)`}, exit code, stderr, nothing written`, { timeout: 900_000 }, async () => {
-    // The bin rebuilds its bundle when lib/ is newer: let one run do that before two run at once.
-    await npxHeatcheck(["help"]);
-    const before = listing();
-    const queue = [...chosen];
-    // Two at a time: the machine has two cores.
-    await Promise.all(
-      [0, 1].map(async () => {
-        for (let c = queue.shift(); c; c = queue.shift()) expectCli(c, await npxHeatcheck(cliArgs(c)));
-      }),
-    );
-    expect(listing()).toBe(before);
-  });
+  it(
+    `\`npx heatcheck analyze\` as a process: ${full ? "every case" : `${chosen.length} cases (one per family and eight named ones)`}, exit code, stderr, nothing written`,
+    { timeout: 900_000 },
+    async () => {
+      // The bin rebuilds its bundle when lib/ is newer: let one run do that before two run at once.
+      await npxHeatcheck(["help"]);
+      const before = listing();
+      const queue = [...chosen];
+      // Two at a time: the machine has two cores.
+      await Promise.all(
+        [0, 1].map(async () => {
+          for (let c = queue.shift(); c; c = queue.shift())
+            expectCli(c, await npxHeatcheck(cliArgs(c)));
+        }),
+      );
+      expect(listing()).toBe(before);
+    },
+  );
 });
 
 function npxHeatcheck(args: string[]): Promise<CliRun> {
@@ -178,7 +214,10 @@ describe("the head reader of the upload path follows the same rules", () => {
       let head: { line: number; proposal: { missing: string[] } } | null = null;
       let error: Error | null = null;
       try {
-        head = await readLogHead(chunked(c.bytes, () => 64 * 1024), { maxBytes: (c.maxMb ?? 512) * 1024 * 1024 });
+        head = await readLogHead(
+          chunked(c.bytes, () => 64 * 1024),
+          { maxBytes: (c.maxMb ?? 512) * 1024 * 1024 },
+        );
       } catch (e) {
         error = e as Error;
       }
@@ -191,7 +230,12 @@ describe("the head reader of the upload path follows the same rules", () => {
         // reports as missing (or the case's map does not fit them); other refusals are about later lines.
         if (full.outcome === "rejected" && full.line !== undefined) {
           expect(full.line, c.id).toBeGreaterThanOrEqual(head?.line ?? 0);
-          if (full.line === head?.line) expect((head.proposal.missing.length > 0 || c.map !== undefined) && /no column for|the map/.test(full.message), c.id).toBe(true);
+          if (full.line === head?.line)
+            expect(
+              (head.proposal.missing.length > 0 || c.map !== undefined) &&
+                /no column for|the map/.test(full.message),
+              c.id,
+            ).toBe(true);
         }
       }
     }

@@ -7,14 +7,18 @@ import { describe, expect, it } from "vitest";
 import { fuzzReader } from "./fuzz";
 
 describe("reader fuzz", () => {
-  it("2,000 mutations: no unexpected exception, no chunk-dependent outcome, no hang", { timeout: 180_000 }, async () => {
-    const r = await fuzzReader(2000, 7);
-    expect(r.runs).toBe(2000);
-    expect(r.failures).toEqual([]);
-    // Both outcomes occur, so the mutations neither always break nor never touch the files.
-    expect(r.accepted).toBeGreaterThan(50);
-    expect(r.rejected).toBeGreaterThan(500);
-    // No single small file (≤ 200 KB) may take long: 5 s is ~100× the usual time.
-    expect(r.slowestMs).toBeLessThan(5000);
-  });
+  it(
+    "2,000 mutations: no unexpected exception, no chunk-dependent outcome, no hang",
+    { timeout: 180_000 },
+    async () => {
+      const r = await fuzzReader(2000, 7);
+      expect(r.runs).toBe(2000);
+      expect(r.failures).toEqual([]);
+      // Both outcomes occur, so the mutations neither always break nor never touch the files.
+      expect(r.accepted).toBeGreaterThan(50);
+      expect(r.rejected).toBeGreaterThan(500);
+      // No single small file (≤ 200 KB) may take long: 5 s is ~100× the usual time.
+      expect(r.slowestMs).toBeLessThan(5000);
+    },
+  );
 });

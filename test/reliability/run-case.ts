@@ -8,12 +8,28 @@ import { parseColumnMap } from "../../lib/logs/columns";
 import type { CorpusCase } from "./corpus";
 
 export type Outcome =
-  | { outcome: "accepted"; samples: number; sampleRateHz: number; gaps: number; droppedRows: number }
-  | { outcome: "rejected"; stage: "map" | "read" | "analysis"; code: string; message: string; line?: number; column?: number }
+  | {
+      outcome: "accepted";
+      samples: number;
+      sampleRateHz: number;
+      gaps: number;
+      droppedRows: number;
+    }
+  | {
+      outcome: "rejected";
+      stage: "map" | "read" | "analysis";
+      code: string;
+      message: string;
+      line?: number;
+      column?: number;
+    }
   | { outcome: "unexpected"; message: string };
 
 /** Chunks of the bytes, their sizes drawn from `size(i)` (bytes, at least 1). */
-export async function* chunked(bytes: Uint8Array, size: (i: number) => number): AsyncGenerator<Uint8Array> {
+export async function* chunked(
+  bytes: Uint8Array,
+  size: (i: number) => number,
+): AsyncGenerator<Uint8Array> {
   let at = 0;
   for (let i = 0; at < bytes.length; i++) {
     const n = Math.max(1, Math.floor(size(i)));
@@ -22,12 +38,16 @@ export async function* chunked(bytes: Uint8Array, size: (i: number) => number): 
   }
 }
 
-export async function runCaseInProcess(c: CorpusCase, size: (i: number) => number = () => 1 << 20): Promise<Outcome> {
+export async function runCaseInProcess(
+  c: CorpusCase,
+  size: (i: number) => number = () => 1 << 20,
+): Promise<Outcome> {
   let map;
   try {
     map = c.map ? parseColumnMap(c.map) : undefined;
   } catch (e) {
-    if (isDomainError(e)) return { outcome: "rejected", stage: "map", code: e.code, message: e.message };
+    if (isDomainError(e))
+      return { outcome: "rejected", stage: "map", code: e.code, message: e.message };
     return { outcome: "unexpected", message: String(e) };
   }
   let readDone = false;
@@ -39,12 +59,29 @@ export async function runCaseInProcess(c: CorpusCase, size: (i: number) => numbe
       })(),
       { map, maxBytes: (c.maxMb ?? 512) * 1024 * 1024 },
     );
-    return { outcome: "accepted", samples: analysis.samples, sampleRateHz: summary.info.sampleRateHz, gaps: summary.gapCount, droppedRows: summary.droppedRows };
+    return {
+      outcome: "accepted",
+      samples: analysis.samples,
+      sampleRateHz: summary.info.sampleRateHz,
+      gaps: summary.gapCount,
+      droppedRows: summary.droppedRows,
+    };
   } catch (e) {
-    if (!isDomainError(e)) return { outcome: "unexpected", message: e instanceof Error ? `${e.name}: ${e.message}\n${e.stack ?? ""}` : String(e) };
+    if (!isDomainError(e))
+      return {
+        outcome: "unexpected",
+        message: e instanceof Error ? `${e.name}: ${e.message}\n${e.stack ?? ""}` : String(e),
+      };
     // The analyser's own refusals come after the whole file was read (its finish step).
     const stage = readDone && /one analysis segment needs/.test(e.message) ? "analysis" : "read";
     const location = e instanceof LogFormatError ? e.location : {};
-    return { outcome: "rejected", stage, code: e.code, message: e.message, line: location.line, column: location.column };
+    return {
+      outcome: "rejected",
+      stage,
+      code: e.code,
+      message: e.message,
+      line: location.line,
+      column: location.column,
+    };
   }
 }

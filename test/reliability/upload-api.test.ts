@@ -3,7 +3,15 @@ import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { demoCsv } from "@/lib/demo/demo-csv";
 import { openSqlite } from "../support/sqlite";
-import { addToken, seededDataDir, filesUnder, settled, startThroughScript, upload, type RunningApp } from "./harness";
+import {
+  addToken,
+  seededDataDir,
+  filesUnder,
+  settled,
+  startThroughScript,
+  upload,
+  type RunningApp,
+} from "./harness";
 
 // Uploads against the running app, started the way npm start starts it. What is checked comes from
 // the README's promises ("rejected with the line, column and what was expected … nothing is
@@ -15,7 +23,12 @@ let app: RunningApp;
 let token: string;
 
 const good = (seed: number, meta: Record<string, string> = {}) =>
-  Buffer.from(demoCsv({ seed, durationS: 12, sampleRateHz: 2000 }, { airframe: "HV-05", flownAt: "2026-11-30T10:00:00Z", ...meta }));
+  Buffer.from(
+    demoCsv(
+      { seed, durationS: 12, sampleRateHz: 2000 },
+      { airframe: "HV-05", flownAt: "2026-11-30T10:00:00Z", ...meta },
+    ),
+  );
 
 function counts(): { logs: number; files: string[] } {
   const db = openSqlite(join(app.dataDir, "heatcheck.db"), true);
@@ -40,12 +53,37 @@ afterAll(async () => {
 describe("bad content is refused while it streams, and nothing is kept", () => {
   const header = "time_us,gyro_roll,gyro_pitch,gyro_yaw,throttle";
   const cases: { name: string; body: string; status: number; message: RegExp }[] = [
-    { name: "a letter in a gyro cell", body: `# airframe: HV-05\n${header}\n0,1,2,3,0.5\n500,1,x2,3,0.5\n`, status: 422, message: /line 4, column 3/ },
-    { name: "time going backwards", body: `# airframe: HV-05\n${header}\n0,1,2,3,0.5\n500,1,2,3,0.5\n1000,1,2,3,0.5\n400,1,2,3,0.5\n`, status: 422, message: /line 6/ },
-    { name: "no gyro columns", body: `# airframe: HV-05\ntime_us,speed\n0,1\n500,2\n`, status: 422, message: /roll/ },
+    {
+      name: "a letter in a gyro cell",
+      body: `# airframe: HV-05\n${header}\n0,1,2,3,0.5\n500,1,x2,3,0.5\n`,
+      status: 422,
+      message: /line 4, column 3/,
+    },
+    {
+      name: "time going backwards",
+      body: `# airframe: HV-05\n${header}\n0,1,2,3,0.5\n500,1,2,3,0.5\n1000,1,2,3,0.5\n400,1,2,3,0.5\n`,
+      status: 422,
+      message: /line 6/,
+    },
+    {
+      name: "no gyro columns",
+      body: `# airframe: HV-05\ntime_us,speed\n0,1\n500,2\n`,
+      status: 422,
+      message: /roll/,
+    },
     { name: "an empty file", body: "", status: 422, message: /empty/ },
-    { name: "too short for one analysis segment", body: good(2).toString("utf8").slice(0, 4000), status: 422, message: /one analysis segment needs/ },
-    { name: "a flight dated in the year 10000", body: good(3, { flownAt: "10000-01-01T00:00:00Z" }).toString("utf8"), status: 422, message: /flown_at/ },
+    {
+      name: "too short for one analysis segment",
+      body: good(2).toString("utf8").slice(0, 4000),
+      status: 422,
+      message: /one analysis segment needs/,
+    },
+    {
+      name: "a flight dated in the year 10000",
+      body: good(3, { flownAt: "10000-01-01T00:00:00Z" }).toString("utf8"),
+      status: 422,
+      message: /flown_at/,
+    },
   ];
   for (const c of cases) {
     it(`${c.name}: ${c.status}, with the place and the reason`, async () => {
@@ -59,7 +97,9 @@ describe("bad content is refused while it streams, and nothing is kept", () => {
 
   it("a file over the limit stops at the limit: 413, nothing kept", async () => {
     const before = counts();
-    const big = Buffer.from(demoCsv({ seed: 4, durationS: 200, sampleRateHz: 4000 }, { airframe: "HV-05" }));
+    const big = Buffer.from(
+      demoCsv({ seed: 4, durationS: 200, sampleRateHz: 4000 }, { airframe: "HV-05" }),
+    );
     expect(big.length).toBeGreaterThan(8 * 1024 * 1024);
     const r = await upload(app.url, big, { token, fileName: "hv-05-big.csv" });
     expect(r.status).toBe(413);
@@ -71,7 +111,11 @@ describe("good uploads", () => {
   it("six parallel uploads of the same new bytes all get the one log, five marked duplicate", async () => {
     const before = counts();
     const bytes = good(21);
-    const answers = await Promise.all(Array.from({ length: 6 }, () => upload(app.url, bytes, { token, fileName: "hv-05-same.csv", chunkBytes: 64 * 1024 })));
+    const answers = await Promise.all(
+      Array.from({ length: 6 }, () =>
+        upload(app.url, bytes, { token, fileName: "hv-05-same.csv", chunkBytes: 64 * 1024 }),
+      ),
+    );
     // The per-caller limit (4 at once) may refuse some with 429; the rest share one log.
     const ok = answers.filter((a) => a.status === 200).map((a) => a.json());
     const refused = answers.filter((a) => a.status === 429);
@@ -103,12 +147,18 @@ describe("aborted and excess uploads", () => {
     const before = counts();
     const bytes = good(31);
     for (const cut of [10, 70_000, Math.floor(bytes.length / 2)]) {
-      const r = await upload(app.url, bytes, { token, fileName: "hv-05-cut.csv", chunkBytes: 16 * 1024, cutAfter: cut });
+      const r = await upload(app.url, bytes, {
+        token,
+        fileName: "hv-05-cut.csv",
+        chunkBytes: 16 * 1024,
+        cutAfter: cut,
+      });
       expect(r.status).toBe(0);
     }
     // The server notices the dropped socket asynchronously.
     const deadline = Date.now() + 5000;
-    while (Date.now() < deadline && JSON.stringify(counts()) !== JSON.stringify(before)) await new Promise((r) => setTimeout(r, 100));
+    while (Date.now() < deadline && JSON.stringify(counts()) !== JSON.stringify(before))
+      await new Promise((r) => setTimeout(r, 100));
     expect(counts()).toEqual(before);
     expect(app.output()).not.toMatch(/uncaughtException|unhandledRejection/);
     // and it still answers
@@ -119,13 +169,28 @@ describe("aborted and excess uploads", () => {
   it("a fifth upload at once from one token is refused with 429 and Retry-After; the others go through", async () => {
     const bytes = [41, 42, 43, 44, 45].map((s) => good(s));
     // Four slow uploads hold their slots (the body trickles in), the fifth arrives meanwhile.
-    const slow = bytes.slice(0, 4).map((b) => upload(app.url, b, { token, fileName: "hv-05-slow.csv", chunkBytes: 16 * 1024, pauseMs: 100 }));
+    const slow = bytes
+      .slice(0, 4)
+      .map((b) =>
+        upload(app.url, b, {
+          token,
+          fileName: "hv-05-slow.csv",
+          chunkBytes: 16 * 1024,
+          pauseMs: 100,
+        }),
+      );
     // Each running upload has its temporary file: wait until all four are streaming.
     const deadline = Date.now() + 20_000;
-    while (filesUnder(join(app.dataDir, "uploads")).filter((f) => f.includes("incoming-")).length < 4 && Date.now() < deadline) {
+    while (
+      filesUnder(join(app.dataDir, "uploads")).filter((f) => f.includes("incoming-")).length < 4 &&
+      Date.now() < deadline
+    ) {
       await new Promise((r) => setTimeout(r, 50));
     }
-    const fifth = await upload(app.url, bytes[4] ?? Buffer.alloc(0), { token, fileName: "hv-05-fifth.csv" });
+    const fifth = await upload(app.url, bytes[4] ?? Buffer.alloc(0), {
+      token,
+      fileName: "hv-05-fifth.csv",
+    });
     expect(fifth.status).toBe(429);
     expect(Number(fifth.headers["retry-after"])).toBeGreaterThan(0);
     expect(String(fifth.json().error)).toMatch(/uploads running/);
@@ -133,6 +198,8 @@ describe("aborted and excess uploads", () => {
     expect(rest.map((r) => r.status)).toEqual([200, 200, 200, 200]);
     // another token of the same team is not held up by the first one's uploads
     const other = addToken(app.dataDir);
-    expect((await upload(app.url, good(46), { token: other, fileName: "hv-05-other.csv" })).status).toBe(200);
+    expect(
+      (await upload(app.url, good(46), { token: other, fileName: "hv-05-other.csv" })).status,
+    ).toBe(200);
   });
 });

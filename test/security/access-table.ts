@@ -22,23 +22,51 @@ export const PAGES: Record<string, AccessRule> = {
   "/signin": { minimum: "public", token: false, what: "sign-in screen" },
   "/": { minimum: "viewer", token: false, what: "inspection queue" },
   "/fleet": { minimum: "viewer", token: false, what: "fleet" },
-  "/airframes/[id]": { minimum: "viewer", token: false, teamResource: true, what: "airframe screen" },
+  "/airframes/[id]": {
+    minimum: "viewer",
+    token: false,
+    teamResource: true,
+    what: "airframe screen",
+  },
   "/logs/[id]": { minimum: "viewer", token: false, teamResource: true, what: "log screen" },
   "/upload": { minimum: "viewer", token: false, what: "upload screen (uploading needs pilot)" },
   "/parts": { minimum: "viewer", token: false, what: "parts" },
   "/events": { minimum: "viewer", token: false, what: "events and heats" },
-  "/team": { minimum: "viewer", token: false, what: "team screen (members and tokens shown to owners)" },
+  "/team": {
+    minimum: "viewer",
+    token: false,
+    what: "team screen (members and tokens shown to owners)",
+  },
   "/welcome": { minimum: "signed-in", token: false, what: "invitations for a person in no team" },
 };
 
 /** Route handlers as "METHOD path" (the path as in the build manifest). */
 export const ROUTES: Record<string, AccessRule> = {
-  "GET /api/auth/[...nextauth]": { minimum: "public", token: false, what: "sign-in machinery (next-auth)" },
+  "GET /api/auth/[...nextauth]": {
+    minimum: "public",
+    token: false,
+    what: "sign-in machinery (next-auth)",
+  },
   "GET /api/v1/queue": { minimum: "viewer", token: true, what: "API: inspection queue" },
-  "GET /api/v1/airframes/[name]": { minimum: "viewer", token: true, teamResource: true, what: "API: one airframe's record" },
-  "GET /api/v1/airframes/[name]/history": { minimum: "viewer", token: true, teamResource: true, what: "API: one airframe's history export" },
+  "GET /api/v1/airframes/[name]": {
+    minimum: "viewer",
+    token: true,
+    teamResource: true,
+    what: "API: one airframe's record",
+  },
+  "GET /api/v1/airframes/[name]/history": {
+    minimum: "viewer",
+    token: true,
+    teamResource: true,
+    what: "API: one airframe's history export",
+  },
   "POST /api/v1/logs": { minimum: "pilot", token: true, what: "API: upload a log" },
-  "GET /api/v1/logs/[id]": { minimum: "viewer", token: true, teamResource: true, what: "API: one log's status" },
+  "GET /api/v1/logs/[id]": {
+    minimum: "viewer",
+    token: true,
+    teamResource: true,
+    what: "API: one log's status",
+  },
 };
 
 /** Server actions by exported name. */
@@ -66,10 +94,24 @@ export const ACTIONS: Record<string, AccessRule> = {
   confirmTokenAction: { minimum: "owner", token: false, what: "confirm a paused API token" },
   changePasswordAction: { minimum: "viewer", token: false, what: "change your own password" },
   switchTeamAction: { minimum: "viewer", token: false, what: "switch team" },
-  answerInvitationAction: { minimum: "signed-in", token: false, what: "accept / decline an invitation" },
+  answerInvitationAction: {
+    minimum: "signed-in",
+    token: false,
+    what: "accept / decline an invitation",
+  },
 };
 
-export const PRINCIPALS = ["anonymous", "garbage token", "revoked token", "valid token", "other team's owner", "viewer", "pilot", "tech", "owner"] as const;
+export const PRINCIPALS = [
+  "anonymous",
+  "garbage token",
+  "revoked token",
+  "valid token",
+  "other team's owner",
+  "viewer",
+  "pilot",
+  "tech",
+  "owner",
+] as const;
 export type Principal = (typeof PRINCIPALS)[number];
 
 /** Whether the principal may use the entry, for the team whose records the suite addresses. */
@@ -103,7 +145,13 @@ export function accessTableMarkdown(): string {
     ...Object.values(ROUTES).filter((r) => r.minimum !== "public"),
     ...Object.values(ACTIONS),
   ];
-  const lines = [`| what | ${cols.map((c) => c.label).join(" | ")} |`, `|---|${cols.map(() => "---").join("|")}|`];
-  for (const r of rows) lines.push(`| ${r.what} | ${cols.map((c) => (expectedAllowed(r, c.who) ? "yes" : "–")).join(" | ")} |`);
+  const lines = [
+    `| what | ${cols.map((c) => c.label).join(" | ")} |`,
+    `|---|${cols.map(() => "---").join("|")}|`,
+  ];
+  for (const r of rows)
+    lines.push(
+      `| ${r.what} | ${cols.map((c) => (expectedAllowed(r, c.who) ? "yes" : "–")).join(" | ")} |`,
+    );
   return lines.join("\n");
 }

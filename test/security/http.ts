@@ -26,7 +26,8 @@ export class Client {
       if (!pair || eq < 0) continue;
       const name = pair.slice(0, eq).trim();
       const value = pair.slice(eq + 1).trim();
-      if (value === "" || /max-age=0|expires=thu, 01 jan 1970/i.test(line)) this.cookies.delete(name);
+      if (value === "" || /max-age=0|expires=thu, 01 jan 1970/i.test(line))
+        this.cookies.delete(name);
       else this.cookies.set(name, value);
     }
     return r;
@@ -47,7 +48,12 @@ export interface SignInResult {
 }
 
 /** Signs in through next-auth's own endpoints, as the sign-in form does. */
-export async function signIn(client: Client, email: string, password: string, extraHeaders: Record<string, string> = {}): Promise<SignInResult> {
+export async function signIn(
+  client: Client,
+  email: string,
+  password: string,
+  extraHeaders: Record<string, string> = {},
+): Promise<SignInResult> {
   const csrf = (await (await client.fetch("/api/auth/csrf")).json()) as { csrfToken: string };
   const body = new URLSearchParams({ email, password, csrfToken: csrf.csrfToken, json: "true" });
   const r = await client.fetch("/api/auth/callback/credentials", {
@@ -78,7 +84,9 @@ export async function signOut(client: Client): Promise<void> {
 
 // React's own encoder for server-action arguments (the Flight reply format), from Next's bundle.
 const require = createRequire(import.meta.url);
-const flight = require("next/dist/compiled/react-server-dom-turbopack/client.edge") as { encodeReply: (v: unknown) => Promise<FormData | string> };
+const flight = require("next/dist/compiled/react-server-dom-turbopack/client.edge") as {
+  encodeReply: (v: unknown) => Promise<FormData | string>;
+};
 
 export interface BuiltAction {
   id: string;
@@ -89,11 +97,15 @@ export interface BuiltAction {
 
 /** Every server action of the build, from `.next/server/server-reference-manifest.json`. */
 export function builtActions(root: string): BuiltAction[] {
-  const manifest = JSON.parse(readFileSync(join(root, ".next", "server", "server-reference-manifest.json"), "utf8")) as {
+  const manifest = JSON.parse(
+    readFileSync(join(root, ".next", "server", "server-reference-manifest.json"), "utf8"),
+  ) as {
     node: Record<string, { workers: Record<string, unknown>; exportedName: string }>;
   };
   return Object.entries(manifest.node).map(([id, entry]) => {
-    const pages = Object.keys(entry.workers).map(pageUrl).filter((p) => !p.includes("["));
+    const pages = Object.keys(entry.workers)
+      .map(pageUrl)
+      .filter((p) => !p.includes("["));
     return { id, name: entry.exportedName, page: pages[0] ?? "/" };
   });
 }
@@ -111,23 +123,43 @@ export function pageUrl(entry: string): string {
 
 /** Pages and route handlers of the build, from `.next/server/app-paths-manifest.json`. */
 export function builtPaths(root: string): { pages: string[]; routes: string[] } {
-  const manifest = JSON.parse(readFileSync(join(root, ".next", "server", "app-paths-manifest.json"), "utf8")) as Record<string, string>;
+  const manifest = JSON.parse(
+    readFileSync(join(root, ".next", "server", "app-paths-manifest.json"), "utf8"),
+  ) as Record<string, string>;
   const keys = Object.keys(manifest).filter((k) => !k.startsWith("/_"));
-  return { pages: keys.filter((k) => k.endsWith("/page")).map(pageUrl), routes: keys.filter((k) => k.endsWith("/route")).map(pageUrl) };
+  return {
+    pages: keys.filter((k) => k.endsWith("/page")).map(pageUrl),
+    routes: keys.filter((k) => k.endsWith("/route")).map(pageUrl),
+  };
 }
 
 /** Calls a server action the way the browser does, with an ActionForm's (previous state, form). */
-export async function callAction(client: Client, action: BuiltAction, fields: Record<string, string> = {}, origin?: string): Promise<{ status: number; text: string }> {
+export async function callAction(
+  client: Client,
+  action: BuiltAction,
+  fields: Record<string, string> = {},
+  origin?: string,
+): Promise<{ status: number; text: string }> {
   const form = new FormData();
   for (const [k, v] of Object.entries(fields)) form.set(k, v);
   const body = await flight.encodeReply([{ ok: false, message: "" }, form]);
   const r = await client.fetch(action.page, {
     method: "POST",
-    headers: { "next-action": action.id, origin: origin ?? client.base, accept: "text/x-component" },
+    headers: {
+      "next-action": action.id,
+      origin: origin ?? client.base,
+      accept: "text/x-component",
+    },
     body,
   });
   return { status: r.status, text: await r.text() };
 }
 
 /** The sentences with which the guard refuses (lib/server/guard.ts, lib/server/authorize.ts, lib/server/sessions.ts). */
-export const REFUSALS = [/Sign in first\./, /Your session has ended/, /This needs the \w+ role or higher/, /came from another site/, /not a member of any team/];
+export const REFUSALS = [
+  /Sign in first\./,
+  /Your session has ended/,
+  /This needs the \w+ role or higher/,
+  /came from another site/,
+  /not a member of any team/,
+];

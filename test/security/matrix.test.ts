@@ -2,7 +2,16 @@ import { readFileSync } from "node:fs";
 import { chromium } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { demoCsv } from "@/lib/demo/demo-csv";
-import { ACTIONS, accessTableMarkdown, expectedAllowed, PAGES, PRINCIPALS, ROUTES, type AccessRule, type Principal } from "./access-table";
+import {
+  ACTIONS,
+  accessTableMarkdown,
+  expectedAllowed,
+  PAGES,
+  PRINCIPALS,
+  ROUTES,
+  type AccessRule,
+  type Principal,
+} from "./access-table";
 import { ALPHA, BRAVO, startWithTwoTeams, type Fixture } from "./fixture";
 import { builtActions, builtPaths, callAction, Client, REFUSALS } from "./http";
 
@@ -40,9 +49,20 @@ function clientFor(who: Principal): Client {
 
 /** Markers of a team's records that must never reach someone outside that team. */
 function foreignMarkers(who: Principal): string[] {
-  const alpha = [ALPHA.team, ALPHA.airframe, ALPHA.part, ALPHA.event, ...Object.values(f.emails.alpha)];
+  const alpha = [
+    ALPHA.team,
+    ALPHA.airframe,
+    ALPHA.part,
+    ALPHA.event,
+    ...Object.values(f.emails.alpha),
+  ];
   const bravo = [BRAVO.team, BRAVO.airframe, BRAVO.part, f.emails.bravoOwner];
-  return who === "other team's owner" || who === "anonymous" || who === "garbage token" || who === "revoked token" ? alpha : bravo;
+  return who === "other team's owner" ||
+    who === "anonymous" ||
+    who === "garbage token" ||
+    who === "revoked token"
+    ? alpha
+    : bravo;
 }
 
 function fill(path: string): string {
@@ -57,7 +77,8 @@ async function classifyPage(c: Client, path: string): Promise<{ outcome: Outcome
   const body = await r.text();
   if (r.status === 200) return { outcome: "allowed", body };
   const location = r.headers.get("location") ?? "";
-  if (r.status >= 300 && r.status < 400 && /\/signin|\/welcome/.test(location)) return { outcome: "denied", body };
+  if (r.status >= 300 && r.status < 400 && /\/signin|\/welcome/.test(location))
+    return { outcome: "denied", body };
   if ([401, 403, 404].includes(r.status)) return { outcome: "denied", body };
   return { outcome: `broken: ${r.status} ${location}`, body };
 }
@@ -83,8 +104,14 @@ describe("access matrix: every page, route handler and server action of the buil
   it("the one table covers exactly what the build contains", () => {
     const { pages, routes } = builtPaths(process.cwd());
     expect(pages.sort()).toEqual(Object.keys(PAGES).sort());
-    expect([...new Set(routes)].sort()).toEqual([...new Set(Object.keys(ROUTES).map((k) => k.split(" ")[1]))].sort());
-    expect(builtActions(process.cwd()).map((a) => a.name).sort()).toEqual(Object.keys(ACTIONS).sort());
+    expect([...new Set(routes)].sort()).toEqual(
+      [...new Set(Object.keys(ROUTES).map((k) => k.split(" ")[1]))].sort(),
+    );
+    expect(
+      builtActions(process.cwd())
+        .map((a) => a.name)
+        .sort(),
+    ).toEqual(Object.keys(ACTIONS).sort());
   });
 
   it("the README's roles section is the table", () => {
@@ -96,13 +123,24 @@ describe("access matrix: every page, route handler and server action of the buil
     const leaks: string[] = [];
     let allowed = 0;
     let denied = 0;
-    const check = (kind: string, name: string, rule: AccessRule, who: Principal, outcome: Outcome, body: string, asked = "") => {
+    const check = (
+      kind: string,
+      name: string,
+      rule: AccessRule,
+      who: Principal,
+      outcome: Outcome,
+      body: string,
+      asked = "",
+    ) => {
       const expected = expectedAllowed(rule, who) ? "allowed" : "denied";
-      if (outcome !== expected) wrong.push(`${kind} ${name} × ${who}: expected ${expected}, got ${outcome}`);
+      if (outcome !== expected)
+        wrong.push(`${kind} ${name} × ${who}: expected ${expected}, got ${outcome}`);
       if (outcome === "allowed") allowed++;
       else denied++;
       // A "not found" may repeat what the caller asked for (an airframe's name): that is no leak.
-      for (const m of foreignMarkers(who)) if (body.includes(m) && !asked.includes(m)) leaks.push(`${kind} ${name} × ${who}: answer contains "${m}"`);
+      for (const m of foreignMarkers(who))
+        if (body.includes(m) && !asked.includes(m))
+          leaks.push(`${kind} ${name} × ${who}: answer contains "${m}"`);
     };
     const actions = builtActions(process.cwd());
     for (const who of PRINCIPALS) {
@@ -127,22 +165,33 @@ describe("access matrix: every page, route handler and server action of the buil
       }
     }
     const cells = allowed + denied;
-    console.log(`access matrix: ${cells} cells tested (${PRINCIPALS.length} principals × ${cells / PRINCIPALS.length} entries), ${allowed} allowed, ${denied} denied`);
+    console.log(
+      `access matrix: ${cells} cells tested (${PRINCIPALS.length} principals × ${cells / PRINCIPALS.length} entries), ${allowed} allowed, ${denied} denied`,
+    );
     expect(wrong).toEqual([]);
     expect(leaks).toEqual([]);
-    expect(cells).toBe(PRINCIPALS.length * (Object.keys(PAGES).length + Object.keys(ROUTES).length + actions.length));
+    expect(cells).toBe(
+      PRINCIPALS.length * (Object.keys(PAGES).length + Object.keys(ROUTES).length + actions.length),
+    );
   }, 240_000);
 
   it("another team's owner cannot act on this team's records by id (not found, nothing changes)", async () => {
     const byName = new Map(builtActions(process.cwd()).map((a) => [a.name, a]));
     const c = f.sessions.bravoOwner;
-    const pilotMembership = await f.services.db.membership.findFirstOrThrow({ where: { teamId: f.alpha.teamId, role: "pilot" } });
-    const token = await f.services.db.apiToken.findFirstOrThrow({ where: { teamId: f.alpha.teamId, revokedAt: null } });
+    const pilotMembership = await f.services.db.membership.findFirstOrThrow({
+      where: { teamId: f.alpha.teamId, role: "pilot" },
+    });
+    const token = await f.services.db.apiToken.findFirstOrThrow({
+      where: { teamId: f.alpha.teamId, revokedAt: null },
+    });
     const attempts: [string, Record<string, string>][] = [
       ["removeMemberAction", { membershipId: pilotMembership.id }],
       ["changeRoleAction", { membershipId: pilotMembership.id, role: "viewer" }],
       ["revokeTokenAction", { tokenId: token.id }],
-      ["setAirframeStatusAction", { airframeId: f.alpha.airframeId, status: "grounded", note: "x" }],
+      [
+        "setAirframeStatusAction",
+        { airframeId: f.alpha.airframeId, status: "grounded", note: "x" },
+      ],
       ["setPartStatusAction", { partId: f.alpha.partId, status: "scrapped" }],
       ["switchTeamAction", { teamId: f.alpha.teamId }],
     ];
@@ -152,42 +201,119 @@ describe("access matrix: every page, route handler and server action of the buil
       const { text } = await callAction(c, action, fields);
       expect(text, name).toMatch(/was not found|not a member of that team/);
     }
-    expect((await f.services.db.membership.findUnique({ where: { id: pilotMembership.id } }))?.role).toBe("pilot");
-    expect((await f.services.db.apiToken.findUnique({ where: { id: token.id } }))?.revokedAt).toBeNull();
-    expect((await f.services.db.airframe.findUnique({ where: { id: f.alpha.airframeId } }))?.status).toBe("ready");
-    expect((await f.services.db.part.findUnique({ where: { id: f.alpha.partId } }))?.status).toBe("stock");
+    expect(
+      (await f.services.db.membership.findUnique({ where: { id: pilotMembership.id } }))?.role,
+    ).toBe("pilot");
+    expect(
+      (await f.services.db.apiToken.findUnique({ where: { id: token.id } }))?.revokedAt,
+    ).toBeNull();
+    expect(
+      (await f.services.db.airframe.findUnique({ where: { id: f.alpha.airframeId } }))?.status,
+    ).toBe("ready");
+    expect((await f.services.db.part.findUnique({ where: { id: f.alpha.partId } }))?.status).toBe(
+      "stock",
+    );
   });
 });
 
 describe("stored XSS (ASVS 4.0 §5.3.3): payloads in every stored text field, file names and log metadata are escaped", () => {
-  const payload = (field: string) => `<img src=x onerror=alert('hcx-${field}')>"><script>alert('hcx-${field}')</script><svg onload=alert('hcx-${field}')>`;
+  const payload = (field: string) =>
+    `<img src=x onerror=alert('hcx-${field}')>"><script>alert('hcx-${field}')</script><svg onload=alert('hcx-${field}')>`;
   const RAW = [/<img src=x onerror/i, /<script>alert\(/i, /<svg onload/i, /href="javascript:/i];
 
   it("renders every payload as text on every screen", async () => {
     const s = f.services;
     const owner = f.alpha.owner;
     const tech = f.alpha.tech;
-    const af = await s.createAirframe(tech, { name: "XSS-1", frameDesign: payload("frameDesign"), serial: payload("serial"), notes: payload("airframeNotes") });
-    const [part] = await s.createParts(tech, { kind: "motor", model: payload("partModel"), label: payload("partLabel"), supplier: payload("supplier"), cost: null, acquiredAt: null, lifeFlights: null, lifeMinutes: null, notes: payload("partNotes"), quantity: 1 });
-    await s.swapPart(tech, { airframeId: af.id, position: payload("position"), newPartId: part?.id ?? "", reason: payload("swapReason"), removedStatus: "stock", at: new Date() });
-    await s.logCrash(f.alpha.pilot, { airframeId: af.id, at: new Date(), heatId: null, severity: "minor", positions: [payload("crashPosition")], note: payload("crashNote"), ground: false });
-    await s.recordInspection(tech, { airframeId: af.id, at: new Date(), findings: payload("findings"), checklist: [payload("checklist")], returnToService: true });
-    const event = await s.createEvent(tech, { name: payload("eventName"), venue: payload("venue"), startsAt: new Date(Date.now() + 86_400_000) });
-    const heat = await s.createHeat(tech, { eventId: event.id, name: payload("heatName"), startsAt: new Date(Date.now() + 86_400_000) });
+    const af = await s.createAirframe(tech, {
+      name: "XSS-1",
+      frameDesign: payload("frameDesign"),
+      serial: payload("serial"),
+      notes: payload("airframeNotes"),
+    });
+    const [part] = await s.createParts(tech, {
+      kind: "motor",
+      model: payload("partModel"),
+      label: payload("partLabel"),
+      supplier: payload("supplier"),
+      cost: null,
+      acquiredAt: null,
+      lifeFlights: null,
+      lifeMinutes: null,
+      notes: payload("partNotes"),
+      quantity: 1,
+    });
+    await s.swapPart(tech, {
+      airframeId: af.id,
+      position: payload("position"),
+      newPartId: part?.id ?? "",
+      reason: payload("swapReason"),
+      removedStatus: "stock",
+      at: new Date(),
+    });
+    await s.logCrash(f.alpha.pilot, {
+      airframeId: af.id,
+      at: new Date(),
+      heatId: null,
+      severity: "minor",
+      positions: [payload("crashPosition")],
+      note: payload("crashNote"),
+      ground: false,
+    });
+    await s.recordInspection(tech, {
+      airframeId: af.id,
+      at: new Date(),
+      findings: payload("findings"),
+      checklist: [payload("checklist")],
+      returnToService: true,
+    });
+    const event = await s.createEvent(tech, {
+      name: payload("eventName"),
+      venue: payload("venue"),
+      startsAt: new Date(Date.now() + 86_400_000),
+    });
+    const heat = await s.createHeat(tech, {
+      eventId: event.id,
+      name: payload("heatName"),
+      startsAt: new Date(Date.now() + 86_400_000),
+    });
     await s.setHeatEntries(tech, heat.id, [af.id]);
     await s.saveProfile(f.alpha.pilot, payload("profileName"), "time=t, roll=gx, pitch=gy, yaw=gz");
     await s.createToken(owner, payload("tokenName"));
-    await s.inviteMember(owner, { email: "xss-invitee@example.test", name: payload("inviteeName"), role: "viewer", password: "gravel-pit-lantern-9" });
+    await s.inviteMember(owner, {
+      email: "xss-invitee@example.test",
+      name: payload("inviteeName"),
+      role: "viewer",
+      password: "gravel-pit-lantern-9",
+    });
     // A log whose file name and metadata carry payloads, uploaded as a pilot's script would.
-    const csv = demoCsv({ seed: 11, durationS: 4, airframeSeed: 3 }, { airframe: "XSS-1", flownAt: "2026-11-21T10:00:00Z", note: payload("logNote") }).replace("# note:", `# rig_extra: ${payload("logMetaKey")}\n# note:`);
+    const csv = demoCsv(
+      { seed: 11, durationS: 4, airframeSeed: 3 },
+      { airframe: "XSS-1", flownAt: "2026-11-21T10:00:00Z", note: payload("logNote") },
+    ).replace("# note:", `# rig_extra: ${payload("logMetaKey")}\n# note:`);
     const form = new FormData();
     form.set("airframe", "XSS-1");
     form.set("file", new Blob([csv]), `${payload("fileName")}.csv`);
-    const up = await fetch(`${f.app.url}/api/v1/logs`, { method: "POST", headers: { authorization: `Bearer ${f.alpha.token}` }, body: form });
+    const up = await fetch(`${f.app.url}/api/v1/logs`, {
+      method: "POST",
+      headers: { authorization: `Bearer ${f.alpha.token}` },
+      body: form,
+    });
     expect(up.status).toBe(200);
     const { logId } = (await up.json()) as { logId: string };
 
-    const pages = ["/", "/fleet", `/airframes/${af.id}`, `/logs/${logId}`, "/parts", `/parts?part=${part?.id ?? ""}`, "/parts?fitted=1", "/events", "/team", "/upload"];
+    const pages = [
+      "/",
+      "/fleet",
+      `/airframes/${af.id}`,
+      `/logs/${logId}`,
+      "/parts",
+      `/parts?part=${part?.id ?? ""}`,
+      "/parts?fitted=1",
+      "/events",
+      "/team",
+      "/upload",
+    ];
     let all = "";
     for (const p of pages) {
       const r = await f.sessions.owner.fetch(p);
@@ -197,10 +323,26 @@ describe("stored XSS (ASVS 4.0 §5.3.3): payloads in every stored text field, fi
       all += html;
     }
     // Each payload did reach a screen (as escaped text), so the checks above could have failed.
-    for (const field of ["frameDesign", "serial", "partModel", "supplier", "swapReason", "crashNote", "findings", "eventName", "venue", "heatName", "profileName", "tokenName", "fileName"]) {
+    for (const field of [
+      "frameDesign",
+      "serial",
+      "partModel",
+      "supplier",
+      "swapReason",
+      "crashNote",
+      "findings",
+      "eventName",
+      "venue",
+      "heatName",
+      "profileName",
+      "tokenName",
+      "fileName",
+    ]) {
       expect(all, field).toContain(`hcx-${field}`);
     }
-    const api = await fetch(`${f.app.url}/api/v1/airframes/XSS-1`, { headers: { authorization: `Bearer ${f.alpha.token}` } });
+    const api = await fetch(`${f.app.url}/api/v1/airframes/XSS-1`, {
+      headers: { authorization: `Bearer ${f.alpha.token}` },
+    });
     expect(api.headers.get("content-type")).toMatch(/^application\/json/);
     expect(api.headers.get("x-content-type-options")).toBe("nosniff");
   }, 120_000);
@@ -232,7 +374,8 @@ describe("security headers (ASVS 4.0 §14.4; MDN header reference)", () => {
       const r = await c.fetch(path);
       assertCommon(r.headers, path);
       expect(r.headers.get("strict-transport-security"), path).toBeNull();
-      const nonce = /'nonce-([^']+)'/.exec(r.headers.get("content-security-policy") ?? "")?.[1] ?? "";
+      const nonce =
+        /'nonce-([^']+)'/.exec(r.headers.get("content-security-policy") ?? "")?.[1] ?? "";
       nonces.add(nonce);
       const html = await r.text();
       const scripts = html.match(/<script\b[^>]*>/g) ?? [];
@@ -259,13 +402,25 @@ describe("security headers (ASVS 4.0 §14.4; MDN header reference)", () => {
   });
 
   it("the app's own pages run under the policy in Chromium with no violation", async () => {
-    const browser = await chromium.launch({ executablePath: "/usr/bin/chromium", args: ["--headless", "--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update", "--disable-sync", "--no-first-run"] });
+    const browser = await chromium.launch({
+      executablePath: "/usr/bin/chromium",
+      args: [
+        "--headless",
+        "--no-sandbox",
+        "--disable-gpu",
+        "--disable-background-networking",
+        "--disable-component-update",
+        "--disable-sync",
+        "--no-first-run",
+      ],
+    });
     try {
       const context = await browser.newContext();
       const page = await context.newPage();
       const violations: string[] = [];
       page.on("console", (m) => {
-        if (/Content Security Policy|Refused to (execute|load|apply)/i.test(m.text())) violations.push(m.text());
+        if (/Content Security Policy|Refused to (execute|load|apply)/i.test(m.text()))
+          violations.push(m.text());
       });
       await page.goto(`${f.app.url}/signin`);
       await page.fill("input[name=email]", f.emails.alpha.owner);

@@ -29,7 +29,16 @@ const action = (name: string) => {
 function logForm(name: string, seed: number): FormData {
   const form = new FormData();
   form.set("airframe", "AL-SECRET-1");
-  form.set("file", new Blob([demoCsv({ seed, durationS: 4, airframeSeed: 3 }, { airframe: "AL-SECRET-1", flownAt: "2026-11-22T10:00:00Z" })]), name);
+  form.set(
+    "file",
+    new Blob([
+      demoCsv(
+        { seed, durationS: 4, airframeSeed: 3 },
+        { airframe: "AL-SECRET-1", flownAt: "2026-11-22T10:00:00Z" },
+      ),
+    ]),
+    name,
+  );
   return form;
 }
 
@@ -40,17 +49,37 @@ describe("issue 7", () => {
     // A page on another port of the same host, and one with no Origin at all (ASVS §4.2.2, §13.2.3).
     for (const origin of [`http://127.0.0.1:1`, "http://evil.example.test", null]) {
       const headers: Record<string, string> = origin ? { origin } : {};
-      const r = await pilot.fetch("/api/v1/logs", { method: "POST", body: logForm("forged.csv", 21), headers });
+      const r = await pilot.fetch("/api/v1/logs", {
+        method: "POST",
+        body: logForm("forged.csv", 21),
+        headers,
+      });
       expect(r.status, String(origin)).toBe(403);
     }
     expect(await f.services.db.flightLog.count()).toBe(before);
-    const same = await pilot.fetch("/api/v1/logs", { method: "POST", body: logForm("own.csv", 22), headers: { origin: f.app.url } });
+    const same = await pilot.fetch("/api/v1/logs", {
+      method: "POST",
+      body: logForm("own.csv", 22),
+      headers: { origin: f.app.url },
+    });
     expect(same.status).toBe(200);
-    const token = await fetch(`${f.app.url}/api/v1/logs`, { method: "POST", body: logForm("script.csv", 23), headers: { authorization: `Bearer ${f.alpha.token}`, origin: "http://elsewhere.example.test" } });
+    const token = await fetch(`${f.app.url}/api/v1/logs`, {
+      method: "POST",
+      body: logForm("script.csv", 23),
+      headers: {
+        authorization: `Bearer ${f.alpha.token}`,
+        origin: "http://elsewhere.example.test",
+      },
+    });
     expect(token.status).toBe(200);
     expect(await f.services.db.flightLog.count()).toBe(before + 2);
     // Server actions follow the same rule.
-    const r = await callAction(f.sessions.tech, action("createEventAction"), { name: "forged event", venue: "", startsAt: "" }, "http://127.0.0.1:1");
+    const r = await callAction(
+      f.sessions.tech,
+      action("createEventAction"),
+      { name: "forged event", venue: "", startsAt: "" },
+      "http://127.0.0.1:1",
+    );
     expect(r.text).not.toContain("forged event added");
     expect(await f.services.db.event.count({ where: { name: "forged event" } })).toBe(0);
   });
@@ -66,7 +95,11 @@ describe("issue 7", () => {
     const mine = await signedIn(f.app.url, email, password("alpha-viewer"));
     const other = await signedIn(f.app.url, email, password("alpha-viewer"));
     const next = VIEWER_NEW_PASSWORD;
-    const r = await callAction(mine, action("changePasswordAction"), { current: password("alpha-viewer"), next, confirm: next });
+    const r = await callAction(mine, action("changePasswordAction"), {
+      current: password("alpha-viewer"),
+      next,
+      confirm: next,
+    });
     expect(r.text).toContain("Password changed; 2 other session(s)");
     expect((await other.fetch("/api/v1/queue")).status).toBe(401);
     expect((await mine.fetch("/api/v1/queue")).status).toBe(200);
@@ -84,7 +117,9 @@ describe("issue 7", () => {
     const signin = await (await fetch(`${f.app.url}/signin`)).text();
     expect(signin).not.toContain("pitwall-");
     expect(signin).not.toContain("demo-banner");
-    const user = await f.services.db.user.create({ data: { email: "owner@heatcheck.test", name: "demo", passwordHash: "x" } });
+    const user = await f.services.db.user.create({
+      data: { email: "owner@heatcheck.test", name: "demo", passwordHash: "x" },
+    });
     try {
       for (const [c, p] of [
         [new Client(f.app.url), "/signin"],
@@ -104,32 +139,65 @@ describe("issue 7", () => {
     const invite = action("inviteMemberAction");
     const existing = f.emails.bravoOwner;
     const unknown = "nobody-yet@example.test";
-    const a = await callAction(f.sessions.owner, invite, { email: existing, name: "Guess", role: "owner", password: "gravel-pit-lantern-9" });
-    const b = await callAction(f.sessions.owner, invite, { email: unknown, name: "Guess", role: "owner", password: "gravel-pit-lantern-9" });
-    const msg = (t: string, email: string) => /"message":"([^"]*)"/.exec(t)?.[1]?.replace(email, "EMAIL");
+    const a = await callAction(f.sessions.owner, invite, {
+      email: existing,
+      name: "Guess",
+      role: "owner",
+      password: "gravel-pit-lantern-9",
+    });
+    const b = await callAction(f.sessions.owner, invite, {
+      email: unknown,
+      name: "Guess",
+      role: "owner",
+      password: "gravel-pit-lantern-9",
+    });
+    const msg = (t: string, email: string) =>
+      /"message":"([^"]*)"/.exec(t)?.[1]?.replace(email, "EMAIL");
     expect(msg(a.text, existing)).toBeTruthy();
     expect(msg(a.text, existing)).toBe(msg(b.text, unknown));
     expect(a.text).not.toContain("bravo owner person");
-    expect(await f.services.db.membership.count({ where: { teamId: f.alpha.teamId, user: { email: existing } } })).toBe(0);
+    expect(
+      await f.services.db.membership.count({
+        where: { teamId: f.alpha.teamId, user: { email: existing } },
+      }),
+    ).toBe(0);
     // The invited person sees it, accepts, and only then is a member.
     const bravo = f.sessions.bravoOwner;
     const team = await (await bravo.fetch("/team")).text();
     const id = /name="invitationId" value="([^"]+)"/.exec(team)?.[1] ?? "";
     expect(id).not.toBe("");
-    await callAction(bravo, action("answerInvitationAction"), { invitationId: id, answer: "accept" });
-    expect(await f.services.db.membership.count({ where: { teamId: f.alpha.teamId, user: { email: existing } } })).toBe(1);
+    await callAction(bravo, action("answerInvitationAction"), {
+      invitationId: id,
+      answer: "accept",
+    });
+    expect(
+      await f.services.db.membership.count({
+        where: { teamId: f.alpha.teamId, user: { email: existing } },
+      }),
+    ).toBe(1);
   });
 
   it("7: a removed member's sessions end at once; the last owner cannot leave", async () => {
     const pilot = await signedIn(f.app.url, f.emails.alpha.pilot, password("alpha-pilot"));
-    const m = await f.services.db.membership.findFirstOrThrow({ where: { teamId: f.alpha.teamId, role: "pilot" } });
+    const m = await f.services.db.membership.findFirstOrThrow({
+      where: { teamId: f.alpha.teamId, role: "pilot" },
+    });
     await callAction(f.sessions.owner, action("removeMemberAction"), { membershipId: m.id });
     expect((await pilot.fetch("/api/v1/queue")).status).toBe(401);
-    const own = await f.services.db.membership.findFirstOrThrow({ where: { teamId: f.alpha.teamId, userId: f.alpha.owner.userId ?? "" } });
+    const own = await f.services.db.membership.findFirstOrThrow({
+      where: { teamId: f.alpha.teamId, userId: f.alpha.owner.userId ?? "" },
+    });
     // Bravo's owner joined Alpha as an owner in item 6; demote them so Alpha's owner is the last one.
-    const bravoInAlpha = await f.services.db.membership.findFirstOrThrow({ where: { teamId: f.alpha.teamId, user: { email: f.emails.bravoOwner } } });
-    await f.services.db.membership.update({ where: { id: bravoInAlpha.id }, data: { role: "viewer" } });
-    const r = await callAction(f.sessions.owner, action("removeMemberAction"), { membershipId: own.id });
+    const bravoInAlpha = await f.services.db.membership.findFirstOrThrow({
+      where: { teamId: f.alpha.teamId, user: { email: f.emails.bravoOwner } },
+    });
+    await f.services.db.membership.update({
+      where: { id: bravoInAlpha.id },
+      data: { role: "viewer" },
+    });
+    const r = await callAction(f.sessions.owner, action("removeMemberAction"), {
+      membershipId: own.id,
+    });
     expect(r.text).toContain("at least one owner");
     expect(await f.services.db.membership.findUnique({ where: { id: own.id } })).not.toBeNull();
   });
@@ -138,7 +206,11 @@ describe("issue 7", () => {
     const email = f.emails.bravoOwner;
     const c = await signedIn(f.app.url, email, password("bravo-owner"));
     const env = { ...process.env, DATABASE_URL: process.env.DATABASE_URL };
-    const run = (cmd: string) => execFileSync("npx", ["tsx", "--conditions=react-server", "scripts/accounts.ts", cmd, email], { env, encoding: "utf8" });
+    const run = (cmd: string) =>
+      execFileSync("npx", ["tsx", "--conditions=react-server", "scripts/accounts.ts", cmd, email], {
+        env,
+        encoding: "utf8",
+      });
     expect(run("disable")).toMatch(/disabled; [1-9]\d* open session\(s\) ended/);
     expect((await c.fetch("/api/v1/queue")).status).toBe(401);
     expect((await signIn(new Client(f.app.url), email, password("bravo-owner"))).ok).toBe(false);
@@ -149,12 +221,25 @@ describe("issue 7", () => {
   it("9: passwords over 72 bytes never sign in by their first 72; short and common new passwords are refused", async () => {
     const email = f.emails.alpha.tech;
     const seventyTwo = "p".repeat(72);
-    await f.services.db.user.update({ where: { email }, data: { passwordHash: await f.services.hashPassword(seventyTwo) } });
+    await f.services.db.user.update({
+      where: { email },
+      data: { passwordHash: await f.services.hashPassword(seventyTwo) },
+    });
     expect((await signIn(new Client(f.app.url), email, `${seventyTwo}-and-more`)).ok).toBe(false);
     expect((await signIn(new Client(f.app.url), email, seventyTwo)).ok).toBe(true);
     const tech = await signedIn(f.app.url, email, seventyTwo);
-    for (const next of ["short-pass", "qwertyuiopasdfgh", email, "            ", `${seventyTwo}x`]) {
-      const r = await callAction(tech, action("changePasswordAction"), { current: seventyTwo, next, confirm: next });
+    for (const next of [
+      "short-pass",
+      "qwertyuiopasdfgh",
+      email,
+      "            ",
+      `${seventyTwo}x`,
+    ]) {
+      const r = await callAction(tech, action("changePasswordAction"), {
+        current: seventyTwo,
+        next,
+        confirm: next,
+      });
       expect(r.text, next).not.toContain("Password changed");
     }
   });
@@ -166,12 +251,18 @@ describe("issue 7", () => {
     expect(recent).toContain("invite member");
     expect(recent).not.toMatch(/[\w.+-]+@[\w-]+\.[\w.]+/);
     const ownerView = await (await f.sessions.owner.fetch("/team")).text();
-    expect(ownerView.slice(ownerView.indexOf("Recent changes"))).toContain("nobody-yet@example.test");
+    expect(ownerView.slice(ownerView.indexOf("Recent changes"))).toContain(
+      "nobody-yet@example.test",
+    );
   });
 
   it("11: unknown and other teams' ids answer 404 with a not-found screen; bad addresses are not 500s", async () => {
     const owner = f.sessions.owner;
-    for (const p of ["/airframes/no-such-airframe", `/airframes/${f.bravo.airframeId}`, "/parts?part=no-such-part"]) {
+    for (const p of [
+      "/airframes/no-such-airframe",
+      `/airframes/${f.bravo.airframeId}`,
+      "/parts?part=no-such-part",
+    ]) {
       const r = await owner.fetch(p);
       expect(r.status, p).toBe(404);
       expect(await r.text(), p).toContain("Not found");
@@ -179,7 +270,9 @@ describe("issue 7", () => {
     const api = await owner.fetch("/api/v1/airframes/HV-0%25");
     expect(api.status).toBe(404);
     expect(((await api.json()) as { code: string }).code).toBe("not-found");
-    const cb = await fetch(`${f.app.url}/api/auth/signin?callbackUrl=javascript:alert(1)`, { redirect: "manual" });
+    const cb = await fetch(`${f.app.url}/api/auth/signin?callbackUrl=javascript:alert(1)`, {
+      redirect: "manual",
+    });
     expect(cb.status).toBe(400);
     const unknown = await fetch(`${f.app.url}/no/such/page`, { redirect: "manual" });
     expect([307, 404]).toContain(unknown.status);
@@ -190,7 +283,8 @@ describe("issue 7", () => {
     const email = f.emails.alpha.owner;
     const c = new Client(f.app.url);
     const results: string[] = [];
-    for (let i = 0; i < 6; i++) results.push((await signIn(c, email, `wrong-${i}-password-x`)).error ?? "ok");
+    for (let i = 0; i < 6; i++)
+      results.push((await signIn(c, email, `wrong-${i}-password-x`)).error ?? "ok");
     // Five free failures (wrong password), then the sixth is refused before any password check.
     expect(results.slice(0, 5)).toEqual(Array(5).fill("CredentialsSignin"));
     expect(results[5]).toMatch(/^Too many sign-in attempts: wait \d+ seconds?, then try again\.$/);
@@ -202,7 +296,12 @@ describe("issue 7", () => {
     // address waits, whatever X-Forwarded-For the client claims (it is dropped at start-up).
     let refused = 0;
     for (let i = 0; i < 24; i++) {
-      const r = await signIn(new Client(f.app.url), `spray-${i}@example.test`, "wrong-password-spray", { "x-forwarded-for": `10.0.0.${i}` });
+      const r = await signIn(
+        new Client(f.app.url),
+        `spray-${i}@example.test`,
+        "wrong-password-spray",
+        { "x-forwarded-for": `10.0.0.${i}` },
+      );
       if (r.error?.startsWith("Too many")) refused++;
     }
     expect(refused).toBeGreaterThanOrEqual(3);

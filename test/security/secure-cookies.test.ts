@@ -12,7 +12,11 @@ describe("team cookie behind HTTPS", () => {
       vi.resetModules();
       const secure = await import("@/lib/server/guard");
       expect(secure.TEAM_COOKIE).toBe("__Secure-hc-team");
-      expect(secure.TEAM_COOKIE_OPTIONS).toMatchObject({ secure: true, httpOnly: true, sameSite: "lax" });
+      expect(secure.TEAM_COOKIE_OPTIONS).toMatchObject({
+        secure: true,
+        httpOnly: true,
+        sameSite: "lax",
+      });
       process.env.NEXTAUTH_URL = "http://127.0.0.1:3000";
       vi.resetModules();
       const plain = await import("@/lib/server/guard");

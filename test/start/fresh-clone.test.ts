@@ -21,10 +21,16 @@ let startMs = 0;
 beforeAll(() => {
   workdir = mkdtempSync(join(tmpdir(), "heatcheck-clone-"));
   clone = join(workdir, "heatcheck");
-  const git = spawnSync("git", ["clone", "--quiet", "--no-local", root, clone], { encoding: "utf8" });
+  const git = spawnSync("git", ["clone", "--quiet", "--no-local", root, clone], {
+    encoding: "utf8",
+  });
   if (git.status !== 0) throw new Error(`git clone failed: ${git.stderr}`);
-  for (const artefact of ["generated", ".next", "data"]) expect(existsSync(join(clone, artefact))).toBe(false);
-  cpSync(join(root, "node_modules"), join(clone, "node_modules"), { recursive: true, verbatimSymlinks: true });
+  for (const artefact of ["generated", ".next", "data"])
+    expect(existsSync(join(clone, artefact))).toBe(false);
+  cpSync(join(root, "node_modules"), join(clone, "node_modules"), {
+    recursive: true,
+    verbatimSymlinks: true,
+  });
 }, 300_000);
 
 afterAll(async () => {
@@ -59,7 +65,12 @@ describe("a fresh clone", () => {
     expect(ranked).toHaveLength(9);
     // The demo story puts a damaged quad first, not a healthy one: the top row needs pulling.
     expect(html).toMatch(/class="queue-row (ground|inspect)"/);
-    const steps = app.output().split("\n").filter((l) => /^heatcheck: .* done in /.test(l));
-    console.log(`fresh clone → inspection queue visible: ${(startMs / 1000).toFixed(0)} s\n${steps.join("\n")}`);
+    const steps = app
+      .output()
+      .split("\n")
+      .filter((l) => /^heatcheck: .* done in /.test(l));
+    console.log(
+      `fresh clone → inspection queue visible: ${(startMs / 1000).toFixed(0)} s\n${steps.join("\n")}`,
+    );
   }, 960_000);
 });

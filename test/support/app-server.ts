@@ -57,7 +57,8 @@ export interface StartOptions {
 export async function startApp(options: StartOptions = {}): Promise<AppServer> {
   const port = options.port ?? (await freePort());
   const url = `http://127.0.0.1:${port}`;
-  const dataDir = options.dataDir === undefined ? mkdtempSync(join(tmpdir(), "heatcheck-app-")) : options.dataDir;
+  const dataDir =
+    options.dataDir === undefined ? mkdtempSync(join(tmpdir(), "heatcheck-app-")) : options.dataDir;
   const env: NodeJS.ProcessEnv = {
     ...process.env,
     NEXT_TELEMETRY_DISABLED: "1",
@@ -71,9 +72,11 @@ export async function startApp(options: StartOptions = {}): Promise<AppServer> {
   if (dataDir === null) delete env.HEATCHECK_DATA_DIR;
   // vitest sets NODE_ENV=test and its own markers; npm start must see the environment a user's
   // shell has (NODE_ENV=production would even make npm install skip the dev dependencies).
-  for (const key of ["NODE_ENV", "VITEST", "VITEST_MODE", "VITEST_POOL_ID", "VITEST_WORKER_ID"]) delete env[key];
+  for (const key of ["NODE_ENV", "VITEST", "VITEST_MODE", "VITEST_POOL_ID", "VITEST_WORKER_ID"])
+    delete env[key];
   // An option set to undefined removes that variable (the fresh-clone test keeps README defaults).
-  for (const [key, value] of Object.entries(options.env ?? {})) if (value === undefined) delete env[key];
+  for (const [key, value] of Object.entries(options.env ?? {}))
+    if (value === undefined) delete env[key];
   const child: ChildProcess = spawn("sh", ["-c", options.command ?? "npm start"], {
     cwd: options.cwd ?? process.cwd(),
     env,
@@ -93,13 +96,15 @@ export async function startApp(options: StartOptions = {}): Promise<AppServer> {
         // already gone
       }
       const deadline = Date.now() + 15_000;
-      while (exited === undefined && Date.now() < deadline) await new Promise((r) => setTimeout(r, 100));
+      while (exited === undefined && Date.now() < deadline)
+        await new Promise((r) => setTimeout(r, 100));
       if (exited === undefined) process.kill(-child.pid, "SIGKILL");
     }
   };
   const deadline = Date.now() + (options.timeoutMs ?? 300_000);
   for (;;) {
-    if (exited !== undefined) throw new Error(`npm start exited (code ${exited}) before serving:\n${output}`);
+    if (exited !== undefined)
+      throw new Error(`npm start exited (code ${exited}) before serving:\n${output}`);
     try {
       const r = await fetch(`${url}/signin`);
       if (r.ok) break;
@@ -125,5 +130,14 @@ export async function startApp(options: StartOptions = {}): Promise<AppServer> {
     }
     await exitedWithin(10_000);
   };
-  return { url, dataDir: dataDir ?? join(options.cwd ?? process.cwd(), "data"), env, output: () => output, stop, pid: child.pid ?? 0, kill, exited: exitedWithin };
+  return {
+    url,
+    dataDir: dataDir ?? join(options.cwd ?? process.cwd(), "data"),
+    env,
+    output: () => output,
+    stop,
+    pid: child.pid ?? 0,
+    kill,
+    exited: exitedWithin,
+  };
 }

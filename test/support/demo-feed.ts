@@ -22,10 +22,23 @@ const BLOCK = 4096;
  * A demo log fed to the analyser with a test's own change applied to every block (a broken
  * telemetry channel, a stuck gyro …): generated cases for the unit tests, not demo data.
  */
-export function analyzeWith(options: DemoLogOptions, transform: (b: FeedBlock) => void, settings: Partial<AnalysisSettings> = {}): LogAnalysis {
+export function analyzeWith(
+  options: DemoLogOptions,
+  transform: (b: FeedBlock) => void,
+  settings: Partial<AnalysisSettings> = {},
+): LogAnalysis {
   const g = new DemoLogGenerator(options);
   const analyzer = new LogAnalyzer(settings);
-  const info: LogInfo = { metadata: {}, headers: [], map: [], guesses: [], sampleRateHz: g.sampleRateHz, hasThrottle: true, motors: g.motors, hasSetpoint: false };
+  const info: LogInfo = {
+    metadata: {},
+    headers: [],
+    map: [],
+    guesses: [],
+    sampleRateHz: g.sampleRateHz,
+    hasThrottle: true,
+    motors: g.motors,
+    hasSetpoint: false,
+  };
   analyzer.begin(info);
   const make = () => new Float64Array(BLOCK);
   const gyro: [Float64Array, Float64Array, Float64Array] = [make(), make(), make()];
@@ -34,10 +47,34 @@ export function analyzeWith(options: DemoLogOptions, transform: (b: FeedBlock) =
   let samples = 0;
   while (!g.done) {
     const n = g.next(buf);
-    transform({ n, start: samples, sampleRateHz: g.sampleRateHz, timeS: buf.timeS, gyro, throttle: buf.throttle, rpm: buf.rpm });
+    transform({
+      n,
+      start: samples,
+      sampleRateHz: g.sampleRateHz,
+      timeS: buf.timeS,
+      gyro,
+      throttle: buf.throttle,
+      rpm: buf.rpm,
+    });
     samples += n;
-    analyzer.block({ length: n, timeS: buf.timeS, gyro, throttle: buf.throttle, rpm: buf.rpm, setpoint });
+    analyzer.block({
+      length: n,
+      timeS: buf.timeS,
+      gyro,
+      throttle: buf.throttle,
+      rpm: buf.rpm,
+      setpoint,
+    });
   }
-  const summary: ReadSummary = { info, samples, durationS: samples / g.sampleRateHz, gaps: [], gapCount: 0, droppedRows: 0, droppedLines: [], bytes: 0 };
+  const summary: ReadSummary = {
+    info,
+    samples,
+    durationS: samples / g.sampleRateHz,
+    gaps: [],
+    gapCount: 0,
+    droppedRows: 0,
+    droppedLines: [],
+    bytes: 0,
+  };
   return analyzer.finish(summary);
 }

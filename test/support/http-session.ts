@@ -21,7 +21,10 @@ export class HttpSession {
   }
 
   async get(path: string): Promise<Response> {
-    const r = await fetch(`${this.baseUrl}${path}`, { headers: { cookie: this.cookieHeader }, redirect: "manual" });
+    const r = await fetch(`${this.baseUrl}${path}`, {
+      headers: { cookie: this.cookieHeader },
+      redirect: "manual",
+    });
     this.keep(r);
     return r;
   }
@@ -32,8 +35,17 @@ export class HttpSession {
     const { csrfToken } = (await csrf.json()) as { csrfToken: string };
     const r = await fetch(`${this.baseUrl}/api/auth/callback/credentials`, {
       method: "POST",
-      headers: { "content-type": "application/x-www-form-urlencoded", cookie: this.cookieHeader, origin: this.baseUrl },
-      body: new URLSearchParams({ csrfToken, email, password, callbackUrl: `${this.baseUrl}/` }).toString(),
+      headers: {
+        "content-type": "application/x-www-form-urlencoded",
+        cookie: this.cookieHeader,
+        origin: this.baseUrl,
+      },
+      body: new URLSearchParams({
+        csrfToken,
+        email,
+        password,
+        callbackUrl: `${this.baseUrl}/`,
+      }).toString(),
       redirect: "manual",
     });
     this.keep(r);

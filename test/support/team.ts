@@ -10,7 +10,9 @@ export async function makeTeam(name: string): Promise<Record<Role, Actor>> {
   const team = await db.team.create({ data: { name } });
   const out = {} as Record<Role, Actor>;
   for (const role of ["owner", "tech", "pilot", "viewer"] as const) {
-    const user = await db.user.create({ data: { email: `${role}@${team.id}.test`, name: `${name} ${role}`, passwordHash: "x" } });
+    const user = await db.user.create({
+      data: { email: `${role}@${team.id}.test`, name: `${name} ${role}`, passwordHash: "x" },
+    });
     await db.membership.create({ data: { userId: user.id, teamId: team.id, role } });
     out[role] = await actorForUser(user.id, team.id, "viewer");
   }

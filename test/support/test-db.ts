@@ -10,7 +10,10 @@ import { join } from "node:path";
 export function freshDatabase(label: string): { dir: string; url: string } {
   const dir = mkdtempSync(join(tmpdir(), `heatcheck-${label}-`));
   const url = `file:${join(dir, "test.db")}`;
-  execFileSync("npx", ["prisma", "migrate", "deploy"], { env: { ...process.env, DATABASE_URL: url }, stdio: "pipe" });
+  execFileSync("npx", ["prisma", "migrate", "deploy"], {
+    env: { ...process.env, DATABASE_URL: url },
+    stdio: "pipe",
+  });
   process.env.DATABASE_URL = url;
   process.env.HEATCHECK_DATA_DIR = dir;
   process.env.HEATCHECK_WORKERS = "0";

@@ -1,5 +1,13 @@
 import { describe, expect, it } from "vitest";
-import { linearRgbToOklab, linearToSrgb, oklabToLinearRgb, rampColour, rampLinear, srgbToLinear, type Rgb } from "@/lib/view/colour-ramp";
+import {
+  linearRgbToOklab,
+  linearToSrgb,
+  oklabToLinearRgb,
+  rampColour,
+  rampLinear,
+  srgbToLinear,
+  type Rgb,
+} from "@/lib/view/colour-ramp";
 
 // Colour-vision simulation: G. M. Machado, M. M. Oliveira, L. A. F. Fernandes, "A physiologically-
 // based model for simulation of color vision deficiency", IEEE TVCG 15(6), 2009 — the severity-1.0
@@ -37,7 +45,8 @@ function simulate(m: readonly (readonly [number, number, number])[], [r, g, b]: 
   return [row(0), row(1), row(2)];
 }
 
-const dist = (a: readonly number[], b: readonly number[]) => Math.hypot(...a.map((v, i) => v - (b[i] ?? 0)));
+const dist = (a: readonly number[], b: readonly number[]) =>
+  Math.hypot(...a.map((v, i) => v - (b[i] ?? 0)));
 
 describe("OKLab conversion (Ottosson 2020)", () => {
   it("white is L = 1, a = b = 0 and black is L = 0 (tolerance 1e-4, the article's matrices are rounded)", () => {
@@ -48,13 +57,18 @@ describe("OKLab conversion (Ottosson 2020)", () => {
     expect(linearRgbToOklab([0, 0, 0])[0]).toBe(0);
   });
   it("round-trips linear sRGB to 2e-5 (the published forward and inverse matrices are each rounded to 10 digits)", () => {
-    for (const c of [[0.2, 0.5, 0.9], [1, 0, 0], [0.01, 0.9, 0.3]] as const) {
+    for (const c of [
+      [0.2, 0.5, 0.9],
+      [1, 0, 0],
+      [0.01, 0.9, 0.3],
+    ] as const) {
       expect(dist(oklabToLinearRgb(linearRgbToOklab(c)), c)).toBeLessThan(2e-5);
     }
   });
   it("the sRGB transfer function is inverted by its own inverse (IEC 61966-2-1), to 1e-7", () => {
     // Not exact at the knee: the standard's thresholds 0.04045 and 0.0031308 meet only to ~3e-8.
-    for (const v of [0, 0.002, 0.04045, 0.5, 1]) expect(Math.abs(linearToSrgb(srgbToLinear(v)) - v)).toBeLessThan(1e-7);
+    for (const v of [0, 0.002, 0.04045, 0.5, 1])
+      expect(Math.abs(linearToSrgb(srgbToLinear(v)) - v)).toBeLessThan(1e-7);
   });
 });
 

@@ -21,7 +21,13 @@ import { readLog, type LogSink } from "@/lib/logs/read-log";
 const FS = 8000;
 
 /** Steady-state amplitude gain of `step` for a sine at f: drive, drop the transient, project on sin and cos. */
-function sineGain(step: (x: number) => number, f: number, fs = FS, seconds = 4, settleS = 1): number {
+function sineGain(
+  step: (x: number) => number,
+  f: number,
+  fs = FS,
+  seconds = 4,
+  settleS = 1,
+): number {
   const n = Math.round(seconds * fs);
   const skip = Math.round(settleS * fs);
   let a = 0;
@@ -97,7 +103,12 @@ describe("flight-controller filters (RBJ Audio EQ Cookbook biquads, one-pole low
   it("the one-pole low-pass follows its closed form, and is within 0.5 dB of −3 dB at its corner for fc ≪ fs", () => {
     // Closed form of y += k(x − y): |H|² = k² / (1 − 2(1−k)cos ω + (1−k)²). The −3 dB of the
     // continuous RC filter at fc is approached as fc/fs → 0 (at fc/fs = 1/40 it reads −3.3 dB).
-    for (const [fc, f] of [[150, 150], [200, 200], [200, 50], [250, 900]] as const) {
+    for (const [fc, f] of [
+      [150, 150],
+      [200, 200],
+      [200, 50],
+      [250, 900],
+    ] as const) {
       const lp = new OnePoleLowPass(fc, FS);
       const g = sineGain((x) => lp.step(x), f);
       expect(Math.abs(g - Math.sqrt(OnePoleLowPass.powerGain(fc, FS, f)))).toBeLessThan(0.002);
@@ -114,7 +125,12 @@ describe("frame modes: damped resonators", () => {
   // H(s) = 2ζωn·s / (s² + 2ζωn·s + ωn²). Its power gain is exactly 1/2 at ω = ωn(√(1+ζ²) ± ζ), so
   // its half-power bandwidth is 2ζ·fn (Thomson, Theory of Vibration with Applications, ch. 3).
   it("peaks at fn with unit gain and has its half-power points at fn(√(1+ζ²) ± ζ)", () => {
-    for (const [fn, zeta] of [[168, 0.03], [296, 0.035], [612, 0.05], [90, 0.07]] as const) {
+    for (const [fn, zeta] of [
+      [168, 0.03],
+      [296, 0.035],
+      [612, 0.05],
+      [90, 0.07],
+    ] as const) {
       const gain = (f: number) => {
         const r = new ModalResonator(fn, zeta, FS);
         return sineGain((x) => r.step(x), f, FS, 6, 2);
@@ -155,7 +171,13 @@ describe("frame modes: damped resonators", () => {
 });
 
 describe("ESC telemetry: steps, hold, delay, noise, dropouts", () => {
-  const spec = { updateHz: 250, delayS: 0.03, stepRpm: 50, noiseFraction: 0, dropouts: [[2, 2.4]] as [number, number][] };
+  const spec = {
+    updateHz: 250,
+    delayS: 0.03,
+    stepRpm: 50,
+    noiseFraction: 0,
+    dropouts: [[2, 2.4]] as [number, number][],
+  };
   const ramp = (t: number) => 6000 + 10000 * t;
   const run = () => {
     const tm = new EscTelemetry(spec, FS, mulberry32(1));
@@ -196,7 +218,11 @@ describe("ESC telemetry: steps, hold, delay, noise, dropouts", () => {
   });
 
   it("adds noise of the stated relative size (standard deviation within 10 %)", () => {
-    const tm = new EscTelemetry({ ...spec, noiseFraction: 0.01, stepRpm: 1, dropouts: [] }, FS, mulberry32(3));
+    const tm = new EscTelemetry(
+      { ...spec, noiseFraction: 0.01, stepRpm: 1, dropouts: [] },
+      FS,
+      mulberry32(3),
+    );
     const values: number[] = [];
     for (let i = 0; i < 20 * FS; i++) {
       const v = tm.step(20000);
@@ -227,7 +253,8 @@ describe("the simulated flight and its logs", () => {
   it("writes gyro values in whole 16-bit steps over ±2000 deg/s (4000/65536 deg/s)", () => {
     const lsb = 4000 / 65536;
     for (const g of log8k?.gyro ?? []) {
-      for (let i = 0; i < g.length; i += 13) expect(Math.abs((g[i] ?? 0) / lsb - Math.round((g[i] ?? 0) / lsb))).toBeLessThan(1e-6);
+      for (let i = 0; i < g.length; i += 13)
+        expect(Math.abs((g[i] ?? 0) / lsb - Math.round((g[i] ?? 0) / lsb))).toBeLessThan(1e-6);
     }
   });
 
@@ -272,14 +299,24 @@ describe("the simulated flight and its logs", () => {
   });
 
   it("battery sag lowers the rpm at a given throttle over the flight", () => {
-    const long = simulateFlight(airframe, { seed: 9, durationS: 20, mix: "baseline", batterySag: 0.1 }, null, [1000]).logs[0];
+    const long = simulateFlight(
+      airframe,
+      { seed: 9, durationS: 20, mix: "baseline", batterySag: 0.1 },
+      null,
+      [1000],
+    ).logs[0];
     // rpm ∝ supply·(idle + (max − idle)·√throttle): the supply factor at the start and at the end.
     const supply = (from: number, to: number) => {
       let s = 0;
       let c = 0;
       for (let i = from; i < to; i++) {
         const thr = long?.throttle[i] ?? 0;
-        const r = ((long?.trueRpm[0]?.[i] ?? 0) + (long?.trueRpm[1]?.[i] ?? 0) + (long?.trueRpm[2]?.[i] ?? 0) + (long?.trueRpm[3]?.[i] ?? 0)) / 4;
+        const r =
+          ((long?.trueRpm[0]?.[i] ?? 0) +
+            (long?.trueRpm[1]?.[i] ?? 0) +
+            (long?.trueRpm[2]?.[i] ?? 0) +
+            (long?.trueRpm[3]?.[i] ?? 0)) /
+          4;
         s += r / (airframe.idleRpm + (airframe.maxRpm - airframe.idleRpm) * Math.sqrt(thr));
         c++;
       }
@@ -295,7 +332,8 @@ describe("the simulated flight and its logs", () => {
 
   it("flight mixes differ and every phase kind appears in the hard mix", () => {
     const kinds = new Set(flightSchedule("hard", 60, 1, 0.3).map((p) => p.kind));
-    for (const k of ["hover", "cruise", "punch", "wash", "flip", "roll"]) expect(kinds.has(k as never)).toBe(true);
+    for (const k of ["hover", "cruise", "punch", "wash", "flip", "roll"])
+      expect(kinds.has(k as never)).toBe(true);
     expect(FLIGHT_MIXES.length).toBeGreaterThan(3);
   });
 });
@@ -311,7 +349,11 @@ describe("damage classes and their truth", () => {
         expect(truth.axes.length + truth.freqsHz.length + (truth.motor ? 1 : 0)).toBeGreaterThan(0);
       }
     }
-    const { airframe: cracked, truth } = applyDamage(airframe, { kind: "crack", severity: 2, seed: 4 });
+    const { airframe: cracked, truth } = applyDamage(airframe, {
+      kind: "crack",
+      severity: 2,
+      seed: 4,
+    });
     const f = truth.freqsHz[0] ?? 0;
     const before = airframe.modes.map((m) => m.naturalHz);
     expect(before.some((b) => Math.abs(f / b - 0.92) < 1e-9)).toBe(true);
@@ -323,13 +365,15 @@ describe("damage classes and their truth", () => {
     const [o, i] = bearingDefectOrders(8, 0.25);
     expect(o).toBeCloseTo(3, 12);
     expect(i).toBeCloseTo(5, 12);
-    for (const x of airframe.bearingOrders) expect(Math.abs(x - Math.round(x))).toBeGreaterThan(0.05);
+    for (const x of airframe.bearingOrders)
+      expect(Math.abs(x - Math.round(x))).toBeGreaterThan(0.05);
   });
 });
 
 describe("log files: canonical and foreign headers", () => {
   const airframe = fleetAirframe(3);
-  const log = simulateFlight(airframe, { seed: 2, durationS: 3, mix: "race" }, null, [2000]).logs[0];
+  const log = simulateFlight(airframe, { seed: 2, durationS: 3, mix: "race" }, null, [2000])
+    .logs[0];
 
   async function readBack(bytes: Uint8Array, mapText: string | undefined) {
     const rows: number[][] = [];
@@ -337,29 +381,51 @@ describe("log files: canonical and foreign headers", () => {
       begin: () => undefined,
       gap: () => undefined,
       block: (b) => {
-        for (let i = 0; i < b.length; i++) rows.push([b.timeS[i] ?? 0, b.gyro[0][i] ?? 0, b.gyro[1][i] ?? 0, b.gyro[2][i] ?? 0, b.throttle?.[i] ?? -1, ...b.rpm.map((r) => r[i] ?? 0)]);
+        for (let i = 0; i < b.length; i++)
+          rows.push([
+            b.timeS[i] ?? 0,
+            b.gyro[0][i] ?? 0,
+            b.gyro[1][i] ?? 0,
+            b.gyro[2][i] ?? 0,
+            b.throttle?.[i] ?? -1,
+            ...b.rpm.map((r) => r[i] ?? 0),
+          ]);
       },
     };
-    await readLog(bytesSource(bytes), sink, { map: mapText ? parseColumnMap(mapText) : undefined, allowGuess: false });
+    await readLog(bytesSource(bytes), sink, {
+      map: mapText ? parseColumnMap(mapText) : undefined,
+      allowGuess: false,
+    });
     return rows;
   }
 
-  it.each(["canonical", "foreign-a", "foreign-b"] as const)("%s reads back to the same samples (units converted by the reader)", async (style) => {
-    if (!log) throw new Error("no log");
-    const written = writeLogCsv(log, style, { airframe: airframe.name, flownAt: "2026-11-28T14:05:00Z", note: "test" });
-    expect(written.map === undefined).toBe(style === "canonical");
-    const rows = await readBack(written.bytes, written.map);
-    expect(rows.length).toBe(log.timeS.length);
-    // Tolerances from the written precision: time 1 µs; gyro 3 decimals deg/s or 6 decimals rad/s
-    // (≤ 0.0005 deg/s); throttle 4 decimals, 2 of percent or 1 of µs (≤ 0.0005); rpm 1 rev/min or 0.01 Hz (0.6 rev/min).
-    for (let i = 0; i < rows.length; i += 7) {
-      const r = rows[i] ?? [];
-      expect(Math.abs((r[0] ?? 0) - (log.timeS[i] ?? 0))).toBeLessThan(1.01e-6);
-      for (let a = 0; a < 3; a++) expect(Math.abs((r[1 + a] ?? 0) - (log.gyro[a as 0 | 1 | 2][i] ?? 0))).toBeLessThan(5.01e-4);
-      expect(Math.abs((r[4] ?? 0) - (log.throttle[i] ?? 0))).toBeLessThan(5.01e-4);
-      for (let m = 0; m < log.rpm.length; m++) expect(Math.abs((r[5 + m] ?? 0) - (log.rpm[m]?.[i] ?? 0))).toBeLessThan(0.61);
-    }
-  });
+  it.each(["canonical", "foreign-a", "foreign-b"] as const)(
+    "%s reads back to the same samples (units converted by the reader)",
+    async (style) => {
+      if (!log) throw new Error("no log");
+      const written = writeLogCsv(log, style, {
+        airframe: airframe.name,
+        flownAt: "2026-11-28T14:05:00Z",
+        note: "test",
+      });
+      expect(written.map === undefined).toBe(style === "canonical");
+      const rows = await readBack(written.bytes, written.map);
+      expect(rows.length).toBe(log.timeS.length);
+      // Tolerances from the written precision: time 1 µs; gyro 3 decimals deg/s or 6 decimals rad/s
+      // (≤ 0.0005 deg/s); throttle 4 decimals, 2 of percent or 1 of µs (≤ 0.0005); rpm 1 rev/min or 0.01 Hz (0.6 rev/min).
+      for (let i = 0; i < rows.length; i += 7) {
+        const r = rows[i] ?? [];
+        expect(Math.abs((r[0] ?? 0) - (log.timeS[i] ?? 0))).toBeLessThan(1.01e-6);
+        for (let a = 0; a < 3; a++)
+          expect(Math.abs((r[1 + a] ?? 0) - (log.gyro[a as 0 | 1 | 2][i] ?? 0))).toBeLessThan(
+            5.01e-4,
+          );
+        expect(Math.abs((r[4] ?? 0) - (log.throttle[i] ?? 0))).toBeLessThan(5.01e-4);
+        for (let m = 0; m < log.rpm.length; m++)
+          expect(Math.abs((r[5 + m] ?? 0) - (log.rpm[m]?.[i] ?? 0))).toBeLessThan(0.61);
+      }
+    },
+  );
 
   it("a foreign file analyses like the canonical one (PSD within 0.1 dB where it matters)", async () => {
     if (!log) throw new Error("no log");
@@ -367,7 +433,8 @@ describe("log files: canonical and foreign headers", () => {
     const a = writeLogCsv(log, "canonical", meta);
     const b = writeLogCsv(log, "foreign-b", meta);
     const ra = (await analyzeLog(bytesSource(a.bytes))).analysis;
-    const rb = (await analyzeLog(bytesSource(b.bytes), { map: parseColumnMap(b.map ?? "") })).analysis;
+    const rb = (await analyzeLog(bytesSource(b.bytes), { map: parseColumnMap(b.map ?? "") }))
+      .analysis;
     const pa = ra.axes.pitch.psd;
     const pb = rb.axes.pitch.psd;
     expect(pb.length).toBe(pa.length);
@@ -385,7 +452,9 @@ describe("log files: canonical and foreign headers", () => {
       const d = Math.floor(rand() * 7);
       // toFixed rounds the binary value half-up on its exact decimal expansion; Math.round on the
       // scaled value can differ by one unit in the last place at exact ties: allow that.
-      expect(Math.abs(Number(fixed(v, d)) - Number(v.toFixed(d)))).toBeLessThanOrEqual(1.0001 / 10 ** d);
+      expect(Math.abs(Number(fixed(v, d)) - Number(v.toFixed(d)))).toBeLessThanOrEqual(
+        1.0001 / 10 ** d,
+      );
       expect(fixed(v, d).split(".")[1]?.length ?? 0).toBe(d);
     }
   });

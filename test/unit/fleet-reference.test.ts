@@ -13,7 +13,12 @@ import {
 // rule (Iglewicz & Hoaglin, "How to Detect and Handle Outliers", ASQC 1993). Every expected value
 // below is worked by hand in the comment beside it. The frequencies are invented test inputs.
 
-const member = (id: string, yawHz: number, pitchHz = 238, extra: Partial<FleetMember> = {}): FleetMember => ({
+const member = (
+  id: string,
+  yawHz: number,
+  pitchHz = 238,
+  extra: Partial<FleetMember> = {},
+): FleetMember => ({
   id,
   name: id,
   modes: [
@@ -49,7 +54,11 @@ describe("the fleet reference", () => {
 
   it("with 3 airframes it is enough (the stated minimum)", () => {
     expect(MIN_FLEET_AIRFRAMES).toBe(3);
-    const ref = buildFleetReference("test frame", [member("A", 308), member("B", 310), member("C", 312)]);
+    const ref = buildFleetReference("test frame", [
+      member("A", 308),
+      member("B", 310),
+      member("C", 312),
+    ]);
     expect(ref.enough).toBe(true);
     // yaw: median 310; |x − 310| = [2, 0, 2] → MAD 2 → σ = 1.4826 · 2 = 2.9652
     const yaw = ref.modes.find((m) => m.axis === "yaw");
@@ -71,25 +80,45 @@ describe("the fleet reference", () => {
     // at 1 % of 310 = 3.1 Hz; z = (290 − 310)/3.1 = −6.45 < −3.5; deviation −6.45 % (watch..inspect).
     const ref = buildFleetReference("test frame", members, "HV-07");
     expect(ref.airframes).toBe(7);
-    const notes = judgeAgainstFleet(ref, members[6] as FleetMember, { what: "baseline", ...labels });
+    const notes = judgeAgainstFleet(ref, members[6] as FleetMember, {
+      what: "baseline",
+      ...labels,
+    });
     expect(notes).toHaveLength(1);
-    expect(notes[0]).toMatchObject({ kind: "mode-off-fleet", axis: "yaw", fleetHz: 310, deviationPct: -6.5, z: -6.5, severity: "watch" });
-    expect(notes[0]?.text).toContain("HV-07's baseline yaw (torsion) mode at 290 Hz sits 6.5 % below the median of 7 sister airframes of test frame (310 Hz)");
+    expect(notes[0]).toMatchObject({
+      kind: "mode-off-fleet",
+      axis: "yaw",
+      fleetHz: 310,
+      deviationPct: -6.5,
+      z: -6.5,
+      severity: "watch",
+    });
+    expect(notes[0]?.text).toContain(
+      "HV-07's baseline yaw (torsion) mode at 290 Hz sits 6.5 % below the median of 7 sister airframes of test frame (310 Hz)",
+    );
     expect(notes[0]?.text).toContain("was the baseline taken after damage");
 
     // A sister that sits 0.6 % off (z = −2/3.1 = −0.65) is not questioned.
     const hv03 = buildFleetReference("test frame", members, "HV-03");
-    expect(judgeAgainstFleet(hv03, members[2] as FleetMember, { what: "baseline", ...labels })).toEqual([]);
+    expect(
+      judgeAgainstFleet(hv03, members[2] as FleetMember, { what: "baseline", ...labels }),
+    ).toEqual([]);
     expect(Math.abs(robustZ(308, 310, 1.4826, 3.1))).toBeLessThan(OUTLIER_Z);
   });
 
   it("judges a log of an airframe without a baseline, never by the outlier's own values", () => {
-    const members = [308, 309, 310, 311, 312].map((f, i) => member(`A${i}`, f, 238, { levels: [{ throttleBand: 3, axis: "roll", band: 4, db: -10 + (i % 2) }] }));
+    const members = [308, 309, 310, 311, 312].map((f, i) =>
+      member(`A${i}`, f, 238, {
+        levels: [{ throttleBand: 3, axis: "roll", band: 4, db: -10 + (i % 2) }],
+      }),
+    );
     const ref = buildFleetReference("test frame", members);
     // levels: [-10, -9, -10, -9, -10] → median −10, MAD 0 → σ floored at 1.5 dB
     const level = ref.levels.find((l) => l.axis === "roll");
     expect(level).toMatchObject({ medianDb: -10, sigmaDb: 0, airframes: 5 });
-    const subject = member("NEW", 280, 238, { levels: [{ throttleBand: 3, axis: "roll", band: 4, db: -2 }] });
+    const subject = member("NEW", 280, 238, {
+      levels: [{ throttleBand: 3, axis: "roll", band: 4, db: -2 }],
+    });
     const notes = judgeAgainstFleet(ref, subject, { what: "log", ...labels });
     // yaw: (280 − 310)/310 = −9.68 % → inspect (6 % ≤ x < 12 %); roll band: +8 dB, z = 8/1.5 = 5.3 → inspect
     expect(notes.map((n) => [n.kind, n.severity])).toEqual([
@@ -102,7 +131,12 @@ describe("the fleet reference", () => {
   it("says when a mode every sister has is missing", () => {
     const members = [308, 309, 310, 311].map((f, i) => member(`A${i}`, f));
     const ref = buildFleetReference("test frame", members);
-    const subject: FleetMember = { id: "S", name: "S", modes: [{ axis: "pitch", freqHz: 238 }], levels: [] };
+    const subject: FleetMember = {
+      id: "S",
+      name: "S",
+      modes: [{ axis: "pitch", freqHz: 238 }],
+      levels: [],
+    };
     const notes = judgeAgainstFleet(ref, subject, { what: "log", ...labels });
     expect(notes).toHaveLength(1);
     expect(notes[0]).toMatchObject({ kind: "mode-missing", axis: "yaw", severity: "watch" });

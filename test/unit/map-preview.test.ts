@@ -25,12 +25,20 @@ describe("the map draft", () => {
     const { mapText, problem } = draftToMap(draft);
     expect(mapText).toBe(text);
     expect(problem).toBe("the map needs a column for yaw");
-    expect(draftToMap({ ...draft, yaw: { header: "turn rate rad", unit: "rad/s" } }).problem).toBeNull();
+    expect(
+      draftToMap({ ...draft, yaw: { header: "turn rate rad", unit: "rad/s" } }).problem,
+    ).toBeNull();
   });
   it("keeps the good entries when one is bad, and names a column bound twice", () => {
     const draft = draftOf("time=t|us,bogus=x|y,roll=a|deg/s");
     expect(Object.keys(draft)).toEqual(["time", "roll"]);
-    expect(draftToMap({ ...draft, pitch: { header: "a", unit: "deg/s" }, yaw: { header: "c", unit: "deg/s" } }).problem).toMatch(/binds the column "a" twice/);
+    expect(
+      draftToMap({
+        ...draft,
+        pitch: { header: "a", unit: "deg/s" },
+        yaw: { header: "c", unit: "deg/s" },
+      }).problem,
+    ).toMatch(/binds the column "a" twice/);
   });
   it("lists at least four motors and every needed field", () => {
     const keys = mapKeys(2).map((k) => k.key);
@@ -50,7 +58,9 @@ describe("the head's first rows and the guesses they allow", () => {
   });
   it("tells time by a unit in the name and rising values, motor speed by esc and Hz", () => {
     const p = proposeColumnMap(["clock us", "rate X rad", "esc1 Hz"], previewRows(text, 2));
-    expect(p.guesses[0]).toBe('"clock us" read as time in us (us in the name and its values only rise)');
+    expect(p.guesses[0]).toBe(
+      '"clock us" read as time in us (us in the name and its values only rise)',
+    );
     expect(p.map.find((b) => b.channel.kind === "rpm")?.header).toBe("esc1 Hz");
     // Without rows nothing tells that "clock us" is a clock.
     expect(proposeColumnMap(["clock us", "rate X rad"]).missing).toContain("time");

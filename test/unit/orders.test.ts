@@ -11,8 +11,19 @@ function set(a: Float64Array | undefined, i: number, v: number): void {
 }
 
 /** Runs the tracker over generated samples; returns per block the powers and mask reasons. */
-function track(fs: number, seconds: number, rpmOf: (m: number, t: number, i: number) => number, gyroOf: (t: number, angles: number[]) => number, motors = 1) {
-  const blocks: { power: number[][][]; side: number[][][]; masked: (MaskReason | null)[]; rotationHz: number[] }[] = [];
+function track(
+  fs: number,
+  seconds: number,
+  rpmOf: (m: number, t: number, i: number) => number,
+  gyroOf: (t: number, angles: number[]) => number,
+  motors = 1,
+) {
+  const blocks: {
+    power: number[][][];
+    side: number[][][];
+    masked: (MaskReason | null)[];
+    rotationHz: number[];
+  }[] = [];
   const orders = trackedOrders(3);
   const tracker = new OrderTracker(fs, motors, orders, 40, 0.45 * fs, TELEMETRY_LIMITS, (b) =>
     blocks.push({
@@ -33,7 +44,8 @@ function track(fs: number, seconds: number, rpmOf: (m: number, t: number, i: num
     const r = Array.from({ length: motors }, (_, m) => rpmOf(m, t, i));
     r.forEach((v, m) => set(rpm[m], i, v));
     set(g[0], i, gyroOf(t, angles));
-    for (let m = 0; m < motors; m++) angles[m] = (angles[m] ?? 0) + (2 * Math.PI * (r[m] ?? 0)) / 60 / fs;
+    for (let m = 0; m < motors; m++)
+      angles[m] = (angles[m] ?? 0) + (2 * Math.PI * (r[m] ?? 0)) / 60 / fs;
   }
   tracker.push(n, timeS, g, null, rpm);
   return { blocks, orders };
@@ -42,7 +54,12 @@ function track(fs: number, seconds: number, rpmOf: (m: number, t: number, i: num
 describe("order tracking (computed order tracking; tone power A²/2 of a sine of amplitude A)", () => {
   it("a tone at 2× and one at 2.8× of a motor at 24 000 rpm: exact level at 2×, the non-integer tone found in the order spectrum between", () => {
     // 400 Hz rotation at 4 kHz. Amplitudes 2 and 0.5 deg/s: powers 2 and 0.125 (deg/s)².
-    const { blocks, orders } = track(4000, 2.048, () => 24000, (_t, [a = 0]) => 2 * Math.cos(2 * a + 0.3) + 0.5 * Math.cos(2.8 * a + 1.1));
+    const { blocks, orders } = track(
+      4000,
+      2.048,
+      () => 24000,
+      (_t, [a = 0]) => 2 * Math.cos(2 * a + 0.3) + 0.5 * Math.cos(2.8 * a + 1.1),
+    );
     const mid = blocks[3];
     if (!mid) throw new Error("no block");
     const at = (q: number) => mid.power[0]?.[orders.indexOf(q)]?.[0] ?? Number.NaN;
@@ -65,7 +82,13 @@ describe("order tracking (computed order tracking; tone power A²/2 of a sine of
   });
 
   it("two motors 2 % apart: each one's 1× is its own (tone on motor 2 only)", () => {
-    const { blocks, orders } = track(4000, 2.048, (m) => (m === 0 ? 24000 : 24480), (_t, [, b = 0]) => Math.cos(b), 2);
+    const { blocks, orders } = track(
+      4000,
+      2.048,
+      (m) => (m === 0 ? 24000 : 24480),
+      (_t, [, b = 0]) => Math.cos(b),
+      2,
+    );
     const mid = blocks[3];
     const one = orders.indexOf(1);
     const m1 = mid?.power[0]?.[one]?.[0] ?? Number.NaN;
@@ -87,28 +110,49 @@ describe("order tracking (computed order tracking; tone power A²/2 of a sine of
       ["held at one value", (t) => (t > 0.25 && t < 0.55 ? 21000 : base(t)), "stuck"],
     ];
     for (const [name, bad, reason] of cases) {
-      const { blocks } = track(fs, 1.024, (m, t, i) => (m === 1 ? bad(t, i) : base(t)), (_t, [a = 0]) => Math.cos(a), 2);
+      const { blocks } = track(
+        fs,
+        1.024,
+        (m, t, i) => (m === 1 ? bad(t, i) : base(t)),
+        (_t, [a = 0]) => Math.cos(a),
+        2,
+      );
       const masked = blocks.map((b) => b.masked[1]);
       expect(masked, name).toContain(reason);
       // The good motor is never masked, and a masked block has no level.
-      expect(blocks.every((b) => b.masked[0] === null), name).toBe(true);
+      expect(
+        blocks.every((b) => b.masked[0] === null),
+        name,
+      ).toBe(true);
       const i = masked.indexOf(reason);
       expect(Number.isNaN(blocks[i]?.power[1]?.[1]?.[0] ?? 0), name).toBe(true);
     }
     // Telemetry held for 8 samples then stepping (ESC telemetry at 500 Hz) is believable.
-    const { blocks } = track(fs, 1.024, (_m, t, i) => Math.round(base(Math.floor(i / 8) * 8 / fs) / 50) * 50, () => 0, 2);
+    const { blocks } = track(
+      fs,
+      1.024,
+      (_m, t, i) => Math.round(base((Math.floor(i / 8) * 8) / fs) / 50) * 50,
+      () => 0,
+      2,
+    );
     expect(blocks.every((b) => b.masked.every((x) => x === null))).toBe(true);
   });
 });
 
 describe("untrustworthy rpm is not vibration (issue 8 item 2)", () => {
   const DURATION_S = 30;
-  const baseline = () => buildBaseline([analyzeDemoLog({ seed: 101, durationS: DURATION_S }).analysis, analyzeDemoLog({ seed: 102, durationS: DURATION_S }).analysis]);
+  const baseline = () =>
+    buildBaseline([
+      analyzeDemoLog({ seed: 101, durationS: DURATION_S }).analysis,
+      analyzeDemoLog({ seed: 102, durationS: DURATION_S }).analysis,
+    ]);
 
   it("a healthy airframe whose motor 2 telemetry drops to 0 in bursts stays ok, the masked share reported", () => {
     // Generated case: 40 ms of 0 every 0.6 s on motor 2 (about 1 block in 2 touched).
     const a = analyzeWith({ seed: 7, durationS: DURATION_S }, (b) => {
-      for (let i = 0; i < b.n; i++) if ((b.start + i) % Math.round(0.6 * b.sampleRateHz) < 0.04 * b.sampleRateHz) set(b.rpm[1], i, 0);
+      for (let i = 0; i < b.n; i++)
+        if ((b.start + i) % Math.round(0.6 * b.sampleRateHz) < 0.04 * b.sampleRateHz)
+          set(b.rpm[1], i, 0);
     });
     const m2 = a.motors.find((m) => m.motor === 2);
     expect(m2?.maskedBlocks?.zero).toBeGreaterThan(10);
@@ -123,7 +167,9 @@ describe("untrustworthy rpm is not vibration (issue 8 item 2)", () => {
       for (let i = 0; i < b.n; i++) if ((b.start + i) % 1000 < 20) set(b.rpm[2], i, 0);
     });
     const r = compareWithBaseline(a, baseline());
-    expect(r.notCompared.find((n) => n.what === "motor 3 orders")?.reason).toMatch(/could not be believed in \d+ % of the log \(reads 0\)/);
+    expect(r.notCompared.find((n) => n.what === "motor 3 orders")?.reason).toMatch(
+      /could not be believed in \d+ % of the log \(reads 0\)/,
+    );
     expect(r.findings.some((f) => f.motor === 3)).toBe(false);
   });
 });

@@ -1,6 +1,12 @@
 import { readFileSync } from "node:fs";
 import { describe, expect, it } from "vitest";
-import { localMaxima, peakProminence, peakWidth, quadraticVertex, spectralPeaks } from "@/lib/signal/peaks";
+import {
+  localMaxima,
+  peakProminence,
+  peakWidth,
+  quadraticVertex,
+  spectralPeaks,
+} from "@/lib/signal/peaks";
 
 // Source: scipy.signal.peak_prominences documentation example values, as listed in
 // shared/reference-values.md (computed with scipy): x = [0, 3, 1, 2, 0].
@@ -62,7 +68,8 @@ describe("quadratic interpolation (J. O. Smith, Spectral Audio Signal Processing
     for (let k = 0; k <= n / 2; k++) {
       // Hann main lobe magnitude near k0: |W(d)| = |sinc(d)/(1-d²)|
       const d = k - k0;
-      const w = Math.abs(d) < 1e-9 ? 1 : Math.abs(Math.sin(Math.PI * d) / (Math.PI * d) / (1 - d * d));
+      const w =
+        Math.abs(d) < 1e-9 ? 1 : Math.abs(Math.sin(Math.PI * d) / (Math.PI * d) / (1 - d * d));
       db[k] = 20 * Math.log10(Math.max(w, 1e-12));
     }
     const [peak] = spectralPeaks(db, 1, { minProminenceDb: 3 });

@@ -4,7 +4,12 @@ import { matchAirframe, sniffLogHead } from "@/lib/logs/sniff";
 
 // The queue's ordering rules are heatcheck's own (README, "How a log is judged"): a crash with no
 // inspection after it grounds the quad; status first, then the lower score.
-const LATEST: NonNullable<AirframeFacts["latest"]> = { status: "ok", score: 100, findings: [], flownAt: new Date("2026-11-30T10:00:00Z") };
+const LATEST: NonNullable<AirframeFacts["latest"]> = {
+  status: "ok",
+  score: 100,
+  findings: [],
+  flownAt: new Date("2026-11-30T10:00:00Z"),
+};
 const base: AirframeFacts = {
   id: "",
   name: "",
@@ -23,17 +28,38 @@ describe("rankQueue", () => {
       { ...base, id: "a", name: "A" },
       { ...base, id: "b", name: "B", latest: { ...LATEST, status: "inspect", score: 60 } },
       { ...base, id: "c", name: "C", latest: { ...LATEST, status: "inspect", score: 45 } },
-      { ...base, id: "d", name: "D", openCrashes: [{ at: new Date("2026-11-30T11:00:00Z"), severity: "hard", positions: ["arm rear-left"] }] },
-      { ...base, id: "e", name: "E", partsPastLife: [{ position: "props", what: "prop-set Tri", fraction: 1.2 }] },
+      {
+        ...base,
+        id: "d",
+        name: "D",
+        openCrashes: [
+          { at: new Date("2026-11-30T11:00:00Z"), severity: "hard", positions: ["arm rear-left"] },
+        ],
+      },
+      {
+        ...base,
+        id: "e",
+        name: "E",
+        partsPastLife: [{ position: "props", what: "prop-set Tri", fraction: 1.2 }],
+      },
     ]);
     expect(q.map((e) => e.name)).toEqual(["D", "C", "B", "E", "A"]);
     expect(q[0]?.status).toBe("ground");
-    expect(q[0]?.reasons[0]).toMatch(/hard crash on 30 Nov, 11:00 UTC \(arm rear-left\) with no inspection since/);
+    expect(q[0]?.reasons[0]).toMatch(
+      /hard crash on 30 Nov, 11:00 UTC \(arm rear-left\) with no inspection since/,
+    );
     expect(q[3]?.status).toBe("watch");
     expect(q[3]?.reasons[0]).toMatch(/used 120 % of its life limit/);
   });
   it("a minor crash asks for an inspection, and no baseline is said plainly", () => {
-    const [entry] = rankQueue([{ ...base, hasBaseline: false, latest: null, openCrashes: [{ at: new Date(), severity: "minor", positions: [] }] }]);
+    const [entry] = rankQueue([
+      {
+        ...base,
+        hasBaseline: false,
+        latest: null,
+        openCrashes: [{ at: new Date(), severity: "minor", positions: [] }],
+      },
+    ]);
     expect(entry?.status).toBe("inspect");
     expect(entry?.reasons.join(" ")).toMatch(/no baseline set/);
   });
@@ -42,13 +68,24 @@ describe("rankQueue", () => {
 describe("matching a file to an airframe", () => {
   const names = ["HV-01", "HV-1", "Kite 3"];
   it("prefers the # airframe: line, then the longest name in the file name", () => {
-    expect(matchAirframe(names, { metadataAirframe: "hv-01", fileName: "whatever.csv" })).toEqual({ name: "HV-01", how: "metadata" });
-    expect(matchAirframe(names, { fileName: "heat2_HV-01_2026.csv" })).toEqual({ name: "HV-01", how: "file name" });
-    expect(matchAirframe(names, { fileName: "kite_3-heat1.csv" })).toEqual({ name: "Kite 3", how: "file name" });
+    expect(matchAirframe(names, { metadataAirframe: "hv-01", fileName: "whatever.csv" })).toEqual({
+      name: "HV-01",
+      how: "metadata",
+    });
+    expect(matchAirframe(names, { fileName: "heat2_HV-01_2026.csv" })).toEqual({
+      name: "HV-01",
+      how: "file name",
+    });
+    expect(matchAirframe(names, { fileName: "kite_3-heat1.csv" })).toEqual({
+      name: "Kite 3",
+      how: "file name",
+    });
     expect(matchAirframe(names, { metadataAirframe: "Unknown", fileName: "log.csv" })).toBeNull();
   });
   it("reads metadata and header from the head of a file", () => {
-    const head = sniffLogHead("\uFEFF# airframe: HV-01\n# flown_at: 2026-11-28T14:05:00Z\n\ntime_us,gyro_roll,gyro_pitch,gyro_yaw\n0,1,2,3\n");
+    const head = sniffLogHead(
+      "\uFEFF# airframe: HV-01\n# flown_at: 2026-11-28T14:05:00Z\n\ntime_us,gyro_roll,gyro_pitch,gyro_yaw\n0,1,2,3\n",
+    );
     expect(head?.metadata).toEqual({ airframe: "HV-01", flown_at: "2026-11-28T14:05:00Z" });
     expect(head?.canonical).toBe(true);
     expect(sniffLogHead("# only comments\n")).toBeNull();

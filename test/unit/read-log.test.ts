@@ -6,7 +6,13 @@ import { DomainError, LimitExceededError, LogFormatError } from "@/lib/errors";
 import { parseColumnMap, proposeColumnMap, type ColumnMap } from "@/lib/logs/columns";
 import { parseDecimal } from "@/lib/logs/parse-number";
 import { MAX_LINE_BYTES } from "@/lib/logs/preamble";
-import { LogReader, fitSamplePeriod, readLog, type LogInfo, type SampleBlock } from "@/lib/logs/read-log";
+import {
+  LogReader,
+  fitSamplePeriod,
+  readLog,
+  type LogInfo,
+  type SampleBlock,
+} from "@/lib/logs/read-log";
 import { readLogHead, sniffLogHead } from "@/lib/logs/sniff";
 
 const enc = new TextEncoder();
@@ -41,8 +47,10 @@ async function collect(text: string | Uint8Array, options = {}, chunk = 1 << 16)
 
 /** A canonical log of n rows at fs Hz with a recognisable roll signal. */
 function canonical(n: number, fs = 1000, extra = ""): string {
-  let s = "# airframe: Test-01\n# flown_at: 2026-11-28T14:05:00Z\n# note: bench\n# weather: dry\ntime_us,gyro_roll,gyro_pitch,gyro_yaw,throttle,rpm_1\n";
-  for (let i = 0; i < n; i++) s += `${Math.round((i * 1e6) / fs)},${(i % 7) - 3},${i % 5},-1.5,0.4,20000\n`;
+  let s =
+    "# airframe: Test-01\n# flown_at: 2026-11-28T14:05:00Z\n# note: bench\n# weather: dry\ntime_us,gyro_roll,gyro_pitch,gyro_yaw,throttle,rpm_1\n";
+  for (let i = 0; i < n; i++)
+    s += `${Math.round((i * 1e6) / fs)},${(i % 7) - 3},${i % 5},-1.5,0.4,20000\n`;
   return s + extra;
 }
 
@@ -58,7 +66,12 @@ async function failure(text: string | Uint8Array, options = {}): Promise<Error> 
 describe("reading a canonical log", () => {
   it("reads metadata (unknown keys kept), every row, and the sample rate", async () => {
     const r = await collect(canonical(5000));
-    expect(r.info?.metadata).toMatchObject({ airframe: "Test-01", flown_at: "2026-11-28T14:05:00Z", note: "bench", weather: "dry" });
+    expect(r.info?.metadata).toMatchObject({
+      airframe: "Test-01",
+      flown_at: "2026-11-28T14:05:00Z",
+      note: "bench",
+      weather: "dry",
+    });
     expect(r.summary.samples).toBe(5000);
     expect(r.info?.sampleRateHz).toBeCloseTo(1000, 6);
     expect(r.roll.slice(0, 8)).toEqual([-3, -2, -1, 0, 1, 2, 3, -3]);
@@ -103,7 +116,9 @@ describe("reading a canonical log", () => {
   it("reads foreign headers through a column map with units", async () => {
     let s = "Time (ms),GyroX,GyroY,GyroZ,Thr,Motor1 Hz\n";
     for (let i = 0; i < 3000; i++) s += `${i * 0.5},${Math.PI / 180},0,0,1500,300\n`;
-    const map = parseColumnMap("time=Time (ms)|ms,roll=GyroX|rad/s,pitch=GyroY|rad/s,yaw=GyroZ|rad/s,throttle=Thr|pulse-us,rpm1=Motor1 Hz|hz");
+    const map = parseColumnMap(
+      "time=Time (ms)|ms,roll=GyroX|rad/s,pitch=GyroY|rad/s,yaw=GyroZ|rad/s,throttle=Thr|pulse-us,rpm1=Motor1 Hz|hz",
+    );
     const r = await collect(s, { map });
     expect(r.info?.sampleRateHz).toBeCloseTo(2000, 6);
     expect(r.roll[0]).toBeCloseTo(1, 12); // 1 degree in rad/s → 1 deg/s
@@ -114,7 +129,17 @@ describe("reading a canonical log", () => {
   it("proposes a map from header words and says what it guessed (indexed axes, 0-based motors, a loop counter)", () => {
     // Invented header names with the shapes foreign logs use: an index in brackets per axis, motors
     // counted from 0, a loop counter beside the time column, a stick command that is not a gyro.
-    const p = proposeColumnMap(["cycle", "elapsed time [us]", "gyr_filt[0]", "gyr_filt[1]", "gyr_filt[2]", "stick_cmd[3]", "throttle", "motor[0] rpm", "motor[1] rpm"]);
+    const p = proposeColumnMap([
+      "cycle",
+      "elapsed time [us]",
+      "gyr_filt[0]",
+      "gyr_filt[1]",
+      "gyr_filt[2]",
+      "stick_cmd[3]",
+      "throttle",
+      "motor[0] rpm",
+      "motor[1] rpm",
+    ]);
     expect(p.missing).toEqual([]);
     const keys = Object.fromEntries(p.map.map((b) => [b.header, b.channel]));
     expect(keys["elapsed time [us]"]).toEqual({ kind: "time", unit: "us" });
@@ -137,10 +162,14 @@ describe("reading a canonical log", () => {
   });
 
   it("rejects bad map text with a message naming the entry", () => {
-    expect(() => parseColumnMap("time=T|minutes,roll=R,pitch=P,yaw=Y")).toThrow(/unit "minutes" is not known for time/);
+    expect(() => parseColumnMap("time=T|minutes,roll=R,pitch=P,yaw=Y")).toThrow(
+      /unit "minutes" is not known for time/,
+    );
     expect(() => parseColumnMap("roll=R,pitch=P,yaw=Y")).toThrow(/needs a column for time/);
     expect(() => parseColumnMap("time=T,roll=R,pitch=P,yaw=Y,roll=Q")).toThrow(/binds roll twice/);
-    expect(() => parseColumnMap("time=T,roll=R,pitch=R,yaw=Y")).toThrow(/binds the column "R" twice \(to roll and to pitch\)/);
+    expect(() => parseColumnMap("time=T,roll=R,pitch=R,yaw=Y")).toThrow(
+      /binds the column "R" twice \(to roll and to pitch\)/,
+    );
     expect(() => parseColumnMap("speed=S")).toThrow(/"speed" is not a channel/);
   });
 });
@@ -149,16 +178,48 @@ describe("bad input gets a clear message naming line and column", () => {
   const cases: [string, string | Uint8Array, RegExp][] = [
     ["empty file", "", /the file is empty/],
     ["only metadata", "# airframe: X\n# note: y\n", /no header row was found/],
-    ["numbers where the header should be", "0,1,2,3\n1000,1,2,3\n", /line 1: the first line holds numbers/],
+    [
+      "numbers where the header should be",
+      "0,1,2,3\n1000,1,2,3\n",
+      /line 1: the first line holds numbers/,
+    ],
     ["missing gyro column", "time_us,gyro_roll,gyro_pitch\n0,1,2\n", /line 1: no column for yaw/],
     ["header and nothing else", "time_us,gyro_roll,gyro_pitch,gyro_yaw\n", /no sample rows follow/],
-    ["non-numeric cell", canonical(10).replace("\n4000,", "\n4000,abc") , /line 10, column 2 \(gyro_roll\): expected a number, found "abc/],
-    ["time going backwards", canonical(10) + "5000,1,1,1,0.4,20000\n", /line 16, column 1 \(time_us\): time goes backwards/],
-    ["fewer samples than one segment", canonical(300), /300 samples at 1000 Hz; one analysis segment needs 512 samples/],
-    ["absurd sample rate (10 Hz)", canonical(3000, 10), /10 Hz, outside 100 Hz – 50 kHz; check its unit/],
-    ["absurd sample rate (µs read as s)", canonical(3000).replace("time_us", "time_s"), /outside 100 Hz – 50 kHz/],
-    ["binary garbage", new Uint8Array([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a, 0, 0, 0, 13]), /binary data/],
-    ["binary inside the rows", canonical(10) + "11000,\u0001\u0002,1,1,0.4,2\n", /line 16, column 2 \(gyro_roll\): binary data where a number was expected/],
+    [
+      "non-numeric cell",
+      canonical(10).replace("\n4000,", "\n4000,abc"),
+      /line 10, column 2 \(gyro_roll\): expected a number, found "abc/,
+    ],
+    [
+      "time going backwards",
+      canonical(10) + "5000,1,1,1,0.4,20000\n",
+      /line 16, column 1 \(time_us\): time goes backwards/,
+    ],
+    [
+      "fewer samples than one segment",
+      canonical(300),
+      /300 samples at 1000 Hz; one analysis segment needs 512 samples/,
+    ],
+    [
+      "absurd sample rate (10 Hz)",
+      canonical(3000, 10),
+      /10 Hz, outside 100 Hz – 50 kHz; check its unit/,
+    ],
+    [
+      "absurd sample rate (µs read as s)",
+      canonical(3000).replace("time_us", "time_s"),
+      /outside 100 Hz – 50 kHz/,
+    ],
+    [
+      "binary garbage",
+      new Uint8Array([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a, 0, 0, 0, 13]),
+      /binary data/,
+    ],
+    [
+      "binary inside the rows",
+      canonical(10) + "11000,\u0001\u0002,1,1,0.4,2\n",
+      /line 16, column 2 \(gyro_roll\): binary data where a number was expected/,
+    ],
   ];
   for (const [name, text, message] of cases) {
     it(name, async () => {
@@ -180,7 +241,9 @@ describe("bad input gets a clear message naming line and column", () => {
   });
 
   it("a file with many incomplete rows is called damaged", async () => {
-    const text = canonical(2000).replace(/,20000\n/g, (m, offset: number) => (offset % 3 === 0 ? ",\n" : m));
+    const text = canonical(2000).replace(/,20000\n/g, (m, offset: number) =>
+      offset % 3 === 0 ? ",\n" : m,
+    );
     const e = await failure(text);
     expect(e.message).toMatch(/rows were dropped as damaged .* the file looks damaged/);
   });
@@ -189,13 +252,27 @@ describe("bad input gets a clear message naming line and column", () => {
 describe("number parsing from bytes", () => {
   const parse = (s: string) => parseDecimal(enc.encode(s), 0, s.length);
   it("agrees with Number() on ordinary and awkward decimals", () => {
-    for (const s of ["0", "-0.5", "+12.25", "1e3", "-2.5E-4", "123456789012345", "0.1", "3.14159265358979", ".5", "5.", "1234567890123456789", "1e-30"]) {
+    for (const s of [
+      "0",
+      "-0.5",
+      "+12.25",
+      "1e3",
+      "-2.5E-4",
+      "123456789012345",
+      "0.1",
+      "3.14159265358979",
+      ".5",
+      "5.",
+      "1234567890123456789",
+      "1e-30",
+    ]) {
       expect(parse(s)).toBe(Number(s));
     }
     expect(parse(' "7.5" ')).toBe(7.5);
   });
   it("rejects what is not a number", () => {
-    for (const s of ["abc", "1.2.3", "--1", "1e", "NaN", "inf", "0x10", "1,5"]) expect(parse(s)).toBeNaN();
+    for (const s of ["abc", "1.2.3", "--1", "1e", "NaN", "inf", "0x10", "1,5"])
+      expect(parse(s)).toBeNaN();
     expect(parse("   ")).toBe(Number.NEGATIVE_INFINITY);
   });
 });
@@ -206,7 +283,9 @@ describe("importer fuzz (seeded): always a result or a clean error, never a cras
   it("random bytes", async () => {
     const rand = mulberry32(99);
     for (let n = 0; n < 60; n++) {
-      const bytes = new Uint8Array(1 + Math.floor(rand() * 4000)).map(() => Math.floor(rand() * 256));
+      const bytes = new Uint8Array(1 + Math.floor(rand() * 4000)).map(() =>
+        Math.floor(rand() * 256),
+      );
       await expectCleanOutcome(bytes);
     }
   });
@@ -215,7 +294,8 @@ describe("importer fuzz (seeded): always a result or a clean error, never a cras
     for (let n = 0; n < 60; n++) {
       const bytes = base.slice();
       const flips = 1 + Math.floor(rand() * 20);
-      for (let k = 0; k < flips; k++) bytes[Math.floor(rand() * bytes.length)] = Math.floor(rand() * 256);
+      for (let k = 0; k < flips; k++)
+        bytes[Math.floor(rand() * bytes.length)] = Math.floor(rand() * 256);
       const cut = rand() < 0.3 ? bytes.subarray(0, Math.floor(rand() * bytes.length)) : bytes;
       await expectCleanOutcome(cut);
     }
@@ -243,14 +323,17 @@ async function expectCleanOutcome(bytes: Uint8Array): Promise<void> {
 }
 
 describe("sample rate from a line fit of the time stamps", () => {
-  const rowsAt = (stamps: string[]) => "time_us,gyro_roll,gyro_pitch,gyro_yaw\n" + stamps.map((t) => `${t},1,2,3\n`).join("");
+  const rowsAt = (stamps: string[]) =>
+    "time_us,gyro_roll,gyro_pitch,gyro_yaw\n" + stamps.map((t) => `${t},1,2,3\n`).join("");
   it("exactly 50 kHz (20 µs steps) is accepted and read as 50000 Hz", async () => {
     const r = await collect(rowsAt(Array.from({ length: 5000 }, (_, k) => String(k * 20))));
     expect(r.info?.sampleRateHz).toBe(50_000);
   });
   it("Unix-epoch µs stamps give the exact rate (the first stamp is subtracted before scaling)", async () => {
     // 1.76e15 µs is 2026 in Unix time; scaled to seconds first, such a stamp keeps only ~0.24 µs.
-    const r = await collect(rowsAt(Array.from({ length: 5000 }, (_, k) => String(1_764_338_700_000_000 + k * 250))));
+    const r = await collect(
+      rowsAt(Array.from({ length: 5000 }, (_, k) => String(1_764_338_700_000_000 + k * 250))),
+    );
     expect(r.info?.sampleRateHz).toBe(4000);
     expect(r.time[4999]).toBeCloseTo(4999 * 250e-6, 12);
   });
@@ -265,7 +348,9 @@ describe("sample rate from a line fit of the time stamps", () => {
     t.forEach((v, k) => (t[k] = v - (t[0] ?? 0)));
     const period = fitSamplePeriod(t, new Int32Array(n));
     expect(Math.abs(period / (step * 1e-6) - 1)).toBeLessThan(2e-5);
-    const steps = Array.from({ length: n - 1 }, (_, k) => (t[k + 1] ?? 0) - (t[k] ?? 0)).sort((a, b) => a - b);
+    const steps = Array.from({ length: n - 1 }, (_, k) => (t[k + 1] ?? 0) - (t[k] ?? 0)).sort(
+      (a, b) => a - b,
+    );
     const median = steps[(n - 2) >> 1] ?? 0;
     expect(Math.abs(median / (step * 1e-6) - 1)).toBeGreaterThan(3e-3); // the method it replaces
   });
@@ -287,7 +372,11 @@ describe("one line and header rule, whatever the chunk sizes", () => {
   it("a 100 KB header line is read with 1 MiB, 32 KiB and 1000-byte reads alike", async () => {
     const header = "time_us,gyro_roll,gyro_pitch,gyro_yaw" + ",x".repeat(50_000);
     // Rows carry the same 50,004 cells as the header (empty ones), else they would be damaged.
-    const text = enc.encode(header + "\n" + Array.from({ length: 200 }, (_, k) => `${k * 500},1,2,3${",".repeat(50_000)}\n`).join(""));
+    const text = enc.encode(
+      header +
+        "\n" +
+        Array.from({ length: 200 }, (_, k) => `${k * 500},1,2,3${",".repeat(50_000)}\n`).join(""),
+    );
     for (const chunk of [1 << 20, 32 * 1024, 1000]) {
       const r = await collect(text, {}, chunk);
       expect(r.summary.samples).toBe(200);
@@ -295,24 +384,52 @@ describe("one line and header rule, whatever the chunk sizes", () => {
   });
   it("a line of MAX_LINE_BYTES is read, one byte more is refused, at any chunk size", async () => {
     for (const chunk of [1 << 21, 1 << 20, 4096, 777]) {
-      const ok = await collect(enc.encode(`#${"n".repeat(MAX_LINE_BYTES - 1)}\n` + "time_us,gyro_roll,gyro_pitch,gyro_yaw\n" + rows), {}, chunk);
+      const ok = await collect(
+        enc.encode(
+          `#${"n".repeat(MAX_LINE_BYTES - 1)}\n` + "time_us,gyro_roll,gyro_pitch,gyro_yaw\n" + rows,
+        ),
+        {},
+        chunk,
+      );
       expect(ok.summary.samples).toBe(3000);
-      const e = await failure(enc.encode(`#${"n".repeat(MAX_LINE_BYTES)}\r\n` + "time_us,gyro_roll,gyro_pitch,gyro_yaw\n" + rows));
-      expect(e.message).toBe("line 1: the line is longer than 1 MiB: this does not look like a CSV log");
+      const e = await failure(
+        enc.encode(
+          `#${"n".repeat(MAX_LINE_BYTES)}\r\n` + "time_us,gyro_roll,gyro_pitch,gyro_yaw\n" + rows,
+        ),
+      );
+      expect(e.message).toBe(
+        "line 1: the line is longer than 1 MiB: this does not look like a CSV log",
+      );
     }
   });
   it("the head reader finds the header after 10,000 metadata lines or a 70 KB note, like the reader", async () => {
-    const meta = Array.from({ length: 10_000 }, (_, i) => `# k${i}: v`).join("\n") + `\n# note: ${"n".repeat(70_000)}\n`;
+    const meta =
+      Array.from({ length: 10_000 }, (_, i) => `# k${i}: v`).join("\n") +
+      `\n# note: ${"n".repeat(70_000)}\n`;
     const bytes = enc.encode(meta + "time_us,gyro_roll,gyro_pitch,gyro_yaw\n" + rows);
     const head = await readLogHead(bytesSource(bytes, 32 * 1024));
-    expect(head).toMatchObject({ line: 10_002, headers: ["time_us", "gyro_roll", "gyro_pitch", "gyro_yaw"], canonical: true });
+    expect(head).toMatchObject({
+      line: 10_002,
+      headers: ["time_us", "gyro_roll", "gyro_pitch", "gyro_yaw"],
+      canonical: true,
+    });
     expect(head.metadata.note?.length).toBe(70_000);
     expect((await collect(bytes, {}, 32 * 1024)).summary.samples).toBe(3000);
     expect(sniffLogHead(new TextDecoder().decode(bytes))?.line).toBe(10_002);
   });
   it("CR-only line endings are read; CRLF stays CRLF", async () => {
-    expect((await collect(withHeader("time_us,gyro_roll,gyro_pitch,gyro_yaw").map((b) => (b === 10 ? 13 : b)), {}, 100)).summary.samples).toBe(3000);
-    const crlf = new TextDecoder().decode(withHeader("time_us,gyro_roll,gyro_pitch,gyro_yaw")).replace(/\n/g, "\r\n");
+    expect(
+      (
+        await collect(
+          withHeader("time_us,gyro_roll,gyro_pitch,gyro_yaw").map((b) => (b === 10 ? 13 : b)),
+          {},
+          100,
+        )
+      ).summary.samples,
+    ).toBe(3000);
+    const crlf = new TextDecoder()
+      .decode(withHeader("time_us,gyro_roll,gyro_pitch,gyro_yaw"))
+      .replace(/\n/g, "\r\n");
     expect((await collect(crlf, {}, 333)).summary.samples).toBe(3000);
   });
 });
@@ -321,8 +438,12 @@ describe("what a file that is not CSV text is", () => {
   const log = canonical(100);
   it("gzip (magic 1f 8b, RFC 1952 §2.3.1), zip (PK 03 04, PKWARE APPNOTE 4.3.7) and UTF-16 (byte-order mark, Unicode §23.8) are named", async () => {
     const { gzipSync } = await import("node:zlib");
-    expect((await failure(new Uint8Array(gzipSync(log)))).message).toMatch(/^the file is gzip-compressed/);
-    expect((await failure(enc.encode("PK\u0003\u0004" + log))).message).toMatch(/^the file is a zip archive/);
+    expect((await failure(new Uint8Array(gzipSync(log)))).message).toMatch(
+      /^the file is gzip-compressed/,
+    );
+    expect((await failure(enc.encode("PK\u0003\u0004" + log))).message).toMatch(
+      /^the file is a zip archive/,
+    );
     const le = new Uint8Array(2 + log.length * 2);
     le.set([0xff, 0xfe]);
     for (let i = 0; i < log.length; i++) le[2 + 2 * i] = log.charCodeAt(i);
@@ -333,22 +454,31 @@ describe("what a file that is not CSV text is", () => {
 
 describe("rows whose cell count differs from the header's", () => {
   it("are dropped as damaged; consistent extra cells name decimal commas and the line", async () => {
-    const commas = canonical(3000).replace(/\n(\d+),(-?\d+),/g, (_m, t: string, r: string) => `\n${t},${r},5,`);
+    const commas = canonical(3000).replace(
+      /\n(\d+),(-?\d+),/g,
+      (_m, t: string, r: string) => `\n${t},${r},5,`,
+    );
     const e = await failure(commas);
     expect(e).toBeInstanceOf(LogFormatError);
-    expect(e.message).toMatch(/^line 6: this row has 7 cells but the header names 6 columns, and so do 3000 of 3000 rows: the numbers probably use decimal commas \(12,5\) or thousands separators \(21,050\)/);
+    expect(e.message).toMatch(
+      /^line 6: this row has 7 cells but the header names 6 columns, and so do 3000 of 3000 rows: the numbers probably use decimal commas \(12,5\) or thousands separators \(21,050\)/,
+    );
     const few = canonical(3000).replace("\n1000,", "\n1000,9,");
     expect((await collect(few)).summary).toMatchObject({ droppedRows: 1, droppedLines: [7] });
   });
   it("a map that binds one column to two keys says which column and keys (also when handed to the reader as an object)", async () => {
-    expect(() => parseColumnMap("time=time_us,roll=gyro_roll,pitch=gyro_roll,yaw=gyro_yaw")).toThrow(/the map binds the column "gyro_roll" twice \(to roll and to pitch\)/);
+    expect(() =>
+      parseColumnMap("time=time_us,roll=gyro_roll,pitch=gyro_roll,yaw=gyro_yaw"),
+    ).toThrow(/the map binds the column "gyro_roll" twice \(to roll and to pitch\)/);
     const map: ColumnMap = [
       { header: "time_us", channel: { kind: "time", unit: "us" } },
       { header: "gyro_roll", channel: { kind: "gyro", axis: "roll", unit: "deg/s" } },
       { header: "gyro_roll", channel: { kind: "gyro", axis: "pitch", unit: "deg/s" } },
       { header: "gyro_yaw", channel: { kind: "gyro", axis: "yaw", unit: "deg/s" } },
     ];
-    expect((await failure(canonical(3000), { map })).message).toMatch(/the map binds the column "gyro_roll" twice/);
+    expect((await failure(canonical(3000), { map })).message).toMatch(
+      /the map binds the column "gyro_roll" twice/,
+    );
   });
 });
 
@@ -360,7 +490,12 @@ describe("LogReader pushed by hand (an upload checked while it streams)", () => 
     reader.push(bytes.subarray(0, 1000));
     expect(reader.headerFound).toMatchObject({ line: 5, metadata: { airframe: "Test-01" } });
     reader.push(bytes.subarray(1000));
-    expect(reader.finish()).toMatchObject({ samples: 3000, droppedRows: 0, gapCount: 0, bytes: bytes.length });
+    expect(reader.finish()).toMatchObject({
+      samples: 3000,
+      droppedRows: 0,
+      gapCount: 0,
+      bytes: bytes.length,
+    });
   });
   it("throws the line and column of the first bad cell from the push that brings it", () => {
     const bytes = enc.encode(canonical(3000).replace("\n2000,", "\n2000,zz"));
@@ -372,6 +507,10 @@ describe("LogReader pushed by hand (an upload checked while it streams)", () => 
       error = e;
     }
     expect(error).toBeInstanceOf(LogFormatError);
-    expect((error as LogFormatError).location).toMatchObject({ line: 8, column: 2, columnName: "gyro_roll" });
+    expect((error as LogFormatError).location).toMatchObject({
+      line: 8,
+      column: 2,
+      columnName: "gyro_roll",
+    });
   });
 });

@@ -12,7 +12,10 @@ const DURATION_S = 40;
 let baseline: Baseline;
 
 function assess(options: Omit<DemoLogOptions, "durationS">): Assessment {
-  return compareWithBaseline(analyzeDemoLog({ durationS: DURATION_S, ...options }).analysis, baseline);
+  return compareWithBaseline(
+    analyzeDemoLog({ durationS: DURATION_S, ...options }).analysis,
+    baseline,
+  );
 }
 
 beforeAll(() => {
@@ -52,7 +55,10 @@ describe("healthy flying does not read as damage", () => {
     for (const sampleRateHz of [1000, 2000, 8000]) {
       const a = assess({ seed: 5, sampleRateHz });
       expect(a.status).toBe("ok");
-      if (sampleRateHz < 4000) expect(a.notCompared.some((n) => n.reason.includes(`recorded at ${sampleRateHz} Hz`))).toBe(true);
+      if (sampleRateHz < 4000)
+        expect(a.notCompared.some((n) => n.reason.includes(`recorded at ${sampleRateHz} Hz`))).toBe(
+          true,
+        );
     }
   });
 });

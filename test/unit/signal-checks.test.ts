@@ -14,7 +14,10 @@ const DURATION_S = 30;
 let baseline: Baseline;
 
 beforeAll(() => {
-  baseline = buildBaseline([analyzeDemoLog({ seed: 101, durationS: DURATION_S }).analysis, analyzeDemoLog({ seed: 102, durationS: DURATION_S }).analysis]);
+  baseline = buildBaseline([
+    analyzeDemoLog({ seed: 101, durationS: DURATION_S }).analysis,
+    analyzeDemoLog({ seed: 102, durationS: DURATION_S }).analysis,
+  ]);
 });
 
 describe("signal checks per axis", () => {
@@ -22,7 +25,8 @@ describe("signal checks per axis", () => {
     // 16.4 LSB per deg/s: a common MEMS gyro setting (from memory).
     const lsb = 1 / 16.4;
     const a = analyzeWith({ seed: 7, durationS: DURATION_S }, (b) => {
-      for (const g of b.gyro) for (let i = 0; i < b.n; i++) g[i] = Math.round((g[i] ?? 0) / lsb) * lsb;
+      for (const g of b.gyro)
+        for (let i = 0; i < b.n; i++) g[i] = Math.round((g[i] ?? 0) / lsb) * lsb;
     });
     for (const axis of AXES) {
       expect(a.axes[axis].signal?.usable).toBe(true);
@@ -45,8 +49,11 @@ describe("signal checks per axis", () => {
     expect(Number.isNaN(r.score)).toBe(true);
     expect(r.status).not.toBe("ok");
     expect(r.findings).toEqual([]);
-    for (const axis of AXES) expect(r.notCompared.some((n) => n.what === `${axis} axis`)).toBe(true);
-    expect(r.notCompared.some((n) => n.what === "whole log" && /unusable/.test(n.reason))).toBe(true);
+    for (const axis of AXES)
+      expect(r.notCompared.some((n) => n.what === `${axis} axis`)).toBe(true);
+    expect(r.notCompared.some((n) => n.what === "whole log" && /unusable/.test(n.reason))).toBe(
+      true,
+    );
   });
 
   it("one ±1e308 cell takes out only its axis; the others are still compared", () => {
@@ -57,7 +64,9 @@ describe("signal checks per axis", () => {
     expect(a.axes.roll.signal?.usable).toBe(true);
     const r = compareWithBaseline(a, baseline);
     expect(Number.isFinite(r.score)).toBe(true);
-    expect(r.notCompared.find((n) => n.what === "pitch axis")?.reason).toMatch(/beyond any rate gyro's range/);
+    expect(r.notCompared.find((n) => n.what === "pitch axis")?.reason).toMatch(
+      /beyond any rate gyro's range/,
+    );
   });
 
   it("a flat axis (noise below one gyro step) and a clipped axis are not compared", () => {
@@ -75,11 +84,15 @@ describe("signal checks per axis", () => {
   });
 
   it("a baseline log with a dead axis keeps that axis out of every comparison", () => {
-    const dead = analyzeWith({ seed: 103, durationS: DURATION_S }, (b) => b.gyro[2].fill(0, 0, b.n));
+    const dead = analyzeWith({ seed: 103, durationS: DURATION_S }, (b) =>
+      b.gyro[2].fill(0, 0, b.n),
+    );
     const b = buildBaseline([analyzeDemoLog({ seed: 101, durationS: DURATION_S }).analysis, dead]);
     expect(b.unusableAxes?.map((u) => u.axis)).toEqual(["yaw"]);
     const r = compareWithBaseline(analyzeDemoLog({ seed: 8, durationS: DURATION_S }).analysis, b);
-    expect(r.notCompared.find((n) => n.what === "yaw axis")?.reason).toMatch(/not usable in the baseline/);
+    expect(r.notCompared.find((n) => n.what === "yaw axis")?.reason).toMatch(
+      /not usable in the baseline/,
+    );
     expect(r.findings.every((f) => f.axis !== "yaw")).toBe(true);
   });
 });
@@ -87,8 +100,20 @@ describe("signal checks per axis", () => {
 describe("the queue with an unusable log", () => {
   it("shows 'log unusable' and never ok", () => {
     const facts: AirframeFacts = {
-      id: "x", name: "X", state: "ready", hasBaseline: true, openCrashes: [], partsPastLife: [], noLogSince: null, inNextHeat: false,
-      latest: { status: "watch", score: null, findings: [], flownAt: new Date("2026-11-30T10:00:00Z") },
+      id: "x",
+      name: "X",
+      state: "ready",
+      hasBaseline: true,
+      openCrashes: [],
+      partsPastLife: [],
+      noLogSince: null,
+      inNextHeat: false,
+      latest: {
+        status: "watch",
+        score: null,
+        findings: [],
+        flownAt: new Date("2026-11-30T10:00:00Z"),
+      },
     };
     const [entry] = rankQueue([facts]);
     expect(entry?.status).not.toBe("ok");

@@ -1,5 +1,13 @@
 import { execFileSync } from "node:child_process";
-import { createReadStream, createWriteStream, mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
+import {
+  createReadStream,
+  createWriteStream,
+  mkdirSync,
+  mkdtempSync,
+  readFileSync,
+  rmSync,
+  writeFileSync,
+} from "node:fs";
 import { tmpdir } from "node:os";
 import { Readable } from "node:stream";
 import { join } from "node:path";
@@ -29,7 +37,12 @@ describe("ustar", () => {
     await tar.file(longName, src);
     await tar.bytes("empty.txt", "");
     await tar.end();
-    expect(execFileSync("tar", ["-tf", archive]).toString().trim().split("\n")).toEqual(["manifest.json", "uploads/", longName, "empty.txt"]);
+    expect(execFileSync("tar", ["-tf", archive]).toString().trim().split("\n")).toEqual([
+      "manifest.json",
+      "uploads/",
+      longName,
+      "empty.txt",
+    ]);
     const x = join(dir, "x");
     mkdirSync(x);
     execFileSync("tar", ["-xf", archive, "-C", x]);
@@ -56,7 +69,8 @@ describe("ustar", () => {
   });
 
   it("refuses names that would land outside the target folder", () => {
-    for (const bad of ["/etc/passwd", "../x", "a/../../b", "C:/x", ""]) expect(() => safeEntryName(bad)).toThrow(/unsafe path/);
+    for (const bad of ["/etc/passwd", "../x", "a/../../b", "C:/x", ""])
+      expect(() => safeEntryName(bad)).toThrow(/unsafe path/);
     expect(safeEntryName("./uploads/a.csv")).toBe("uploads/a.csv");
   });
 
@@ -64,6 +78,8 @@ describe("ustar", () => {
     const archive = join(dir, "ours.tar");
     const bytes = readFileSync(archive);
     bytes[10] = (bytes[10] ?? 0) ^ 0xff;
-    await expect(readTar(Readable.from([bytes]), async () => undefined)).rejects.toThrow(/checksum/);
+    await expect(readTar(Readable.from([bytes]), async () => undefined)).rejects.toThrow(
+      /checksum/,
+    );
   });
 });

@@ -7,7 +7,10 @@ import { modeKey, trendPoint } from "@/lib/health/trends";
 // its cracked-arm scenario lowers the pitch bending mode by a known fraction (the scenario's own
 // truth), which the trend must show within 2 % of the baseline frequency (about one 2 Hz bin at
 // 236 Hz plus the peak-picking jitter of a 24 s log).
-const baseline = buildBaseline([analyzeDemoLog({ seed: 61, durationS: 24 }).analysis, analyzeDemoLog({ seed: 62, durationS: 24 }).analysis]);
+const baseline = buildBaseline([
+  analyzeDemoLog({ seed: 61, durationS: 24 }).analysis,
+  analyzeDemoLog({ seed: 62, durationS: 24 }).analysis,
+]);
 
 describe("trend points", () => {
   it("a healthy repeat sits near zero on the frame's modes and band lines", () => {
@@ -20,7 +23,12 @@ describe("trend points", () => {
   });
 
   it("a cracked arm shows as the pitch mode's drop, by the scenario's own amount", () => {
-    const { analysis, truth } = analyzeDemoLog({ seed: 64, durationS: 24, scenario: "cracked-arm", severity: 3 });
+    const { analysis, truth } = analyzeDemoLog({
+      seed: 64,
+      durationS: 24,
+      scenario: "cracked-arm",
+      severity: 3,
+    });
     const p = trendPoint(analysis, baseline);
     const pitch = baseline.modes.find((m) => m.axis === "pitch");
     if (!pitch || truth.freqHz === undefined) throw new Error("no pitch mode");

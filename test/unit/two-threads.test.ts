@@ -21,17 +21,23 @@ function manyGaps(rows: number): Uint8Array {
 }
 
 describe("two-thread pipeline", () => {
-  it("a log of 40,000 rows that is nearly all gaps: same analysis as one thread, at most 7 buffer sets", { timeout: 120_000 }, async () => {
-    const bytes = manyGaps(40_000);
-    const one = await analyzeLog(bytesSource(bytes, 1 << 20));
-    const two = await analyzeLogInTwoThreads(bytesSource(bytes, 1 << 20), { entryUrl });
-    expect(two.summary.gapCount).toBe(40_000 - 4096); // rows 4097… each follow a 1 ms step
-    expect(two.summary.gaps).toHaveLength(1000); // listed ones; the rest are counted
-    expect(two.analysis).toEqual(one.analysis);
-    // MAX_IN_FLIGHT (4) batches waiting, plus at most three being filled or sent from one piece.
-    expect(two.stats.bufferSets).toBeLessThanOrEqual(7);
-    expect(two.stats.maxInFlight).toBeLessThanOrEqual(7);
-    // One message per 8,192 rows or per 4,096 gaps, not one per gap.
-    expect(two.stats.batches).toBeLessThanOrEqual(Math.ceil(40_000 / 8192) + Math.ceil(40_000 / 4096) + 1);
-  });
+  it(
+    "a log of 40,000 rows that is nearly all gaps: same analysis as one thread, at most 7 buffer sets",
+    { timeout: 120_000 },
+    async () => {
+      const bytes = manyGaps(40_000);
+      const one = await analyzeLog(bytesSource(bytes, 1 << 20));
+      const two = await analyzeLogInTwoThreads(bytesSource(bytes, 1 << 20), { entryUrl });
+      expect(two.summary.gapCount).toBe(40_000 - 4096); // rows 4097… each follow a 1 ms step
+      expect(two.summary.gaps).toHaveLength(1000); // listed ones; the rest are counted
+      expect(two.analysis).toEqual(one.analysis);
+      // MAX_IN_FLIGHT (4) batches waiting, plus at most three being filled or sent from one piece.
+      expect(two.stats.bufferSets).toBeLessThanOrEqual(7);
+      expect(two.stats.maxInFlight).toBeLessThanOrEqual(7);
+      // One message per 8,192 rows or per 4,096 gaps, not one per gap.
+      expect(two.stats.batches).toBeLessThanOrEqual(
+        Math.ceil(40_000 / 8192) + Math.ceil(40_000 / 4096) + 1,
+      );
+    },
+  );
 });

@@ -31,7 +31,11 @@ function finding(f: Partial<Finding> & Pick<Finding, "kind" | "axis" | "freqHz">
   return { severity: "inspect", points: 30, text: "", ...f };
 }
 
-function assessment(findings: Finding[], status: Assessment["status"] = "inspect", score = 70): Assessment {
+function assessment(
+  findings: Finding[],
+  status: Assessment["status"] = "inspect",
+  score = 70,
+): Assessment {
   return { score, status, findings, notCompared: [], comparedBands: [] };
 }
 
@@ -43,7 +47,8 @@ describe("the matrix's cases", () => {
     expect(new Set(crack.map((j) => j.flight.seed)).size).toBe(1);
     expect(new Set(crack.map((j) => j.damage?.seed)).size).toBe(1);
     // A test flight flies another mix than the baseline flights.
-    for (const j of jobs.filter((x) => x.group === "damage")) expect(j.flight.mix).not.toBe("baseline");
+    for (const j of jobs.filter((x) => x.group === "damage"))
+      expect(j.flight.mix).not.toBe("baseline");
   });
 
   it("make the other-rate variant log at another rate than its baseline, and the foreign one use another header", () => {
@@ -58,7 +63,9 @@ describe("the matrix's cases", () => {
 
   it("do not depend on which classes are selected", () => {
     const a = matrixJobs(SMALL).find((j) => j.id === "af1/bent-prop/s2");
-    const b = matrixJobs({ ...SMALL, classes: ["bent-prop"] }).find((j) => j.id === "af1/bent-prop/s2");
+    const b = matrixJobs({ ...SMALL, classes: ["bent-prop"] }).find(
+      (j) => j.id === "af1/bent-prop/s2",
+    );
     expect(b).toEqual(a);
   });
 });
@@ -87,7 +94,8 @@ describe("a small matrix run end to end (bounded: 1 airframe, 2 kHz, 16 s flight
   it("summarises into tables that add up", () => {
     const s = summarise(results, SMALL);
     expect(s.cases).toBe(results.length);
-    for (const h of s.healthy) expect(h.statuses.ok + h.statuses.watch + h.statuses.inspect + h.statuses.ground).toBe(h.n);
+    for (const h of s.healthy)
+      expect(h.statuses.ok + h.statuses.watch + h.statuses.inspect + h.statuses.ground).toBe(h.n);
     for (const d of s.damage) expect(d.n).toBe(1);
     expect(s.monotone.map((m) => m.groups)).toEqual([1, 1]);
     const text = formatSummary(s, SMALL);
@@ -97,9 +105,28 @@ describe("a small matrix run end to end (bounded: 1 airframe, 2 kHz, 16 s flight
 });
 
 describe("the judge", () => {
-  const crack: CaseTruth = { kind: "crack", severity: 3, description: "", axes: ["pitch"], freqsHz: [200] };
-  const prop: CaseTruth = { kind: "bent-prop", severity: 3, description: "", axes: [], freqsHz: [], motor: 3 };
-  const healthy: CaseTruth = { kind: "healthy", severity: 0, description: "", axes: [], freqsHz: [] };
+  const crack: CaseTruth = {
+    kind: "crack",
+    severity: 3,
+    description: "",
+    axes: ["pitch"],
+    freqsHz: [200],
+  };
+  const prop: CaseTruth = {
+    kind: "bent-prop",
+    severity: 3,
+    description: "",
+    axes: [],
+    freqsHz: [],
+    motor: 3,
+  };
+  const healthy: CaseTruth = {
+    kind: "healthy",
+    severity: 0,
+    description: "",
+    axes: [],
+    freqsHz: [],
+  };
 
   it("calls inspect or ground on a healthy log a false alarm, watch not", () => {
     expect(judge(healthy, assessment([], "inspect")).falseAlarm).toBe(true);
@@ -108,13 +135,49 @@ describe("the judge", () => {
   });
 
   it("holds class, axis, frequency (±5 %) and motor against the truth", () => {
-    const right = judge(crack, assessment([finding({ kind: "mode-shift", axis: "pitch", freqHz: 204, shiftPct: -9, baselineFreqHz: 224 })]));
+    const right = judge(
+      crack,
+      assessment([
+        finding({
+          kind: "mode-shift",
+          axis: "pitch",
+          freqHz: 204,
+          shiftPct: -9,
+          baselineFreqHz: 224,
+        }),
+      ]),
+    );
     expect(fullyRight(right)).toBe(true);
-    const offFreq = judge(crack, assessment([finding({ kind: "mode-shift", axis: "pitch", freqHz: 211, shiftPct: -6, baselineFreqHz: 224 })]));
+    const offFreq = judge(
+      crack,
+      assessment([
+        finding({
+          kind: "mode-shift",
+          axis: "pitch",
+          freqHz: 211,
+          shiftPct: -6,
+          baselineFreqHz: 224,
+        }),
+      ]),
+    );
     expect(offFreq.freqRight).toBe(false);
-    const offAxis = judge(crack, assessment([finding({ kind: "mode-shift", axis: "roll", freqHz: 200, shiftPct: -9, baselineFreqHz: 220 })]));
+    const offAxis = judge(
+      crack,
+      assessment([
+        finding({
+          kind: "mode-shift",
+          axis: "roll",
+          freqHz: 200,
+          shiftPct: -9,
+          baselineFreqHz: 220,
+        }),
+      ]),
+    );
     expect(offAxis.axisRight).toBe(false);
-    const wrongMotor = judge(prop, assessment([finding({ kind: "motor-order", axis: "roll", freqHz: 300, motor: 2 })]));
+    const wrongMotor = judge(
+      prop,
+      assessment([finding({ kind: "motor-order", axis: "roll", freqHz: 300, motor: 2 })]),
+    );
     expect(wrongMotor.classRight).toBe(true);
     expect(wrongMotor.motorRight).toBe(false);
     const missed = judge(prop, assessment([], "ok", 100));
@@ -123,18 +186,53 @@ describe("the judge", () => {
   });
 
   it("takes the class from the finding with most points", () => {
-    const v = judge(crack, assessment([finding({ kind: "new-peak", axis: "pitch", freqHz: 200, points: 40 }), finding({ kind: "mode-shift", axis: "pitch", freqHz: 200, shiftPct: -10, baselineFreqHz: 222, points: 20 })]));
+    const v = judge(
+      crack,
+      assessment([
+        finding({ kind: "new-peak", axis: "pitch", freqHz: 200, points: 40 }),
+        finding({
+          kind: "mode-shift",
+          axis: "pitch",
+          freqHz: 200,
+          shiftPct: -10,
+          baselineFreqHz: 222,
+          points: 20,
+        }),
+      ]),
+    );
     expect(v.classRight).toBe(false);
     expect(v.freqRight).toBe(true);
   });
 
   it("reads two modes dropping together as loose frame screws, one as a crack", () => {
-    const one = diagnose(assessment([finding({ kind: "mode-shift", axis: "pitch", freqHz: 200, shiftPct: -10, baselineFreqHz: 222 })]));
+    const one = diagnose(
+      assessment([
+        finding({
+          kind: "mode-shift",
+          axis: "pitch",
+          freqHz: 200,
+          shiftPct: -10,
+          baselineFreqHz: 222,
+        }),
+      ]),
+    );
     expect(one[0]?.classes).toEqual(["crack"]);
     const two = diagnose(
       assessment([
-        finding({ kind: "mode-shift", axis: "pitch", freqHz: 200, shiftPct: -10, baselineFreqHz: 222 }),
-        finding({ kind: "mode-shift", axis: "roll", freqHz: 155, shiftPct: -8, baselineFreqHz: 168 }),
+        finding({
+          kind: "mode-shift",
+          axis: "pitch",
+          freqHz: 200,
+          shiftPct: -10,
+          baselineFreqHz: 222,
+        }),
+        finding({
+          kind: "mode-shift",
+          axis: "roll",
+          freqHz: 155,
+          shiftPct: -8,
+          baselineFreqHz: 168,
+        }),
       ]),
     );
     expect(two.every((d) => d.classes.includes("loose-frame"))).toBe(true);
@@ -158,8 +256,23 @@ function results3(scores: number[]): CaseResult[] {
     testRate: 2000,
     baselineRate: 2000,
     style: "canonical",
-    truth: { kind: "crack", severity: (i + 1) as 1 | 2 | 3, description: "", axes: ["pitch"], freqsHz: [200] },
-    verdict: { status: "inspect", score, miss: false, falseAlarm: false, classRight: true, axisRight: true, freqRight: true, motorRight: null },
+    truth: {
+      kind: "crack",
+      severity: (i + 1) as 1 | 2 | 3,
+      description: "",
+      axes: ["pitch"],
+      freqsHz: [200],
+    },
+    verdict: {
+      status: "inspect",
+      score,
+      miss: false,
+      falseAlarm: false,
+      classRight: true,
+      axisRight: true,
+      freqRight: true,
+      motorRight: null,
+    },
     findings: [],
   }));
 }

@@ -1,7 +1,13 @@
 import { readFileSync } from "node:fs";
 import { describe, expect, it } from "vitest";
 import { RealPowerSpectrum } from "@/lib/signal/fft";
-import { defaultNperseg, medianBias, segmentStarts, welch, type WelchOptions } from "@/lib/signal/welch";
+import {
+  defaultNperseg,
+  medianBias,
+  segmentStarts,
+  welch,
+  type WelchOptions,
+} from "@/lib/signal/welch";
 import { enbwBins, makeWindow, windowSums, type WindowName } from "@/lib/signal/windows";
 import { mulberry32, gaussian } from "@/lib/demo/random";
 
@@ -17,10 +23,17 @@ interface Fixture {
 // Source: scipy.signal.welch, fixtures written by test/fixtures/make_welch_fixtures.py
 // (`npm run fixtures`, Debian python3-scipy). Tolerance from the issue: max relative error ≤ 1e-9
 // wherever the reference is above 1e-12 of its maximum.
-const fixtures = JSON.parse(readFileSync("test/fixtures/welch-scipy.json", "utf8")) as { scipy: string; cases: Fixture[] };
+const fixtures = JSON.parse(readFileSync("test/fixtures/welch-scipy.json", "utf8")) as {
+  scipy: string;
+  cases: Fixture[];
+};
 
 function toOptions(o: Fixture["options"]): WelchOptions {
-  const windows: Record<string, WindowName> = { hann: "hann", hamming: "hamming", blackmanharris: "blackman-harris" };
+  const windows: Record<string, WindowName> = {
+    hann: "hann",
+    hamming: "hamming",
+    blackmanharris: "blackman-harris",
+  };
   return {
     nperseg: Number(o.nperseg),
     noverlap: o.noverlap === undefined ? undefined : Number(o.noverlap),
@@ -88,7 +101,9 @@ describe("fft.js real transform against a naive DFT", () => {
         im -= (x[i] ?? 0) * Math.sin((2 * Math.PI * k * i) / n);
       }
       scale = Math.max(scale, re * re + im * im);
-      expect(Math.abs((fast[k] ?? 0) - (re * re + im * im))).toBeLessThan(1e-9 * Math.max(1, scale));
+      expect(Math.abs((fast[k] ?? 0) - (re * re + im * im))).toBeLessThan(
+        1e-9 * Math.max(1, scale),
+      );
     }
   });
   it("rejects a length that is not a power of two", () => {
@@ -125,7 +140,10 @@ describe("closed-form checks of the density scaling", () => {
     const n = 1024;
     const amplitude = 4;
     const f0 = 100 * (fs / n);
-    const x = Float64Array.from({ length: 16 * n }, (_, i) => amplitude * Math.sin((2 * Math.PI * f0 * i) / fs));
+    const x = Float64Array.from(
+      { length: 16 * n },
+      (_, i) => amplitude * Math.sin((2 * Math.PI * f0 * i) / fs),
+    );
     const r = welch(x, fs, { nperseg: n });
     const peak = r.psd[100] ?? 0;
     // reference-values.md: density peak = (A²/2)/(1.5·fs/N) for periodic Hann (computed)
@@ -135,7 +153,10 @@ describe("closed-form checks of the density scaling", () => {
   });
   it("spectrum scaling of the same sine peaks at A²/2 (power spectrum, [Hz])", () => {
     const n = 512;
-    const x = Float64Array.from({ length: 8 * n }, (_, i) => 2 * Math.sin((2 * Math.PI * 64 * i) / n));
+    const x = Float64Array.from(
+      { length: 8 * n },
+      (_, i) => 2 * Math.sin((2 * Math.PI * 64 * i) / n),
+    );
     const r = welch(x, fs, { nperseg: n, scaling: "spectrum" });
     expect(r.psd[64]).toBeCloseTo(2, 9);
   });
@@ -143,7 +164,9 @@ describe("closed-form checks of the density scaling", () => {
 
 describe("Welch options and errors", () => {
   it("median bias b(n) = 1, 1, 0.8333, 0.8333, 0.7833 for n = 1..5 (scipy _median_bias)", () => {
-    expect([1, 2, 3, 4, 5].map((n) => medianBias(n))).toEqual([1, 1, 1 - 1 / 6, 1 - 1 / 6, 1 - 1 / 6 + 1 / 5 - 1 / 4].map((v) => expect.closeTo(v, 12)));
+    expect([1, 2, 3, 4, 5].map((n) => medianBias(n))).toEqual(
+      [1, 1, 1 - 1 / 6, 1 - 1 / 6, 1 - 1 / 6 + 1 / 5 - 1 / 4].map((v) => expect.closeTo(v, 12)),
+    );
     expect(medianBias(5)).toBeCloseTo(0.7833, 4);
     expect(medianBias(100001)).toBeCloseTo(Math.log(2), 4);
   });
@@ -154,9 +177,13 @@ describe("Welch options and errors", () => {
     expect(4000 / defaultNperseg(4000)).toBeLessThanOrEqual(2);
   });
   it("rejects a signal shorter than one segment and bad sizes, with plain messages", () => {
-    expect(() => welch(new Float64Array(100), 1000, { nperseg: 256 })).toThrow(/shorter than one segment of 256/);
+    expect(() => welch(new Float64Array(100), 1000, { nperseg: 256 })).toThrow(
+      /shorter than one segment of 256/,
+    );
     expect(() => welch(new Float64Array(1000), 1000, { nperseg: 300 })).toThrow(/power of two/);
-    expect(() => welch(new Float64Array(1000), 1000, { nperseg: 256, noverlap: 256 })).toThrow(/noverlap/);
+    expect(() => welch(new Float64Array(1000), 1000, { nperseg: 256, noverlap: 256 })).toThrow(
+      /noverlap/,
+    );
     expect(() => welch(new Float64Array(1000), 0)).toThrow(/sample rate/);
   });
   it("segments never straddle runs", () => {
@@ -168,6 +195,15 @@ describe("Welch options and errors", () => {
     // Run 0..400 holds segments at 0 and 128; run 400..1000 at 400, 528 and 656: 5 in all. One
     // run over the whole signal would give 6 (0, 128, …, 640), one of them across sample 400.
     expect(r.segments).toBe(5);
-    expect(segmentStarts([{ start: 0, end: 400 }, { start: 400, end: 1000 }], 256, 128)).toEqual([0, 128, 400, 528, 656]);
+    expect(
+      segmentStarts(
+        [
+          { start: 0, end: 400 },
+          { start: 400, end: 1000 },
+        ],
+        256,
+        128,
+      ),
+    ).toEqual([0, 128, 400, 528, 656]);
   });
 });

@@ -13,14 +13,22 @@ export function SignInForm() {
     const form = new FormData(e.currentTarget);
     setPending(true);
     setError("");
-    const r = await signIn("credentials", { email: String(form.get("email") ?? ""), password: String(form.get("password") ?? ""), redirect: false });
+    const r = await signIn("credentials", {
+      email: String(form.get("email") ?? ""),
+      password: String(form.get("password") ?? ""),
+      redirect: false,
+    });
     setPending(false);
     if (r?.ok) {
       router.push("/");
       router.refresh();
     } else {
       // A throttled attempt says how long to wait; any other failure gets the one sentence.
-      setError(r?.error?.startsWith("Too many") ? r.error : "That email and password do not match an account.");
+      setError(
+        r?.error?.startsWith("Too many")
+          ? r.error
+          : "That email and password do not match an account.",
+      );
     }
   }
   return (
@@ -33,7 +41,11 @@ export function SignInForm() {
         Password
         <input name="password" type="password" autoComplete="current-password" required />
       </label>
-      {error ? <p className="form-message error" role="alert">{error}</p> : null}
+      {error ? (
+        <p className="form-message error" role="alert">
+          {error}
+        </p>
+      ) : null}
       <div>
         <button type="submit" disabled={pending}>
           {pending ? "Signing in…" : "Sign in"}

@@ -21,12 +21,21 @@ export interface NavProps {
 
 export function Nav({ teamName, userName, role }: NavProps) {
   const path = usePathname();
-  const current = (href: string) => (href === "/" ? path === "/" : path.startsWith(href)) || (href === "/fleet" && path.startsWith("/airframes"));
+  const current = (href: string) =>
+    (href === "/" ? path === "/" : path.startsWith(href)) ||
+    (href === "/fleet" && path.startsWith("/airframes"));
   return (
     <header className="topbar">
       <Link href="/" className="brand">
         <svg viewBox="0 0 32 32" aria-hidden="true">
-          <path d="M3 20h5l3-10 4 16 4-20 3 14h7" fill="none" stroke="#f4b63f" strokeWidth="2.6" strokeLinejoin="round" strokeLinecap="round" />
+          <path
+            d="M3 20h5l3-10 4 16 4-20 3 14h7"
+            fill="none"
+            stroke="#f4b63f"
+            strokeWidth="2.6"
+            strokeLinejoin="round"
+            strokeLinecap="round"
+          />
         </svg>
         heatcheck
       </Link>

@@ -12,16 +12,24 @@ export const dynamic = "force-dynamic";
 export default async function EventsPage() {
   const actor = await requireMember("viewer");
   const events = await listEvents(actor);
-  const airframes = await db.airframe.findMany({ where: { teamId: actor.teamId, retired: false }, orderBy: { name: "asc" } });
+  const airframes = await db.airframe.findMany({
+    where: { teamId: actor.teamId, retired: false },
+    orderBy: { name: "asc" },
+  });
   const canTech = roleAtLeast(actor.role, "tech");
   return (
     <>
       <h1>Events and heats</h1>
-      <p className="muted">Times in UTC. The inspection queue can show just the airframes of the next heat.</p>
+      <p className="muted">
+        Times in UTC. The inspection queue can show just the airframes of the next heat.
+      </p>
       {events.map((e) => (
         <section className="card" key={e.id} style={{ marginBottom: "1rem" }} data-testid="event">
           <h2 style={{ marginTop: 0 }}>
-            {e.name} <span className="muted small">{e.venue} · {WHEN.format(e.startsAt)}</span>
+            {e.name}{" "}
+            <span className="muted small">
+              {e.venue} · {WHEN.format(e.startsAt)}
+            </span>
           </h2>
           <table>
             <thead>
@@ -37,7 +45,9 @@ export default async function EventsPage() {
                   <td>{h.name}</td>
                   <td>{WHEN.format(h.startsAt)}</td>
                   <td>
-                    {h.entries.map((x) => x.airframe.name).join(", ") || <span className="muted">none yet</span>}
+                    {h.entries.map((x) => x.airframe.name).join(", ") || (
+                      <span className="muted">none yet</span>
+                    )}
                     {canTech ? (
                       <details className="action" style={{ marginTop: "0.4rem" }}>
                         <summary>Assign airframes</summary>
@@ -46,7 +56,13 @@ export default async function EventsPage() {
                           <div className="row">
                             {airframes.map((a) => (
                               <label key={a.id} className="inline">
-                                <input type="checkbox" name="airframeIds" value={a.id} defaultChecked={h.entries.some((x) => x.airframeId === a.id)} /> {a.name}
+                                <input
+                                  type="checkbox"
+                                  name="airframeIds"
+                                  value={a.id}
+                                  defaultChecked={h.entries.some((x) => x.airframeId === a.id)}
+                                />{" "}
+                                {a.name}
                               </label>
                             ))}
                           </div>

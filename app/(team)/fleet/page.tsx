@@ -41,7 +41,13 @@ export default async function FleetPage() {
                   <div className="muted small">{r.frameDesign}</div>
                 </td>
                 <td>{r.retired ? "retired" : r.state}</td>
-                <td>{r.status ? <StatusBadge status={r.status} /> : <span className="muted">no baseline</span>}</td>
+                <td>
+                  {r.status ? (
+                    <StatusBadge status={r.status} />
+                  ) : (
+                    <span className="muted">no baseline</span>
+                  )}
+                </td>
                 <td className="num">{r.score === null ? "–" : Math.round(r.score)}</td>
                 <td>
                   <Sparkline scores={r.trend} />
@@ -54,16 +60,29 @@ export default async function FleetPage() {
         </table>
       </div>
       {designs.map((d) => (
-        <section className="card" key={d.design} style={{ marginTop: "1rem" }} data-testid="design-view">
+        <section
+          className="card"
+          key={d.design}
+          style={{ marginTop: "1rem" }}
+          data-testid="design-view"
+        >
           <h2 style={{ marginTop: 0 }}>{d.design}: the fleet as its own reference</h2>
-          <ModeStrips design={d.design} airframes={d.airframes} enough={d.enough} strips={d.strips} />
+          <ModeStrips
+            design={d.design}
+            airframes={d.airframes}
+            enough={d.enough}
+            strips={d.strips}
+          />
           {d.withoutBaseline.length > 0 ? (
             <>
               <h3>Judged against the fleet (no baseline of their own)</h3>
               <ul>
                 {d.withoutBaseline.map((w) => (
                   <li key={w.name}>
-                    <strong>{w.name}</strong>: {w.notes.length === 0 ? "its latest log sits inside the fleet's range — still set a baseline of its own; fleet evidence alone never clears a quad." : w.notes.join(" · ")}
+                    <strong>{w.name}</strong>:{" "}
+                    {w.notes.length === 0
+                      ? "its latest log sits inside the fleet's range — still set a baseline of its own; fleet evidence alone never clears a quad."
+                      : w.notes.join(" · ")}
                   </li>
                 ))}
               </ul>
@@ -77,7 +96,11 @@ export default async function FleetPage() {
           <ActionForm action={createAirframeAction} submitLabel="Add airframe">
             <div className="row">
               <TextField label="Name" name="name" placeholder="HV-09" />
-              <TextField label="Frame design" name="frameDesign" defaultValue={rows[0]?.frameDesign ?? ""} />
+              <TextField
+                label="Frame design"
+                name="frameDesign"
+                defaultValue={rows[0]?.frameDesign ?? ""}
+              />
               <TextField label="Serial" name="serial" />
             </div>
             <label>

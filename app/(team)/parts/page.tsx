@@ -12,7 +12,11 @@ import { DAY } from "@/app/_components/dates";
 
 export const dynamic = "force-dynamic";
 
-export default async function PartsPage({ searchParams }: { searchParams: Promise<{ part?: string; kind?: string; fitted?: string }> }) {
+export default async function PartsPage({
+  searchParams,
+}: {
+  searchParams: Promise<{ part?: string; kind?: string; fitted?: string }>;
+}) {
   const actor = await requireMember("viewer");
   const { part: partId, kind, fitted } = await searchParams;
   const withFitted = fitted === "1";
@@ -33,7 +37,9 @@ export default async function PartsPage({ searchParams }: { searchParams: Promis
       ...(withFitted ? {} : { status: { not: "installed" } }),
     },
     orderBy: [{ kind: "asc" }, { model: "asc" }, { label: "asc" }],
-    include: { installations: { where: { toAt: null }, include: { airframe: { select: { name: true } } } } },
+    include: {
+      installations: { where: { toAt: null }, include: { airframe: { select: { name: true } } } },
+    },
   });
   return (
     <>
@@ -44,7 +50,8 @@ export default async function PartsPage({ searchParams }: { searchParams: Promis
             {history.part.kind} · {history.part.model} {history.part.label}
           </h2>
           <p className="muted">
-            {history.part.status} · {history.life.flights} flights, {history.life.minutes.toFixed(0)} min in all
+            {history.part.status} · {history.life.flights} flights,{" "}
+            {history.life.minutes.toFixed(0)} min in all
             {history.part.lifeFlights ? ` · life limit ${history.part.lifeFlights} flights` : ""}
             {history.part.supplier ? ` · from ${history.part.supplier}` : ""}
             {history.part.cost !== null ? ` · ${history.part.cost.toFixed(2)}` : ""}
@@ -103,7 +110,13 @@ export default async function PartsPage({ searchParams }: { searchParams: Promis
                 <td className="num">{g.installed}</td>
                 <td className="num">{g.damaged}</td>
                 <td className="num">{g.scrapped}</td>
-                <td>{g.low ? <strong style={{ color: "var(--inspect)" }}>low stock: fewer than 2 spares</strong> : null}</td>
+                <td>
+                  {g.low ? (
+                    <strong style={{ color: "var(--inspect)" }}>
+                      low stock: fewer than 2 spares
+                    </strong>
+                  ) : null}
+                </td>
               </tr>
             ))}
           </tbody>
@@ -117,7 +130,14 @@ export default async function PartsPage({ searchParams }: { searchParams: Promis
             <div className="row">
               <SelectField label="Kind" name="kind" options={PART_KINDS} />
               <TextField label="Model" name="model" />
-              <TextField label="How many" name="quantity" type="number" min={1} max={200} defaultValue={1} />
+              <TextField
+                label="How many"
+                name="quantity"
+                type="number"
+                min={1}
+                max={200}
+                defaultValue={1}
+              />
               <TextField label="Label" name="label" placeholder="spare-arm" />
             </div>
             <div className="row">
@@ -165,7 +185,11 @@ export default async function PartsPage({ searchParams }: { searchParams: Promis
                   <span className="muted small">{p.label}</span>
                 </td>
                 <td>{p.status}</td>
-                <td>{p.installations[0] ? `${p.installations[0].airframe.name}, ${p.installations[0].position}` : "–"}</td>
+                <td>
+                  {p.installations[0]
+                    ? `${p.installations[0].airframe.name}, ${p.installations[0].position}`
+                    : "–"}
+                </td>
                 <td>
                   {canTech && p.status !== "installed" ? (
                     <ActionForm action={setPartStatusAction} submitLabel="Set" compact>

@@ -4,7 +4,13 @@ import { SelectField, TextField } from "@/app/_components/fields";
 import { ROLES, roleAtLeast } from "@/lib/roles";
 import { requireMember } from "@/lib/server/guard";
 import { myInvitations, myTeams } from "@/lib/server/account";
-import { listMembers, listProfiles, listTokens, pendingInvitations, recentAudit } from "@/lib/server/team";
+import {
+  listMembers,
+  listProfiles,
+  listTokens,
+  pendingInvitations,
+  recentAudit,
+} from "@/lib/server/team";
 import {
   changePasswordAction,
   changeRoleAction,
@@ -35,12 +41,19 @@ export default async function TeamPage() {
   return (
     <>
       <h1>Team</h1>
-      {!isOwner ? <p className="muted">Members, roles and API tokens are managed by the team&apos;s owners.</p> : null}
+      {!isOwner ? (
+        <p className="muted">
+          Members, roles and API tokens are managed by the team&apos;s owners.
+        </p>
+      ) : null}
       {isOwner ? (
         <div className="grid two">
           <section className="card">
             <h2 style={{ marginTop: 0 }}>Members and roles</h2>
-            <p className="muted small">viewer: sees everything · pilot: also uploads logs and logs crashes · tech: also works on airframes, parts, events and baselines · owner: also manages the team.</p>
+            <p className="muted small">
+              viewer: sees everything · pilot: also uploads logs and logs crashes · tech: also works
+              on airframes, parts, events and baselines · owner: also manages the team.
+            </p>
             <table data-testid="members">
               <tbody>
                 {members.map((m) => (
@@ -52,7 +65,11 @@ export default async function TeamPage() {
                     <td>
                       <ActionForm action={changeRoleAction} submitLabel="Change" compact>
                         <input type="hidden" name="membershipId" value={m.id} />
-                        <select name="role" defaultValue={m.role} aria-label={`role of ${m.user.name}`}>
+                        <select
+                          name="role"
+                          defaultValue={m.role}
+                          aria-label={`role of ${m.user.name}`}
+                        >
                           {ROLES.map((r) => (
                             <option key={r}>{r}</option>
                           ))}
@@ -60,7 +77,12 @@ export default async function TeamPage() {
                       </ActionForm>
                     </td>
                     <td>
-                      <ActionForm action={removeMemberAction} submitLabel={m.userId === actor.userId ? "Leave team" : "Remove"} danger compact>
+                      <ActionForm
+                        action={removeMemberAction}
+                        submitLabel={m.userId === actor.userId ? "Leave team" : "Remove"}
+                        danger
+                        compact
+                      >
                         <input type="hidden" name="membershipId" value={m.id} />
                       </ActionForm>
                     </td>
@@ -70,7 +92,9 @@ export default async function TeamPage() {
                   <tr key={i.id}>
                     <td>
                       <strong>{i.email}</strong>
-                      <div className="muted small">invited as {i.role} · {WHEN.format(i.createdAt)} · not yet accepted</div>
+                      <div className="muted small">
+                        invited as {i.role} · {WHEN.format(i.createdAt)} · not yet accepted
+                      </div>
                     </td>
                     <td colSpan={2}>
                       <ActionForm action={withdrawInvitationAction} submitLabel="Withdraw" compact>
@@ -83,7 +107,10 @@ export default async function TeamPage() {
             </table>
             <details className="action">
               <summary>Invite a member</summary>
-              <p className="muted small">The person joins when they accept, after signing in. An email with no account yet gets one with the first password you give.</p>
+              <p className="muted small">
+                The person joins when they accept, after signing in. An email with no account yet
+                gets one with the first password you give.
+              </p>
               <ActionForm action={inviteMemberAction} submitLabel="Invite">
                 <div className="row">
                   <TextField label="Name" name="name" />
@@ -91,14 +118,23 @@ export default async function TeamPage() {
                 </div>
                 <div className="row">
                   <SelectField label="Role" name="role" options={ROLES} defaultValue="pilot" />
-                  <TextField label="First password for a new account (12+ characters)" name="password" type="password" autoComplete="new-password" />
+                  <TextField
+                    label="First password for a new account (12+ characters)"
+                    name="password"
+                    type="password"
+                    autoComplete="new-password"
+                  />
                 </div>
               </ActionForm>
             </details>
           </section>
           <section className="card">
             <h2 style={{ marginTop: 0 }}>API tokens for scripted uploads</h2>
-            <p className="muted small">A token belongs to the team: it may upload logs and read the queue and the airframes. Only a hash is stored. When its creator stops being an owner it pauses until another owner confirms it.</p>
+            <p className="muted small">
+              A token belongs to the team: it may upload logs and read the queue and the airframes.
+              Only a hash is stored. When its creator stops being an owner it pauses until another
+              owner confirms it.
+            </p>
             <table data-testid="tokens">
               <tbody>
                 {tokens.map((t) => (
@@ -107,15 +143,24 @@ export default async function TeamPage() {
                       <strong>{t.name}</strong> <code>{t.prefix}…</code>
                       <div className="muted small">
                         created by {t.createdByName} {WHEN.format(t.createdAt)}
-                        {t.lastUsedAt ? ` · last used ${WHEN.format(t.lastUsedAt)}` : " · never used"}
+                        {t.lastUsedAt
+                          ? ` · last used ${WHEN.format(t.lastUsedAt)}`
+                          : " · never used"}
                       </div>
                     </td>
                     <td>
                       {t.revokedAt ? (
                         <span className="muted">revoked {WHEN.format(t.revokedAt)}</span>
                       ) : t.suspendedAt ? (
-                        <ActionForm action={confirmTokenAction} submitLabel="Confirm: keep it working" compact>
-                          <span className="muted small">paused since {WHEN.format(t.suspendedAt)}: its creator is no longer an owner </span>
+                        <ActionForm
+                          action={confirmTokenAction}
+                          submitLabel="Confirm: keep it working"
+                          compact
+                        >
+                          <span className="muted small">
+                            paused since {WHEN.format(t.suspendedAt)}: its creator is no longer an
+                            owner{" "}
+                          </span>
                           <input type="hidden" name="tokenId" value={t.id} />
                         </ActionForm>
                       ) : (
@@ -147,23 +192,50 @@ export default async function TeamPage() {
           ))}
           {teams.length > 1 ? (
             <ActionForm action={switchTeamAction} submitLabel="Switch team" compact>
-              <SelectField label="Team" name="teamId" defaultValue={actor.teamId} options={teams.map((t) => ({ value: t.teamId, label: `${t.team.name} (${t.role})` }))} />
+              <SelectField
+                label="Team"
+                name="teamId"
+                defaultValue={actor.teamId}
+                options={teams.map((t) => ({
+                  value: t.teamId,
+                  label: `${t.team.name} (${t.role})`,
+                }))}
+              />
             </ActionForm>
           ) : null}
           <details className="action" style={{ marginTop: "0.6rem" }}>
             <summary>Change your password</summary>
             <ActionForm action={changePasswordAction} submitLabel="Change password">
-              <TextField label="Current password" name="current" type="password" autoComplete="current-password" />
+              <TextField
+                label="Current password"
+                name="current"
+                type="password"
+                autoComplete="current-password"
+              />
               <div className="row">
-                <TextField label="New password (12+ characters)" name="next" type="password" autoComplete="new-password" />
-                <TextField label="New password again" name="confirm" type="password" autoComplete="new-password" />
+                <TextField
+                  label="New password (12+ characters)"
+                  name="next"
+                  type="password"
+                  autoComplete="new-password"
+                />
+                <TextField
+                  label="New password again"
+                  name="confirm"
+                  type="password"
+                  autoComplete="new-password"
+                />
               </div>
             </ActionForm>
           </details>
         </section>
         <section className="card">
           <h2 style={{ marginTop: 0 }}>Import profiles</h2>
-          {profiles.length === 0 ? <p className="muted">None yet: the upload screen saves one when you map a logger&apos;s columns.</p> : null}
+          {profiles.length === 0 ? (
+            <p className="muted">
+              None yet: the upload screen saves one when you map a logger&apos;s columns.
+            </p>
+          ) : null}
           <ul>
             {profiles.map((p) => (
               <li key={p.id}>

@@ -9,7 +9,11 @@ export const dynamic = "force-dynamic";
 
 export default async function UploadPage() {
   const actor = await requireMember("viewer");
-  const airframes = await db.airframe.findMany({ where: { teamId: actor.teamId, retired: false }, orderBy: { name: "asc" }, select: { id: true, name: true } });
+  const airframes = await db.airframe.findMany({
+    where: { teamId: actor.teamId, retired: false },
+    orderBy: { name: "asc" },
+    select: { id: true, name: true },
+  });
   const profiles = await listProfiles(actor);
   return (
     <>
@@ -17,12 +21,19 @@ export default async function UploadPage() {
       {roleAtLeast(actor.role, "pilot") ? (
         <>
           <p className="muted">
-            Drop one file or a whole folder after a heat. Each file is matched to an airframe from its <code># airframe:</code> line or its file name; change the match before importing if it is wrong.
+            Drop one file or a whole folder after a heat. Each file is matched to an airframe from
+            its <code># airframe:</code> line or its file name; change the match before importing if
+            it is wrong.
           </p>
-          <Uploader airframes={airframes} profiles={profiles.map((p) => ({ name: p.name, mapText: p.mapText }))} />
+          <Uploader
+            airframes={airframes}
+            profiles={profiles.map((p) => ({ name: p.name, mapText: p.mapText }))}
+          />
         </>
       ) : (
-        <p className="muted">Your role can view logs but not upload them. Ask an owner for the pilot role.</p>
+        <p className="muted">
+          Your role can view logs but not upload them. Ask an owner for the pilot role.
+        </p>
       )}
       <Caution compact />
     </>

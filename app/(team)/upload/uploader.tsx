@@ -13,7 +13,15 @@ export interface UploaderProps {
   profiles: { name: string; mapText: string }[];
 }
 
-type Phase = "ready" | "needs-airframe" | "needs-map" | "uploading" | "analysing" | "done" | "failed" | "skipped";
+type Phase =
+  | "ready"
+  | "needs-airframe"
+  | "needs-map"
+  | "uploading"
+  | "analysing"
+  | "done"
+  | "failed"
+  | "skipped";
 
 interface Item {
   key: string;
@@ -61,13 +69,30 @@ export function Uploader({ airframes, profiles }: UploaderProps) {
     for (const file of files) {
       const key = `${file.name}-${file.size}-${file.lastModified}-${Math.random()}`;
       if (!/\.(csv|txt)$/i.test(file.name)) {
-        fresh.push({ key, file, airframeId: "", matchedBy: "", canonical: false, mapText: "", headers: [], rows: [], guesses: [], phase: "skipped", uploadFraction: 0, analysisFraction: 0, message: "not a .csv log; skipped" });
+        fresh.push({
+          key,
+          file,
+          airframeId: "",
+          matchedBy: "",
+          canonical: false,
+          mapText: "",
+          headers: [],
+          rows: [],
+          guesses: [],
+          phase: "skipped",
+          uploadFraction: 0,
+          analysisFraction: 0,
+          message: "not a .csv log; skipped",
+        });
         continue;
       }
       const text = await file.slice(0, HEAD_BYTES).text();
       const head = sniffLogHead(text);
       const rows = head ? previewRows(text, head.line) : [];
-      const match = matchAirframe(airframes.map((a) => a.name), { metadataAirframe: head?.metadata.airframe, fileName: file.name });
+      const match = matchAirframe(
+        airframes.map((a) => a.name),
+        { metadataAirframe: head?.metadata.airframe, fileName: file.name },
+      );
       const airframeId = match ? (airframes.find((a) => a.name === match.name)?.id ?? "") : "";
       const canonical = head?.canonical ?? false;
       // The proposal again with the first rows, so a time column can also be told by rising values.
@@ -83,10 +108,20 @@ export function Uploader({ airframes, profiles }: UploaderProps) {
         headers: head?.headers ?? [],
         rows,
         guesses: proposal?.guesses ?? [],
-        phase: !head ? "failed" : !airframeId ? "needs-airframe" : canonical ? "ready" : "needs-map",
+        phase: !head
+          ? "failed"
+          : !airframeId
+            ? "needs-airframe"
+            : canonical
+              ? "ready"
+              : "needs-map",
         uploadFraction: 0,
         analysisFraction: 0,
-        message: !head ? "no header row found: not a CSV flight log" : proposal && proposal.missing.length > 0 ? `no column for ${proposal.missing.join(", ")}: give a map` : "",
+        message: !head
+          ? "no header row found: not a CSV flight log"
+          : proposal && proposal.missing.length > 0
+            ? `no column for ${proposal.missing.join(", ")}: give a map`
+            : "",
       });
     }
     setItems((list) => [...list, ...fresh]);
@@ -117,15 +152,28 @@ export function Uploader({ airframes, profiles }: UploaderProps) {
           body = { error: `the server answered ${xhr.status}` };
         }
         if (xhr.status >= 200 && xhr.status < 300 && body.logId) {
-          update(item.key, { phase: "analysing", uploadFraction: 1, logId: body.logId, message: body.duplicate ? `already uploaded (for ${body.airframe ?? "?"}): showing its verdict` : "" });
+          update(item.key, {
+            phase: "analysing",
+            uploadFraction: 1,
+            logId: body.logId,
+            message: body.duplicate
+              ? `already uploaded (for ${body.airframe ?? "?"}): showing its verdict`
+              : "",
+          });
           void poll(item.key, body.logId).then(resolve);
         } else {
-          update(item.key, { phase: "failed", message: body.error ?? `upload failed (${xhr.status})` });
+          update(item.key, {
+            phase: "failed",
+            message: body.error ?? `upload failed (${xhr.status})`,
+          });
           resolve();
         }
       };
       xhr.onerror = () => {
-        update(item.key, { phase: "failed", message: "the connection dropped during the upload; nothing was kept, try again" });
+        update(item.key, {
+          phase: "failed",
+          message: "the connection dropped during the upload; nothing was kept, try again",
+        });
         resolve();
       };
       update(item.key, { phase: "uploading", message: "" });
@@ -138,19 +186,34 @@ export function Uploader({ airframes, profiles }: UploaderProps) {
       await new Promise((r) => setTimeout(r, 800));
       const res = await fetch(`/api/v1/logs/${logId}`, { cache: "no-store" });
       if (!res.ok) continue;
-      const s = (await res.json()) as { status: string; progress: number; error: string | null; verdict: { score: number | null; status: string } | null };
+      const s = (await res.json()) as {
+        status: string;
+        progress: number;
+        error: string | null;
+        verdict: { score: number | null; status: string } | null;
+      };
       if (s.status === "pending") {
         update(key, { analysisFraction: s.progress });
         continue;
       }
-      if (s.status === "failed") update(key, { phase: "failed", message: s.error ?? "analysis failed" });
-      else update(key, { phase: "done", analysisFraction: 1, message: s.verdict ? `${s.verdict.status.toUpperCase()} · score ${s.verdict.score === null ? "–" : Math.round(s.verdict.score)}` : "analysed (no baseline yet to compare with)" });
+      if (s.status === "failed")
+        update(key, { phase: "failed", message: s.error ?? "analysis failed" });
+      else
+        update(key, {
+          phase: "done",
+          analysisFraction: 1,
+          message: s.verdict
+            ? `${s.verdict.status.toUpperCase()} · score ${s.verdict.score === null ? "–" : Math.round(s.verdict.score)}`
+            : "analysed (no baseline yet to compare with)",
+        });
       return;
     }
   }
 
   async function importAll() {
-    const queue = itemsRef.current.filter((i) => i.phase === "ready" || (i.phase === "needs-map" && mapComplete(i.mapText)));
+    const queue = itemsRef.current.filter(
+      (i) => i.phase === "ready" || (i.phase === "needs-map" && mapComplete(i.mapText)),
+    );
     // Two at a time: the pit laptop's link and the analysis workers both stay busy.
     const workers = [0, 1].map(async () => {
       for (let next = queue.shift(); next; next = queue.shift()) await upload(next);
@@ -168,7 +231,9 @@ export function Uploader({ airframes, profiles }: UploaderProps) {
   }
 
   const pendingMaps = items.filter((i) => i.phase === "needs-map");
-  const importable = items.filter((i) => i.phase === "ready" || (i.phase === "needs-map" && mapComplete(i.mapText))).length;
+  const importable = items.filter(
+    (i) => i.phase === "ready" || (i.phase === "needs-map" && mapComplete(i.mapText)),
+  ).length;
 
   return (
     <div data-testid="uploader">
@@ -186,7 +251,14 @@ export function Uploader({ airframes, profiles }: UploaderProps) {
         </p>
         <div className="row" style={{ justifyContent: "center" }}>
           <label className="inline" style={{ flex: "0 0 auto" }}>
-            Files <input type="file" multiple accept=".csv,.txt" data-testid="file-input" onChange={(e) => void add(Array.from(e.target.files ?? []))} />
+            Files{" "}
+            <input
+              type="file"
+              multiple
+              accept=".csv,.txt"
+              data-testid="file-input"
+              onChange={(e) => void add(Array.from(e.target.files ?? []))}
+            />
           </label>
           <label className="inline" style={{ flex: "0 0 auto" }}>
             Folder{" "}
@@ -205,7 +277,10 @@ export function Uploader({ airframes, profiles }: UploaderProps) {
       {pendingMaps.length > 0 ? (
         <section className="card" style={{ marginTop: "1rem" }} data-testid="map-step">
           <h2 style={{ marginTop: 0 }}>Which column is which</h2>
-          <p className="muted small">These files do not use heatcheck&apos;s own column names. Check each field&apos;s column and unit; the last column shows the first rows as heatcheck will read them.</p>
+          <p className="muted small">
+            These files do not use heatcheck&apos;s own column names. Check each field&apos;s column
+            and unit; the last column shows the first rows as heatcheck will read them.
+          </p>
           {pendingMaps.map((i) => (
             <div key={i.key} style={{ marginBottom: "0.8rem" }}>
               {i.guesses.length > 0 ? (
@@ -218,22 +293,47 @@ export function Uploader({ airframes, profiles }: UploaderProps) {
                   </ul>
                 </details>
               ) : null}
-              <ColumnMapTable fileName={i.file.name} headers={i.headers} rows={i.rows} mapText={i.mapText} onChange={(mapText) => update(i.key, { mapText, message: mapComplete(mapText) ? "" : "the column map is not complete yet" })} />
+              <ColumnMapTable
+                fileName={i.file.name}
+                headers={i.headers}
+                rows={i.rows}
+                mapText={i.mapText}
+                onChange={(mapText) =>
+                  update(i.key, {
+                    mapText,
+                    message: mapComplete(mapText) ? "" : "the column map is not complete yet",
+                  })
+                }
+              />
               <div className="row">
                 <details style={{ flex: "3 1 400px" }}>
-                  <summary className="small">The same map as text (for the command line and import profiles)</summary>
+                  <summary className="small">
+                    The same map as text (for the command line and import profiles)
+                  </summary>
                   <label>
                     Map text
-                    <input value={i.mapText} onChange={(e) => update(i.key, { mapText: e.target.value })} />
+                    <input
+                      value={i.mapText}
+                      onChange={(e) => update(i.key, { mapText: e.target.value })}
+                    />
                   </label>
                   <p className="muted small">
-                    <code>key=Header|unit</code> entries separated by commas, e.g. <code>time=Time (us)|us,roll=GyroX|rad/s</code>
+                    <code>key=Header|unit</code> entries separated by commas, e.g.{" "}
+                    <code>time=Time (us)|us,roll=GyroX|rad/s</code>
                   </p>
                 </details>
                 {profiles.length > 0 ? (
                   <label>
                     Import profile
-                    <select defaultValue="" onChange={(e) => update(i.key, { mapText: profiles.find((p) => p.name === e.target.value)?.mapText ?? i.mapText })}>
+                    <select
+                      defaultValue=""
+                      onChange={(e) =>
+                        update(i.key, {
+                          mapText:
+                            profiles.find((p) => p.name === e.target.value)?.mapText ?? i.mapText,
+                        })
+                      }
+                    >
                       <option value="">—</option>
                       {profiles.map((p) => (
                         <option key={p.name}>{p.name}</option>
@@ -245,17 +345,29 @@ export function Uploader({ airframes, profiles }: UploaderProps) {
               <div className="row" style={{ alignItems: "end" }}>
                 <label>
                   Save this map as a profile named
-                  <input value={profileName} onChange={(e) => setProfileName(e.target.value)} placeholder="logger model" />
+                  <input
+                    value={profileName}
+                    onChange={(e) => setProfileName(e.target.value)}
+                    placeholder="logger model"
+                  />
                 </label>
                 <div>
-                  <button type="button" className="secondary" onClick={() => void saveProfile(i.mapText)}>
+                  <button
+                    type="button"
+                    className="secondary"
+                    onClick={() => void saveProfile(i.mapText)}
+                  >
                     Save profile
                   </button>
                 </div>
               </div>
             </div>
           ))}
-          {profileNote ? <p className="form-message" data-testid="profile-note">{profileNote}</p> : null}
+          {profileNote ? (
+            <p className="form-message" data-testid="profile-note">
+              {profileNote}
+            </p>
+          ) : null}
         </section>
       ) : null}
 
@@ -283,7 +395,17 @@ export function Uploader({ airframes, profiles }: UploaderProps) {
                       value={i.airframeId}
                       disabled={!["ready", "needs-airframe", "needs-map"].includes(i.phase)}
                       aria-label={`airframe for ${i.file.name}`}
-                      onChange={(e) => update(i.key, { airframeId: e.target.value, matchedBy: "chosen", phase: e.target.value ? (i.canonical ? "ready" : "needs-map") : "needs-airframe" })}
+                      onChange={(e) =>
+                        update(i.key, {
+                          airframeId: e.target.value,
+                          matchedBy: "chosen",
+                          phase: e.target.value
+                            ? i.canonical
+                              ? "ready"
+                              : "needs-map"
+                            : "needs-airframe",
+                        })
+                      }
                     >
                       <option value="">— choose —</option>
                       {airframes.map((a) => (
@@ -304,8 +426,15 @@ export function Uploader({ airframes, profiles }: UploaderProps) {
                       <div style={{ width: `${Math.round(i.analysisFraction * 100)}%` }} />
                     </div>
                   </td>
-                  <td className={i.phase === "failed" ? "field-error" : undefined} data-testid="upload-result">
-                    {i.phase === "done" ? <strong>{i.message}</strong> : i.message || i.phase.replace("-", " ")}
+                  <td
+                    className={i.phase === "failed" ? "field-error" : undefined}
+                    data-testid="upload-result"
+                  >
+                    {i.phase === "done" ? (
+                      <strong>{i.message}</strong>
+                    ) : (
+                      i.message || i.phase.replace("-", " ")
+                    )}
                   </td>
                 </tr>
               ))}
@@ -313,7 +442,12 @@ export function Uploader({ airframes, profiles }: UploaderProps) {
           </table>
           <div className="row" style={{ marginTop: "0.8rem" }}>
             <div>
-              <button type="button" onClick={() => void importAll()} disabled={importable === 0} data-testid="import-all">
+              <button
+                type="button"
+                onClick={() => void importAll()}
+                disabled={importable === 0}
+                data-testid="import-all"
+              >
                 Import {importable} file{importable === 1 ? "" : "s"}
               </button>{" "}
               <button type="button" className="secondary" onClick={() => setItems([])}>

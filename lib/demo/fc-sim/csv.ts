@@ -81,17 +81,33 @@ export function fixed(v: number, digits: number): string {
   const k = Math.round(Math.abs(v) * (SCALE[digits] ?? 10 ** digits));
   if (digits === 0) return (v < 0 && k !== 0 ? "-" : "") + String(k);
   const s = String(k).padStart(digits + 1, "0");
-  return (v < 0 && k !== 0 ? "-" : "") + s.slice(0, s.length - digits) + "." + s.slice(s.length - digits);
+  return (
+    (v < 0 && k !== 0 ? "-" : "") + s.slice(0, s.length - digits) + "." + s.slice(s.length - digits)
+  );
 }
 
 export function writeLogCsv(log: LoggedLog, style: HeaderStyle, meta: CsvMeta): WrittenLog {
   const l = LAYOUTS[style];
-  const head = [`# airframe: ${meta.airframe}`, `# flown_at: ${meta.flownAt}`, `# note: ${meta.note}`];
+  const head = [
+    `# airframe: ${meta.airframe}`,
+    `# flown_at: ${meta.flownAt}`,
+    `# note: ${meta.note}`,
+  ];
   head.push([l.time.header, ...l.gyro, l.throttle.header, ...log.motors.map(l.rpm)].join(","));
   const chunks: Buffer[] = [Buffer.from(head.join("\n") + "\n")];
-  const time = (t: number) => (l.time.unit === "us" ? String(Math.round(t * 1e6)) : l.time.unit === "ms" ? fixed(t * 1e3, 3) : fixed(t, 6));
+  const time = (t: number) =>
+    l.time.unit === "us"
+      ? String(Math.round(t * 1e6))
+      : l.time.unit === "ms"
+        ? fixed(t * 1e3, 3)
+        : fixed(t, 6);
   const rate = (v: number) => (l.gyroUnit === "deg/s" ? fixed(v, 3) : fixed(v * DEG_TO_RAD, 6));
-  const thr = (v: number) => (l.throttle.unit === "fraction" ? fixed(v, 4) : l.throttle.unit === "percent" ? fixed(v * 100, 2) : fixed(1000 + 1000 * v, 1));
+  const thr = (v: number) =>
+    l.throttle.unit === "fraction"
+      ? fixed(v, 4)
+      : l.throttle.unit === "percent"
+        ? fixed(v * 100, 2)
+        : fixed(1000 + 1000 * v, 1);
   const rpm = (v: number) => (l.rpmUnit === "rpm" ? String(Math.round(v)) : fixed(v / 60, 2));
   const n = log.timeS.length;
   const BLOCK = 4096;

@@ -12,7 +12,15 @@ import { cloneAirframe, type ModeSpec, type SimAirframe } from "./airframe";
  * adds a resonance of its own. The magnitudes are invented.
  */
 
-export const DAMAGE_CLASSES = ["crack", "loose-frame", "bent-prop", "loose-motor", "bearing", "loose-stack", "loose-mount"] as const;
+export const DAMAGE_CLASSES = [
+  "crack",
+  "loose-frame",
+  "bent-prop",
+  "loose-motor",
+  "bearing",
+  "loose-stack",
+  "loose-mount",
+] as const;
 export type DamageClass = (typeof DAMAGE_CLASSES)[number];
 export type Severity = 1 | 2 | 3;
 
@@ -53,7 +61,11 @@ export const STACK_GAIN = [1, 2, 4] as const;
 export const MOUNT_GAIN = [0.5, 1, 2] as const;
 
 /** Frequency windows for a new resonance that keep it at least 7 % from the design's modes. */
-const STACK_WINDOWS: readonly (readonly [number, number])[] = [[140, 154], [182, 205], [243, 272]];
+const STACK_WINDOWS: readonly (readonly [number, number])[] = [
+  [140, 154],
+  [182, 205],
+  [243, 272],
+];
 const MOUNT_WINDOW = [55, 120] as const;
 
 function pick<T>(rand: Random, items: readonly T[]): T {
@@ -72,7 +84,10 @@ function healthyTruth(): CaseTruth {
 }
 
 /** The airframe with the damage applied (a copy) and the truth of the case. */
-export function applyDamage(airframe: SimAirframe, damage: DamageSpec | null): { airframe: SimAirframe; truth: CaseTruth } {
+export function applyDamage(
+  airframe: SimAirframe,
+  damage: DamageSpec | null,
+): { airframe: SimAirframe; truth: CaseTruth } {
   const a = cloneAirframe(airframe);
   if (!damage) return { airframe: a, truth: healthyTruth() };
   const s = damage.severity - 1;
@@ -92,7 +107,11 @@ export function applyDamage(airframe: SimAirframe, damage: DamageSpec | null): {
       const oneSide = axes.length > 1 && rand() < 0.5 ? pick(rand, axes) : null;
       let cracked: ModeSpec = mode;
       if (oneSide) {
-        cracked = { ...mode, name: `${mode.name} (cracked side)`, shape: { roll: 0, pitch: 0, yaw: 0 } };
+        cracked = {
+          ...mode,
+          name: `${mode.name} (cracked side)`,
+          shape: { roll: 0, pitch: 0, yaw: 0 },
+        };
         cracked.shape[oneSide] = mode.shape[oneSide];
         mode.shape[oneSide] = 0.1 * mode.shape[oneSide];
         a.modes.push(cracked);
@@ -136,7 +155,14 @@ export function applyDamage(airframe: SimAirframe, damage: DamageSpec | null): {
       motor.order2 *= PROP_2X[s] ?? 1.7;
       return {
         airframe: a,
-        truth: { kind: "bent-prop", severity: sev, description: `bent prop on motor ${motor.motor}: 1× ×${PROP_1X[s]}, 2× ×${PROP_2X[s]}`, axes: [], freqsHz: [], motor: motor.motor },
+        truth: {
+          kind: "bent-prop",
+          severity: sev,
+          description: `bent prop on motor ${motor.motor}: 1× ×${PROP_1X[s]}, 2× ×${PROP_2X[s]}`,
+          axes: [],
+          freqsHz: [],
+          motor: motor.motor,
+        },
       };
     }
     case "loose-motor": {
@@ -180,10 +206,23 @@ export function applyDamage(airframe: SimAirframe, damage: DamageSpec | null): {
       const axis: Axis = rand() < 0.5 ? "roll" : "pitch";
       const shape = { roll: 0.5, pitch: 0.5, yaw: 0.08 };
       shape[axis] = 1;
-      a.modes.push({ name: "stack rocking", naturalHz: freq, dampingRatio: 0.05, shape, gain: STACK_GAIN[s] ?? 2.5, primary: false });
+      a.modes.push({
+        name: "stack rocking",
+        naturalHz: freq,
+        dampingRatio: 0.05,
+        shape,
+        gain: STACK_GAIN[s] ?? 2.5,
+        primary: false,
+      });
       return {
         airframe: a,
-        truth: { kind: "loose-stack", severity: sev, description: `loose flight-controller stack: new resonance at ${freq.toFixed(0)} Hz, mostly ${axis}`, axes: [axis], freqsHz: [freq] },
+        truth: {
+          kind: "loose-stack",
+          severity: sev,
+          description: `loose flight-controller stack: new resonance at ${freq.toFixed(0)} Hz, mostly ${axis}`,
+          axes: [axis],
+          freqsHz: [freq],
+        },
       };
     }
     case "loose-mount": {
@@ -192,10 +231,23 @@ export function applyDamage(airframe: SimAirframe, damage: DamageSpec | null): {
       const shape = { roll: 0.2, pitch: 0.2, yaw: 0.2 };
       shape[axis] = 1;
       const what = rand() < 0.5 ? "camera" : "antenna";
-      a.modes.push({ name: `${what} rocking`, naturalHz: freq, dampingRatio: 0.07, shape, gain: MOUNT_GAIN[s] ?? 3, primary: false });
+      a.modes.push({
+        name: `${what} rocking`,
+        naturalHz: freq,
+        dampingRatio: 0.07,
+        shape,
+        gain: MOUNT_GAIN[s] ?? 3,
+        primary: false,
+      });
       return {
         airframe: a,
-        truth: { kind: "loose-mount", severity: sev, description: `loose ${what}: new resonance at ${freq.toFixed(0)} Hz, mostly ${axis}`, axes: [axis], freqsHz: [freq] },
+        truth: {
+          kind: "loose-mount",
+          severity: sev,
+          description: `loose ${what}: new resonance at ${freq.toFixed(0)} Hz, mostly ${axis}`,
+          axes: [axis],
+          freqsHz: [freq],
+        },
       };
     }
   }

@@ -45,16 +45,30 @@ export interface BiquadCoefficients {
 }
 
 /** Cookbook low-pass; q = 1/√2 is a second-order Butterworth section (−3 dB at the corner). */
-export function lowPassCoefficients(cornerHz: number, q: number, sampleRateHz: number): BiquadCoefficients {
+export function lowPassCoefficients(
+  cornerHz: number,
+  q: number,
+  sampleRateHz: number,
+): BiquadCoefficients {
   const w = (2 * Math.PI * cornerHz) / sampleRateHz;
   const alpha = Math.sin(w) / (2 * q);
   const c = Math.cos(w);
   const a0 = 1 + alpha;
-  return { b0: (1 - c) / 2 / a0, b1: (1 - c) / a0, b2: (1 - c) / 2 / a0, a1: (-2 * c) / a0, a2: (1 - alpha) / a0 };
+  return {
+    b0: (1 - c) / 2 / a0,
+    b1: (1 - c) / a0,
+    b2: (1 - c) / 2 / a0,
+    a1: (-2 * c) / a0,
+    a2: (1 - alpha) / a0,
+  };
 }
 
 /** Cookbook notch: zero gain at the centre, Q = centre / bandwidth (bandwidth between the −3 dB points). */
-export function notchCoefficients(centreHz: number, q: number, sampleRateHz: number): BiquadCoefficients {
+export function notchCoefficients(
+  centreHz: number,
+  q: number,
+  sampleRateHz: number,
+): BiquadCoefficients {
   const w = (2 * Math.PI * centreHz) / sampleRateHz;
   const alpha = Math.sin(w) / (2 * q);
   const c = Math.cos(w);
@@ -63,7 +77,11 @@ export function notchCoefficients(centreHz: number, q: number, sampleRateHz: num
 }
 
 /** |H(e^{jω})|² of a biquad at f Hz, evaluated from its coefficients. */
-export function biquadPowerGain(c: BiquadCoefficients, sampleRateHz: number, freqHz: number): number {
+export function biquadPowerGain(
+  c: BiquadCoefficients,
+  sampleRateHz: number,
+  freqHz: number,
+): number {
   const w = (2 * Math.PI * freqHz) / sampleRateHz;
   const re = (b0: number, b1: number, b2: number) => b0 + b1 * Math.cos(w) + b2 * Math.cos(2 * w);
   const im = (b1: number, b2: number) => -(b1 * Math.sin(w) + b2 * Math.sin(2 * w));

@@ -52,12 +52,30 @@ function choose(rand: Random, weights: Record<PhaseKind, number>): PhaseKind {
  * A schedule of phases covering durationS. Starts with a short hover (take-off) as flights do;
  * flips and rolls are followed by a catch at high throttle.
  */
-export function flightSchedule(mix: FlightMix, durationS: number, seed: number, hoverThrottle: number): Phase[] {
+export function flightSchedule(
+  mix: FlightMix,
+  durationS: number,
+  seed: number,
+  hoverThrottle: number,
+): Phase[] {
   const rand = mulberry32(0xf11e + 15485863 * seed);
   const phases: Phase[] = [];
   let t = 0;
-  const push = (kind: PhaseKind, durationS: number, throttle: number, rates: [number, number, number] = [0, 0, 0]) => {
-    phases.push({ kind, startS: t, durationS, throttle, rollRate: rates[0], pitchRate: rates[1], yawRate: rates[2] });
+  const push = (
+    kind: PhaseKind,
+    durationS: number,
+    throttle: number,
+    rates: [number, number, number] = [0, 0, 0],
+  ) => {
+    phases.push({
+      kind,
+      startS: t,
+      durationS,
+      throttle,
+      rollRate: rates[0],
+      pitchRate: rates[1],
+      yawRate: rates[2],
+    });
     t += durationS;
   };
   push("hover", 1.5, hoverThrottle);
@@ -69,13 +87,21 @@ export function flightSchedule(mix: FlightMix, durationS: number, seed: number, 
         push("hover", between(rand, 1.5, 4), hoverThrottle);
         break;
       case "cruise":
-        push("cruise", between(rand, 1, 3), between(rand, 0.38, 0.62), [sign * between(rand, 50, 250), between(rand, -80, 80), sign * between(rand, 40, 200)]);
+        push("cruise", between(rand, 1, 3), between(rand, 0.38, 0.62), [
+          sign * between(rand, 50, 250),
+          between(rand, -80, 80),
+          sign * between(rand, 40, 200),
+        ]);
         break;
       case "punch":
         push("punch", between(rand, 0.6, 1.5), between(rand, 0.82, 1));
         break;
       case "wash":
-        push("wash", between(rand, 0.8, 2), between(rand, 0.08, 0.2), [between(rand, -60, 60), between(rand, -60, 60), 0]);
+        push("wash", between(rand, 0.8, 2), between(rand, 0.08, 0.2), [
+          between(rand, -60, 60),
+          between(rand, -60, 60),
+          0,
+        ]);
         break;
       case "flip":
       case "roll": {

@@ -3,7 +3,14 @@ import { Biquad } from "../../signal/biquad";
 import { mulberry32, type Random } from "../random";
 import type { SimAirframe } from "./airframe";
 import { applyDamage, type CaseTruth, type DamageSpec } from "./damage";
-import { BiquadBank, ModalResonator, OnePoleLowPass, lowPassCoefficients, notchCoefficients, type BiquadCoefficients } from "./filters";
+import {
+  BiquadBank,
+  ModalResonator,
+  OnePoleLowPass,
+  lowPassCoefficients,
+  notchCoefficients,
+  type BiquadCoefficients,
+} from "./filters";
 import { flightSchedule, type FlightMix, type Phase } from "./flight";
 import { EscTelemetry, type TelemetrySpec } from "./telemetry";
 
@@ -99,7 +106,12 @@ const COS_23 = Math.cos(2.3);
 const SIN_23 = Math.sin(2.3);
 
 /** Moves a notch in place (its bank holds the same object). */
-function setNotch(c: BiquadCoefficients | undefined, centreHz: number, q: number, fs: number): void {
+function setNotch(
+  c: BiquadCoefficients | undefined,
+  centreHz: number,
+  q: number,
+  fs: number,
+): void {
   if (!c) return;
   const n = notchCoefficients(centreHz, q, fs);
   c.b0 = n.b0;
@@ -109,7 +121,11 @@ function setNotch(c: BiquadCoefficients | undefined, centreHz: number, q: number
   c.a2 = n.a2;
 }
 
-function dropoutIntervals(spec: DropoutSpec | undefined, durationS: number, rand: Random): [number, number][] {
+function dropoutIntervals(
+  spec: DropoutSpec | undefined,
+  durationS: number,
+  rand: Random,
+): [number, number][] {
   if (!spec) return [];
   const out: [number, number][] = [];
   for (let i = 0; i < spec.bursts; i++) {
@@ -125,11 +141,17 @@ function dropoutIntervals(spec: DropoutSpec | undefined, durationS: number, rand
  * Simulates one flight of `airframe` with `damage` (null: healthy) and returns its logs at each of
  * `logRatesHz` (each must divide the loop rate). The same arguments give the same logs.
  */
-export function simulateFlight(base: SimAirframe, flight: FlightSpec, damage: DamageSpec | null, logRatesHz: readonly number[]): SimulatedFlight {
+export function simulateFlight(
+  base: SimAirframe,
+  flight: FlightSpec,
+  damage: DamageSpec | null,
+  logRatesHz: readonly number[],
+): SimulatedFlight {
   const { airframe, truth } = applyDamage(base, damage);
   const fs = airframe.fc.loopRateHz;
   for (const r of logRatesHz) {
-    if (!(r > 0) || fs % r !== 0) throw new RangeError(`log rate ${r} Hz does not divide the loop rate ${fs} Hz`);
+    if (!(r > 0) || fs % r !== 0)
+      throw new RangeError(`log rate ${r} Hz does not divide the loop rate ${fs} Hz`);
   }
   const dt = 1 / fs;
   const total = Math.round(flight.durationS * fs);
@@ -141,7 +163,10 @@ export function simulateFlight(base: SimAirframe, flight: FlightSpec, damage: Da
   const motorCount = motors.length;
   const dropouts: Record<number, [number, number][]> = {};
   const telemetry = motors.map((m) => {
-    const intervals = flight.dropouts?.motor === m.motor ? dropoutIntervals(flight.dropouts, flight.durationS, rand) : [];
+    const intervals =
+      flight.dropouts?.motor === m.motor
+        ? dropoutIntervals(flight.dropouts, flight.durationS, rand)
+        : [];
     dropouts[m.motor] = intervals;
     const spec: TelemetrySpec = { ...airframe.telemetry, dropouts: intervals };
     return new EscTelemetry(spec, fs, mulberry32(0x7e1e + 97 * m.motor + 7 * flight.seed));
@@ -150,7 +175,15 @@ export function simulateFlight(base: SimAirframe, flight: FlightSpec, damage: Da
   const logs: LoggedLog[] = logRatesHz.map((rateHz) => {
     const n = Math.floor(total / (fs / rateHz));
     const make = () => new Float64Array(n);
-    return { rateHz, timeS: make(), gyro: [make(), make(), make()], throttle: make(), rpm: motors.map(make), trueRpm: motors.map(make), motors: motors.map((m) => m.motor) };
+    return {
+      rateHz,
+      timeS: make(),
+      gyro: [make(), make(), make()],
+      throttle: make(),
+      rpm: motors.map(make),
+      trueRpm: motors.map(make),
+      motors: motors.map((m) => m.motor),
+    };
   });
   const steps = logRatesHz.map((r) => fs / r);
 
@@ -165,9 +198,12 @@ export function simulateFlight(base: SimAirframe, flight: FlightSpec, damage: Da
   const lsb = (2 * airframe.sensor.rangeDegS) / 2 ** airframe.sensor.bits;
   const fullScale = airframe.sensor.rangeDegS;
   const slowRate = fs / SLOW_EVERY;
-  const pilotFilters = AXES.map(() => [new OnePoleLowPass(PILOT_NOISE_HZ, slowRate), new OnePoleLowPass(PILOT_NOISE_HZ, slowRate)]);
+  const pilotFilters = AXES.map(() => [
+    new OnePoleLowPass(PILOT_NOISE_HZ, slowRate),
+    new OnePoleLowPass(PILOT_NOISE_HZ, slowRate),
+  ]);
   // Two cascaded one-poles of corner fc pass white noise of σ² as about σ²·(πfc/fs)/2.
-  const pilotScale = PILOT_RMS_DEGS / Math.sqrt(((Math.PI * PILOT_NOISE_HZ) / slowRate) / 2);
+  const pilotScale = PILOT_RMS_DEGS / Math.sqrt((Math.PI * PILOT_NOISE_HZ) / slowRate / 2);
   const stick = [0, 0, 0];
   const wash = AXES.map(() => Biquad.bandPass(WASH_CENTRE_HZ, 0.5, fs));
   const washScale = WASH_RMS_DEGS / Math.sqrt((2 * (WASH_CENTRE_HZ / 0.5)) / fs);
@@ -176,17 +212,25 @@ export function simulateFlight(base: SimAirframe, flight: FlightSpec, damage: Da
 
   const fc = airframe.fc;
   const harmonics = fc.notchHarmonics;
-  const notchCoeffs = motors.flatMap(() => harmonics.map(() => notchCoefficients(200, fc.notchQ, fs)));
+  const notchCoeffs = motors.flatMap(() =>
+    harmonics.map(() => notchCoefficients(200, fc.notchQ, fs)),
+  );
   const notches = notchCoeffs.map((c) => new BiquadBank(c, 3));
   const lpf1 = AXES.map(() => new OnePoleLowPass(fc.lowPass1Hz, fs));
-  const lpf2 = fc.lowPass2Hz === null ? null : new BiquadBank(lowPassCoefficients(fc.lowPass2Hz, Math.SQRT1_2, fs), 3);
+  const lpf2 =
+    fc.lowPass2Hz === null
+      ? null
+      : new BiquadBank(lowPassCoefficients(fc.lowPass2Hz, Math.SQRT1_2, fs), 3);
 
   const rpm = motors.map(() => airframe.idleRpm);
   const estimateDelay = Math.max(0, Math.round(fc.rpmEstimate.delayS * fs));
   const rpmHistory = motors.map(() => new Float64Array(estimateDelay + 1).fill(airframe.idleRpm));
   // Each motor's estimate is off by a steady bias (its own, kept from flight to flight) plus a
   // slow wander of half that size.
-  const estimateBias = motors.map((m) => fc.rpmEstimate.errorFraction * (2 * mulberry32(0xb1a5 + 131 * airframe.id + m.motor)() - 1));
+  const estimateBias = motors.map(
+    (m) =>
+      fc.rpmEstimate.errorFraction * (2 * mulberry32(0xb1a5 + 131 * airframe.id + m.motor)() - 1),
+  );
   const estimateError = motors.map(() => 0);
   const phase = motors.map(() => rand() * 2 * Math.PI);
   const wander = motors.map(() => 0);
@@ -209,7 +253,8 @@ export function simulateFlight(base: SimAirframe, flight: FlightSpec, damage: Da
     if (!ph) break;
     const progress = t / flight.durationS;
     // Hover needs more throttle as the pack sags (thrust ∝ rpm², rpm ∝ voltage).
-    const target = ph.kind === "hover" ? Math.min(1, ph.throttle * (1 + 2 * sag * progress)) : ph.throttle;
+    const target =
+      ph.kind === "hover" ? Math.min(1, ph.throttle * (1 + 2 * sag * progress)) : ph.throttle;
     const thrTau = ph.kind === "flip" || ph.kind === "roll" || ph.kind === "punch" ? 0.04 : 0.1;
     thr += (target - thr) * (dt / thrTau);
     washLevel += ((ph.kind === "wash" ? 1 : 0) - washLevel) * (dt / 0.15);
@@ -221,9 +266,14 @@ export function simulateFlight(base: SimAirframe, flight: FlightSpec, damage: Da
     rateTargets[2] = ph.yawRate;
     for (let a = 0; a < 3; a++) {
       const f = pilotFilters[a];
-      if (slow && f) stick[a] = (f[1] as OnePoleLowPass).step((f[0] as OnePoleLowPass).step(pilotScale * gauss()));
+      if (slow && f)
+        stick[a] = (f[1] as OnePoleLowPass).step(
+          (f[0] as OnePoleLowPass).step(pilotScale * gauss()),
+        );
       prevRate[a] = bodyRate[a] ?? 0;
-      bodyRate[a] = (bodyRate[a] ?? 0) + ((rateTargets[a] ?? 0) + (stick[a] ?? 0) - (bodyRate[a] ?? 0)) * (dt / 0.05);
+      bodyRate[a] =
+        (bodyRate[a] ?? 0) +
+        ((rateTargets[a] ?? 0) + (stick[a] ?? 0) - (bodyRate[a] ?? 0)) * (dt / 0.05);
     }
 
     exc[0] = 0;
@@ -233,7 +283,9 @@ export function simulateFlight(base: SimAirframe, flight: FlightSpec, damage: Da
       const spec = motors[m];
       if (!spec) continue;
       let demand = 0;
-      for (let a = 0; a < 3; a++) demand += spec.mix[AXES[a] ?? "roll"] * (((bodyRate[a] ?? 0) - (prevRate[a] ?? 0)) / dt) * MIX_GAIN;
+      for (let a = 0; a < 3; a++)
+        demand +=
+          spec.mix[AXES[a] ?? "roll"] * (((bodyRate[a] ?? 0) - (prevRate[a] ?? 0)) / dt) * MIX_GAIN;
       demand = Math.max(-0.25, Math.min(0.25, demand));
       let w = wander[m] ?? 0;
       if (slow) {
@@ -242,7 +294,10 @@ export function simulateFlight(base: SimAirframe, flight: FlightSpec, damage: Da
         wander[m] = w;
       }
       const motorThr = Math.max(0, Math.min(1, thr + demand + w));
-      const rpmTarget = supply * spec.kvFactor * (airframe.idleRpm + (airframe.maxRpm - airframe.idleRpm) * Math.sqrt(motorThr));
+      const rpmTarget =
+        supply *
+        spec.kvFactor *
+        (airframe.idleRpm + (airframe.maxRpm - airframe.idleRpm) * Math.sqrt(motorThr));
       const r = (rpm[m] ?? 0) + (rpmTarget - (rpm[m] ?? 0)) * (dt / airframe.motorTauS);
       rpm[m] = r;
       const phi = (phase[m] ?? 0) + (2 * Math.PI * r * dt) / 60;
@@ -262,7 +317,9 @@ export function simulateFlight(base: SimAirframe, flight: FlightSpec, damage: Da
       const s4 = 2 * s2 * c2;
       const c4 = c2 * c2 - s2 * s2;
       let force =
-        am * (spec.order1 * s1 + spec.order2 * (s2 * COS_07 + c2 * SIN_07)) + spec.bladePass * (s3 * COS_19 + c3 * SIN_19) + spec.order4 * (s4 * COS_23 + c4 * SIN_23);
+        am * (spec.order1 * s1 + spec.order2 * (s2 * COS_07 + c2 * SIN_07)) +
+        spec.bladePass * (s3 * COS_19 + c3 * SIN_19) +
+        spec.order4 * (s4 * COS_23 + c4 * SIN_23);
       if (spec.halfOrders > 0) {
         const s15 = s1 * ch + c1 * sh;
         const s25 = s2 * ch + c2 * sh;
@@ -270,7 +327,8 @@ export function simulateFlight(base: SimAirframe, flight: FlightSpec, damage: Da
       }
       force += spec.bearingTone * (Math.sin(bpfo * phi + 0.4) + Math.sin(bpfi * phi + 1.3));
       force *= load;
-      force += spec.bearingNoise * rel * densityScale * (bearingFilters[m] as Biquad).step(gauss()) * 2.2;
+      force +=
+        spec.bearingNoise * rel * densityScale * (bearingFilters[m] as Biquad).step(gauss()) * 2.2;
       exc[0] = (exc[0] ?? 0) + spec.coupling.roll * force;
       exc[1] = (exc[1] ?? 0) + spec.coupling.pitch * force;
       exc[2] = (exc[2] ?? 0) + spec.coupling.yaw * force;
@@ -284,7 +342,10 @@ export function simulateFlight(base: SimAirframe, flight: FlightSpec, damage: Da
     }
     for (let k = 0; k < resonators.length; k++) {
       const shape = modeShape[k] as number[];
-      const input = (shape[0] ?? 0) * (exc[0] ?? 0) + (shape[1] ?? 0) * (exc[1] ?? 0) + (shape[2] ?? 0) * (exc[2] ?? 0);
+      const input =
+        (shape[0] ?? 0) * (exc[0] ?? 0) +
+        (shape[1] ?? 0) * (exc[1] ?? 0) +
+        (shape[2] ?? 0) * (exc[2] ?? 0);
       const y = (modeGain[k] ?? 0) * (resonators[k] as ModalResonator).step(input);
       vib[0] = (vib[0] ?? 0) + (shape[0] ?? 0) * y;
       vib[1] = (vib[1] ?? 0) + (shape[1] ?? 0) * y;
@@ -293,11 +354,14 @@ export function simulateFlight(base: SimAirframe, flight: FlightSpec, damage: Da
 
     // The controller's notches follow its own rotation estimate of each motor (from the ESC at the
     // loop rate, not the logged telemetry): a little late and a little off.
-    for (let m = 0; m < motorCount; m++) (rpmHistory[m] as Float64Array)[n % (estimateDelay + 1)] = rpm[m] ?? 0;
+    for (let m = 0; m < motorCount; m++)
+      (rpmHistory[m] as Float64Array)[n % (estimateDelay + 1)] = rpm[m] ?? 0;
     if (slow) {
       const sdt = SLOW_EVERY * dt;
       for (let m = 0; m < motorCount; m++) {
-        const e = (estimateError[m] ?? 0) * (1 - sdt / ESTIMATE_TAU_S) + 0.5 * fc.rpmEstimate.errorFraction * Math.sqrt((2 * sdt) / ESTIMATE_TAU_S) * gauss();
+        const e =
+          (estimateError[m] ?? 0) * (1 - sdt / ESTIMATE_TAU_S) +
+          0.5 * fc.rpmEstimate.errorFraction * Math.sqrt((2 * sdt) / ESTIMATE_TAU_S) * gauss();
         estimateError[m] = e;
         const late = (rpmHistory[m] as Float64Array)[(n + 1) % (estimateDelay + 1)] ?? 0;
         const f1 = (late * (1 + (estimateBias[m] ?? 0) + e)) / 60;
@@ -316,7 +380,8 @@ export function simulateFlight(base: SimAirframe, flight: FlightSpec, damage: Da
       if (lpf2) g = lpf2.step(a, g);
       logged[a] = Math.round(g / lsb) * lsb;
     }
-    for (let m = 0; m < motorCount; m++) reported[m] = (telemetry[m] as EscTelemetry).step(rpm[m] ?? 0);
+    for (let m = 0; m < motorCount; m++)
+      reported[m] = (telemetry[m] as EscTelemetry).step(rpm[m] ?? 0);
 
     for (let l = 0; l < logs.length; l++) {
       const step = steps[l] ?? 1;

@@ -46,7 +46,10 @@ export class EscTelemetry {
     const t = n * this.loopDt;
     if (t + 1e-12 >= this.nextUpdateS) {
       // Before the first reading has travelled the delay, the ESC reports the motor at rest.
-      const old = n >= this.delaySamples ? (this.history[(n - this.delaySamples) % len] ?? 0) : (this.history[0] ?? 0);
+      const old =
+        n >= this.delaySamples
+          ? (this.history[(n - this.delaySamples) % len] ?? 0)
+          : (this.history[0] ?? 0);
       const noisy = old * (1 + this.spec.noiseFraction * gaussian(this.rand));
       this.held = Math.max(0, Math.round(noisy / this.spec.stepRpm) * this.spec.stepRpm);
       this.nextUpdateS += 1 / this.spec.updateHz;

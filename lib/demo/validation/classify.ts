@@ -43,7 +43,12 @@ const RULES = {
   },
   // A mode no longer in sight: lowered and damped until it vanished (one: a crack; with other
   // modes dropped or lost too: the whole frame).
-  "mode-lost": (_f, all) => (all.filter((x) => x.kind === "mode-lost" || (x.kind === "mode-shift" && (x.shiftPct ?? 0) < DROP_PCT)).length >= 2 ? ["loose-frame"] : ["crack"]),
+  "mode-lost": (_f, all) =>
+    all.filter(
+      (x) => x.kind === "mode-lost" || (x.kind === "mode-shift" && (x.shiftPct ?? 0) < DROP_PCT),
+    ).length >= 2
+      ? ["loose-frame"]
+      : ["crack"],
   "new-peak": () => ["loose-stack", "loose-mount"],
   // Its sentence names loose screws, a cracked mount or rubbing below the floor corner, and
   // bearings or props above it: it does not point to a new resonance of a stack or a camera.

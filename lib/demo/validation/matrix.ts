@@ -6,7 +6,13 @@ import type { Status } from "../../health/thresholds";
 import { parseColumnMap } from "../../logs/columns";
 import { fleetAirframe, type HeaderStyle, type SimAirframe } from "../fc-sim/airframe";
 import { writeLogCsv } from "../fc-sim/csv";
-import { DAMAGE_CLASSES, type CaseTruth, type DamageClass, type DamageSpec, type Severity } from "../fc-sim/damage";
+import {
+  DAMAGE_CLASSES,
+  type CaseTruth,
+  type DamageClass,
+  type DamageSpec,
+  type Severity,
+} from "../fc-sim/damage";
 import type { FlightMix } from "../fc-sim/flight";
 import { simulateFlight, type FlightSpec, type LoggedLog } from "../fc-sim/simulate";
 import { diagnose } from "./classify";
@@ -18,7 +24,14 @@ import { diagnose } from "./classify";
  * back through the same reader, analyser and comparison the command line's `compare` uses.
  */
 
-export const HEALTHY_VARIANTS = ["repeat", "hard", "phase-mix", "dropout", "other-rate", "foreign-header"] as const;
+export const HEALTHY_VARIANTS = [
+  "repeat",
+  "hard",
+  "phase-mix",
+  "dropout",
+  "other-rate",
+  "foreign-header",
+] as const;
 export type HealthyVariant = (typeof HEALTHY_VARIANTS)[number];
 export const LOG_RATES = [1000, 2000, 4000, 8000] as const;
 export const SEVERITIES: readonly Severity[] = [1, 2, 3];
@@ -83,7 +96,15 @@ export interface CaseResult {
   style: HeaderStyle;
   truth: CaseTruth;
   verdict: Verdict;
-  findings: { kind: string; axis: string; freqHz: number; motor?: number; points: number; severity: string; classes: DamageClass[] }[];
+  findings: {
+    kind: string;
+    axis: string;
+    freqHz: number;
+    motor?: number;
+    points: number;
+    severity: string;
+    classes: DamageClass[];
+  }[];
   error?: string;
 }
 
@@ -106,7 +127,13 @@ export function matrixJobs(o: MatrixOptions): Job[] {
   for (const id of o.airframes) {
     const airframe = fleetAirframe(id);
     const same = o.rates.map((r) => ({ testRate: r, baselineRate: r }));
-    const healthy = (variant: HealthyVariant, k: number, mix: FlightMix, extra: Partial<Job> = {}, flight: Partial<FlightSpec> = {}) =>
+    const healthy = (
+      variant: HealthyVariant,
+      k: number,
+      mix: FlightMix,
+      extra: Partial<Job> = {},
+      flight: Partial<FlightSpec> = {},
+    ) =>
       jobs.push({
         id: `af${id}/healthy/${variant}${k >= 10 ? `-${Math.floor(k / 10) + 1}` : ""}`,
         airframe: id,
@@ -130,9 +157,18 @@ export function matrixJobs(o: MatrixOptions): Job[] {
       else if (v === "phase-mix") {
         healthy(v, k, "wash-heavy");
         healthy(v, 10 + k, "freestyle");
-      }
-      else if (v === "dropout") healthy(v, k, "race", {}, { dropouts: { motor: 1 + ((id * 3) % 4), bursts: 5, minS: 0.1, maxS: 0.8 } });
-      else if (v === "other-rate") healthy(v, k, "race", { pairs: o.rates.map((r) => ({ testRate: otherRate(r), baselineRate: r })) });
+      } else if (v === "dropout")
+        healthy(
+          v,
+          k,
+          "race",
+          {},
+          { dropouts: { motor: 1 + ((id * 3) % 4), bursts: 5, minS: 0.1, maxS: 0.8 } },
+        );
+      else if (v === "other-rate")
+        healthy(v, k, "race", {
+          pairs: o.rates.map((r) => ({ testRate: otherRate(r), baselineRate: r })),
+        });
       // The same flight as the repeat, written with another header: only the file format differs.
       else healthy(v, 0, "baseline", { style: otherStyle(airframe.headerStyle) });
     });
@@ -144,7 +180,8 @@ export function matrixJobs(o: MatrixOptions): Job[] {
       const mix = TEST_MIXES[(id + c) % TEST_MIXES.length] ?? "race";
       // Every third airframe's ESC telemetry drops out now and then on one motor in its damage
       // flights too, as real logs sometimes do.
-      const dropouts = id % 3 === 0 ? { dropouts: { motor: 1 + (c % 4), bursts: 3, minS: 0.1, maxS: 0.5 } } : {};
+      const dropouts =
+        id % 3 === 0 ? { dropouts: { motor: 1 + (c % 4), bursts: 3, minS: 0.1, maxS: 0.5 } } : {};
       for (const severity of o.severities) {
         jobs.push({
           id: `af${id}/${kind}/s${severity}`,
@@ -168,7 +205,15 @@ export function judge(truth: CaseTruth, a: Assessment): Verdict {
   const score = Number.isFinite(a.score) ? a.score : null;
   const base = { status: a.status, score };
   if (truth.kind === "healthy") {
-    return { ...base, miss: false, falseAlarm: a.status === "inspect" || a.status === "ground", classRight: a.findings.length === 0, axisRight: null, freqRight: null, motorRight: null };
+    return {
+      ...base,
+      miss: false,
+      falseAlarm: a.status === "inspect" || a.status === "ground",
+      classRight: a.findings.length === 0,
+      axisRight: null,
+      freqRight: null,
+      motorRight: null,
+    };
   }
   const kind = truth.kind;
   const d = diagnose(a);
@@ -179,15 +224,31 @@ export function judge(truth: CaseTruth, a: Assessment): Verdict {
     falseAlarm: false,
     classRight: (d[0]?.classes ?? []).includes(kind),
     axisRight: truth.axes.length === 0 ? null : ofClass.some((x) => truth.axes.includes(x.axis)),
-    freqRight: truth.freqsHz.length === 0 ? null : ofClass.some((x) => truth.freqsHz.some((f) => Math.abs(x.freqHz - f) <= FREQ_TOLERANCE * f)),
+    freqRight:
+      truth.freqsHz.length === 0
+        ? null
+        : ofClass.some((x) =>
+            truth.freqsHz.some((f) => Math.abs(x.freqHz - f) <= FREQ_TOLERANCE * f),
+          ),
     motorRight: truth.motor === undefined ? null : ofClass.some((x) => x.motor === truth.motor),
   };
 }
 
-async function analyseLog(log: LoggedLog, style: HeaderStyle, airframe: SimAirframe, note: string): Promise<LogAnalysis> {
-  const written = writeLogCsv(log, style, { airframe: airframe.name, flownAt: "2026-11-28T14:05:00Z", note });
+async function analyseLog(
+  log: LoggedLog,
+  style: HeaderStyle,
+  airframe: SimAirframe,
+  note: string,
+): Promise<LogAnalysis> {
+  const written = writeLogCsv(log, style, {
+    airframe: airframe.name,
+    flownAt: "2026-11-28T14:05:00Z",
+    note,
+  });
   // As `compare` reads a file: the streaming reader and analyser, with the column map when the header is foreign.
-  const { analysis } = await analyzeLog(bytesSource(written.bytes), { map: written.map ? parseColumnMap(written.map) : undefined });
+  const { analysis } = await analyzeLog(bytesSource(written.bytes), {
+    map: written.map ? parseColumnMap(written.map) : undefined,
+  });
   return analysis;
 }
 
@@ -220,10 +281,17 @@ export class CaseRunner {
         const airframe = fleetAirframe(id);
         const byRate = new Map<number, LogAnalysis[]>();
         for (const k of [1, 2]) {
-          const sim = simulateFlight(airframe, { seed: 100 * id + 90 + k, durationS: this.options.durationS, mix: "baseline" }, null, this.options.rates);
+          const sim = simulateFlight(
+            airframe,
+            { seed: 100 * id + 90 + k, durationS: this.options.durationS, mix: "baseline" },
+            null,
+            this.options.rates,
+          );
           for (const log of sim.logs) {
             const list = byRate.get(log.rateHz) ?? [];
-            list.push(await analyseLog(log, airframe.headerStyle, airframe, `baseline flight ${k}`));
+            list.push(
+              await analyseLog(log, airframe.headerStyle, airframe, `baseline flight ${k}`),
+            );
             byRate.set(log.rateHz, list);
           }
         }
@@ -241,22 +309,52 @@ export class CaseRunner {
     const out: CaseResult[] = [];
     for (const pair of job.pairs) {
       const log = sim.logs.find((l) => l.rateHz === pair.testRate);
-      const common = { id: job.id, airframe: job.airframe, group: job.group, variant: job.variant, severity: job.severity, testRate: pair.testRate, baselineRate: pair.baselineRate, style: job.style, truth: sim.truth };
+      const common = {
+        id: job.id,
+        airframe: job.airframe,
+        group: job.group,
+        variant: job.variant,
+        severity: job.severity,
+        testRate: pair.testRate,
+        baselineRate: pair.baselineRate,
+        style: job.style,
+        truth: sim.truth,
+      };
       try {
         if (!log) throw new Error(`no log at ${pair.testRate} Hz`);
         const analysis = await analyseLog(log, job.style, airframe, job.id);
-        const assessment = compareAnalyses(analysis, await this.baseline(job.airframe, pair.baselineRate));
+        const assessment = compareAnalyses(
+          analysis,
+          await this.baseline(job.airframe, pair.baselineRate),
+        );
         const classes = new Map(diagnose(assessment).map((d) => [d.finding, d.classes]));
         out.push({
           ...common,
           verdict: judge(sim.truth, assessment),
-          findings: assessment.findings.map((f) => ({ kind: f.kind, axis: f.axis, freqHz: f.freqHz, motor: f.motor, points: f.points, severity: f.severity, classes: classes.get(f) ?? [] })),
+          findings: assessment.findings.map((f) => ({
+            kind: f.kind,
+            axis: f.axis,
+            freqHz: f.freqHz,
+            motor: f.motor,
+            points: f.points,
+            severity: f.severity,
+            classes: classes.get(f) ?? [],
+          })),
         });
       } catch (e) {
         // A case the engine could not read or compare is reported, never silently dropped.
         out.push({
           ...common,
-          verdict: { status: "watch", score: null, miss: job.group === "damage", falseAlarm: false, classRight: false, axisRight: false, freqRight: false, motorRight: false },
+          verdict: {
+            status: "watch",
+            score: null,
+            miss: job.group === "damage",
+            falseAlarm: false,
+            classRight: false,
+            axisRight: false,
+            freqRight: false,
+            motorRight: false,
+          },
           findings: [],
           error: e instanceof Error ? e.message : String(e),
         });
@@ -303,14 +401,24 @@ export interface MatrixSummary {
   /** At the strongest severity, per class and log rate: cases right in class, axis, frequency and motor. */
   strongestByRate: { kind: DamageClass; rate: number; right: number; n: number }[];
   errors: { id: string; testRate: number; error: string }[];
-  done: { falseAlarms: number; strongestWrong: number; strongestCases: number; notFalling: number; fallingGroups: number; pass: boolean };
+  done: {
+    falseAlarms: number;
+    strongestWrong: number;
+    strongestCases: number;
+    notFalling: number;
+    fallingGroups: number;
+    pass: boolean;
+  };
 }
 
 function emptyStatuses(): Record<Status, number> {
   return { ok: 0, watch: 0, inspect: 0, ground: 0 };
 }
 
-function ratio(results: CaseResult[], pick: (v: Verdict) => boolean | null): [number, number] | null {
+function ratio(
+  results: CaseResult[],
+  pick: (v: Verdict) => boolean | null,
+): [number, number] | null {
   const applicable = results.filter((r) => pick(r.verdict) !== null);
   if (applicable.length === 0) return null;
   return [applicable.filter((r) => pick(r.verdict) === true).length, applicable.length];
@@ -318,7 +426,13 @@ function ratio(results: CaseResult[], pick: (v: Verdict) => boolean | null): [nu
 
 /** Right in everything the truth of the case names. */
 export function fullyRight(v: Verdict): boolean {
-  return !v.miss && v.classRight && v.axisRight !== false && v.freqRight !== false && v.motorRight !== false;
+  return (
+    !v.miss &&
+    v.classRight &&
+    v.axisRight !== false &&
+    v.freqRight !== false &&
+    v.motorRight !== false
+  );
 }
 
 export function summarise(results: CaseResult[], options: MatrixOptions): MatrixSummary {
@@ -326,12 +440,20 @@ export function summarise(results: CaseResult[], options: MatrixOptions): Matrix
     const rs = results.filter((r) => r.group === "healthy" && r.variant === variant);
     const statuses = emptyStatuses();
     for (const r of rs) statuses[r.verdict.status]++;
-    return { variant, n: rs.length, statuses, falseAlarms: rs.filter((r) => r.verdict.falseAlarm).length, unscored: rs.filter((r) => r.verdict.score === null).length };
+    return {
+      variant,
+      n: rs.length,
+      statuses,
+      falseAlarms: rs.filter((r) => r.verdict.falseAlarm).length,
+      unscored: rs.filter((r) => r.verdict.score === null).length,
+    };
   });
   const damage: DamageRow[] = [];
   for (const kind of options.classes) {
     for (const severity of options.severities) {
-      const rs = results.filter((r) => r.group === "damage" && r.variant === kind && r.severity === severity);
+      const rs = results.filter(
+        (r) => r.group === "damage" && r.variant === kind && r.severity === severity,
+      );
       const statuses = emptyStatuses();
       for (const r of rs) statuses[r.verdict.status]++;
       const scores = rs.map((r) => r.verdict.score ?? 0);
@@ -354,12 +476,28 @@ export function summarise(results: CaseResult[], options: MatrixOptions): Matrix
     let falling = 0;
     for (const id of options.airframes) {
       for (const rate of options.rates) {
-        const by = SEVERITIES.map((s) => results.find((r) => r.group === "damage" && r.variant === kind && r.airframe === id && r.testRate === rate && r.severity === s));
+        const by = SEVERITIES.map((s) =>
+          results.find(
+            (r) =>
+              r.group === "damage" &&
+              r.variant === kind &&
+              r.airframe === id &&
+              r.testRate === rate &&
+              r.severity === s,
+          ),
+        );
         if (by.some((r) => !r)) continue;
         groups++;
         const sc = by.map((r) => r?.verdict.score ?? null);
         const [a, b, c] = sc;
-        if (typeof a === "number" && typeof b === "number" && typeof c === "number" && a > b && b > c) falling++;
+        if (
+          typeof a === "number" &&
+          typeof b === "number" &&
+          typeof c === "number" &&
+          a > b &&
+          b > c
+        )
+          falling++;
       }
     }
     return { kind, groups, strictlyFalling: falling };
@@ -367,7 +505,13 @@ export function summarise(results: CaseResult[], options: MatrixOptions): Matrix
   const strongest = Math.max(...options.severities);
   const strongestByRate = options.classes.flatMap((kind) =>
     options.rates.map((rate) => {
-      const rs = results.filter((r) => r.group === "damage" && r.variant === kind && r.severity === strongest && r.testRate === rate);
+      const rs = results.filter(
+        (r) =>
+          r.group === "damage" &&
+          r.variant === kind &&
+          r.severity === strongest &&
+          r.testRate === rate,
+      );
       return { kind, rate, right: rs.filter((r) => fullyRight(r.verdict)).length, n: rs.length };
     }),
   );
@@ -376,7 +520,9 @@ export function summarise(results: CaseResult[], options: MatrixOptions): Matrix
   const strongestWrong = strongestCases - strongestByRate.reduce((s, x) => s + x.right, 0);
   const fallingGroups = monotone.reduce((s, m) => s + m.groups, 0);
   const notFalling = fallingGroups - monotone.reduce((s, m) => s + m.strictlyFalling, 0);
-  const errors = results.filter((r) => r.error).map((r) => ({ id: r.id, testRate: r.testRate, error: r.error ?? "" }));
+  const errors = results
+    .filter((r) => r.error)
+    .map((r) => ({ id: r.id, testRate: r.testRate, error: r.error ?? "" }));
   return {
     cases: results.length,
     healthy,
@@ -384,13 +530,23 @@ export function summarise(results: CaseResult[], options: MatrixOptions): Matrix
     monotone,
     strongestByRate,
     errors,
-    done: { falseAlarms, strongestWrong, strongestCases, notFalling, fallingGroups, pass: falseAlarms === 0 && strongestWrong === 0 && notFalling === 0 && errors.length === 0 },
+    done: {
+      falseAlarms,
+      strongestWrong,
+      strongestCases,
+      notFalling,
+      fallingGroups,
+      pass: falseAlarms === 0 && strongestWrong === 0 && notFalling === 0 && errors.length === 0,
+    },
   };
 }
 
 function table(header: string[], rows: string[][]): string {
   const widths = header.map((h, i) => Math.max(h.length, ...rows.map((r) => (r[i] ?? "").length)));
-  const line = (cells: string[]) => cells.map((c, i) => (i === 0 ? c.padEnd(widths[i] ?? 0) : c.padStart(widths[i] ?? 0))).join("  ");
+  const line = (cells: string[]) =>
+    cells
+      .map((c, i) => (i === 0 ? c.padEnd(widths[i] ?? 0) : c.padStart(widths[i] ?? 0)))
+      .join("  ");
   return [line(header), line(widths.map((w) => "-".repeat(w))), ...rows.map(line)].join("\n");
 }
 
@@ -399,25 +555,86 @@ const frac = (x: [number, number] | null) => (x ? `${x[0]}/${x[1]}` : "–");
 /** The confusion tables as plain text. */
 export function formatSummary(s: MatrixSummary, options: MatrixOptions): string {
   const out: string[] = [];
-  out.push(`validation matrix: ${s.cases} logs · airframes ${options.airframes.join(", ")} · rates ${options.rates.map((r) => `${r / 1000} kHz`).join(", ")} · ${options.durationS} s flights`);
+  out.push(
+    `validation matrix: ${s.cases} logs · airframes ${options.airframes.join(", ")} · rates ${options.rates.map((r) => `${r / 1000} kHz`).join(", ")} · ${options.durationS} s flights`,
+  );
   out.push("");
   out.push("healthy variants (a false alarm is inspect or ground)");
-  out.push(table(["variant", "n", "ok", "watch", "inspect", "ground", "false alarms"], s.healthy.map((h) => [h.variant, String(h.n), String(h.statuses.ok), String(h.statuses.watch), String(h.statuses.inspect), String(h.statuses.ground), String(h.falseAlarms)])));
-  out.push("");
-  out.push("damage (miss: scored ok · class ok: the finding with most points names the class · axis, freq (±5 %), motor ok: some finding of that class is right · –: not part of that class's truth)");
   out.push(
     table(
-      ["class", "sev", "n", "ok", "watch", "inspect", "ground", "miss", "class ok", "axis ok", "freq ok", "motor ok", "mean score"],
-      s.damage.map((d) => [d.kind, String(d.severity), String(d.n), String(d.statuses.ok), String(d.statuses.watch), String(d.statuses.inspect), String(d.statuses.ground), String(d.misses), `${d.classRight}/${d.n}`, frac(d.axisRight), frac(d.freqRight), frac(d.motorRight), Number.isFinite(d.meanScore) ? d.meanScore.toFixed(0) : "–"]),
+      ["variant", "n", "ok", "watch", "inspect", "ground", "false alarms"],
+      s.healthy.map((h) => [
+        h.variant,
+        String(h.n),
+        String(h.statuses.ok),
+        String(h.statuses.watch),
+        String(h.statuses.inspect),
+        String(h.statuses.ground),
+        String(h.falseAlarms),
+      ]),
+    ),
+  );
+  out.push("");
+  out.push(
+    "damage (miss: scored ok · class ok: the finding with most points names the class · axis, freq (±5 %), motor ok: some finding of that class is right · –: not part of that class's truth)",
+  );
+  out.push(
+    table(
+      [
+        "class",
+        "sev",
+        "n",
+        "ok",
+        "watch",
+        "inspect",
+        "ground",
+        "miss",
+        "class ok",
+        "axis ok",
+        "freq ok",
+        "motor ok",
+        "mean score",
+      ],
+      s.damage.map((d) => [
+        d.kind,
+        String(d.severity),
+        String(d.n),
+        String(d.statuses.ok),
+        String(d.statuses.watch),
+        String(d.statuses.inspect),
+        String(d.statuses.ground),
+        String(d.misses),
+        `${d.classRight}/${d.n}`,
+        frac(d.axisRight),
+        frac(d.freqRight),
+        frac(d.motorRight),
+        Number.isFinite(d.meanScore) ? d.meanScore.toFixed(0) : "–",
+      ]),
     ),
   );
   out.push("");
   out.push("scores strictly falling with severity (airframe × rate groups)");
-  out.push(table(["class", "groups", "falling"], s.monotone.map((m) => [m.kind, String(m.groups), String(m.strictlyFalling)])));
+  out.push(
+    table(
+      ["class", "groups", "falling"],
+      s.monotone.map((m) => [m.kind, String(m.groups), String(m.strictlyFalling)]),
+    ),
+  );
   out.push("");
   out.push("strongest severity fully right (class, axis, freq, motor), by log rate");
   const rates = options.rates;
-  out.push(table(["class", ...rates.map((r) => `${r / 1000} kHz`)], options.classes.map((kind) => [kind, ...rates.map((rate) => { const x = s.strongestByRate.find((y) => y.kind === kind && y.rate === rate); return x ? `${x.right}/${x.n}` : "–"; })])));
+  out.push(
+    table(
+      ["class", ...rates.map((r) => `${r / 1000} kHz`)],
+      options.classes.map((kind) => [
+        kind,
+        ...rates.map((rate) => {
+          const x = s.strongestByRate.find((y) => y.kind === kind && y.rate === rate);
+          return x ? `${x.right}/${x.n}` : "–";
+        }),
+      ]),
+    ),
+  );
   if (s.errors.length > 0) {
     out.push("");
     out.push(`errors (${s.errors.length}):`);

@@ -18,11 +18,18 @@ const RIGHT = 20;
  * hollow diamond with its name, so it reads without colour.
  */
 export function ModeStrips({ design, airframes, enough, strips }: ModeStripsProps) {
-  if (strips.length === 0) return <p className="muted">No mode is shared by enough baselines of {design} yet.</p>;
+  if (strips.length === 0)
+    return <p className="muted">No mode is shared by enough baselines of {design} yet.</p>;
   const height = strips.length * ROW + 24;
   return (
     <figure style={{ margin: 0, maxWidth: 860 }}>
-      <svg viewBox={`0 0 ${WIDTH} ${height}`} width="100%" role="img" aria-label={`mode frequencies of the ${design} fleet`} data-testid="mode-strips">
+      <svg
+        viewBox={`0 0 ${WIDTH} ${height}`}
+        width="100%"
+        role="img"
+        aria-label={`mode frequencies of the ${design} fleet`}
+        data-testid="mode-strips"
+      >
         {strips.map((s, i) => {
           const freqs = [...s.dots.map((d) => d.freqHz), s.loHz, s.hiHz];
           const lo = Math.min(...freqs) * 0.98;
@@ -34,8 +41,21 @@ export function ModeStrips({ design, airframes, enough, strips }: ModeStripsProp
               <text x={0} y={y + 4} fontSize={12} fill="var(--ink)">
                 {s.axis} mode ~{Math.round(s.medianHz)} Hz
               </text>
-              <rect x={x(s.loHz)} y={y - 9} width={Math.max(2, x(s.hiHz) - x(s.loHz))} height={18} fill="#dfe8ea" />
-              <line x1={x(s.medianHz)} x2={x(s.medianHz)} y1={y - 11} y2={y + 11} stroke="var(--accent)" strokeWidth={2} />
+              <rect
+                x={x(s.loHz)}
+                y={y - 9}
+                width={Math.max(2, x(s.hiHz) - x(s.loHz))}
+                height={18}
+                fill="#dfe8ea"
+              />
+              <line
+                x1={x(s.medianHz)}
+                x2={x(s.medianHz)}
+                y1={y - 11}
+                y2={y + 11}
+                stroke="var(--accent)"
+                strokeWidth={2}
+              />
               <line x1={LEFT} x2={WIDTH - RIGHT} y1={y} y2={y} stroke="var(--line)" />
               <text x={LEFT} y={y + 20} fontSize={9} fill="var(--muted)">
                 {Math.round(lo)} Hz
@@ -46,13 +66,36 @@ export function ModeStrips({ design, airframes, enough, strips }: ModeStripsProp
               {s.dots.map((d) =>
                 d.outlier ? (
                   <g key={d.name}>
-                    <rect x={x(d.freqHz) - 5} y={y - 5} width={10} height={10} transform={`rotate(45 ${x(d.freqHz)} ${y})`} fill="#fff" stroke="var(--ground)" strokeWidth={2.5} />
-                    <text x={x(d.freqHz)} y={y - 12} fontSize={11} textAnchor="middle" fill="var(--ground)" fontWeight={700}>
+                    <rect
+                      x={x(d.freqHz) - 5}
+                      y={y - 5}
+                      width={10}
+                      height={10}
+                      transform={`rotate(45 ${x(d.freqHz)} ${y})`}
+                      fill="#fff"
+                      stroke="var(--ground)"
+                      strokeWidth={2.5}
+                    />
+                    <text
+                      x={x(d.freqHz)}
+                      y={y - 12}
+                      fontSize={11}
+                      textAnchor="middle"
+                      fill="var(--ground)"
+                      fontWeight={700}
+                    >
                       {d.name} {Math.round(d.freqHz)} Hz
                     </text>
                   </g>
                 ) : (
-                  <circle key={d.name} cx={x(d.freqHz)} cy={y} r={4.5} fill="var(--accent)" fillOpacity={0.75}>
+                  <circle
+                    key={d.name}
+                    cx={x(d.freqHz)}
+                    cy={y}
+                    r={4.5}
+                    fill="var(--accent)"
+                    fillOpacity={0.75}
+                  >
                     <title>{`${d.name}: ${d.freqHz.toFixed(1)} Hz`}</title>
                   </circle>
                 ),
@@ -62,8 +105,12 @@ export function ModeStrips({ design, airframes, enough, strips }: ModeStripsProp
         })}
       </svg>
       <figcaption className="muted small">
-        Baseline mode frequencies of {airframes} airframe{airframes === 1 ? "" : "s"} of {design}. Shaded: the fleet&apos;s normal range (median ± 3.5 robust standard deviations); line: median.
-        {enough ? "" : " Fewer than three airframes: not enough to judge any of them against the fleet."}
+        Baseline mode frequencies of {airframes} airframe{airframes === 1 ? "" : "s"} of {design}.
+        Shaded: the fleet&apos;s normal range (median ± 3.5 robust standard deviations); line:
+        median.
+        {enough
+          ? ""
+          : " Fewer than three airframes: not enough to judge any of them against the fleet."}
       </figcaption>
     </figure>
   );

@@ -21,7 +21,13 @@ async function viewOrNotFound(...args: Parameters<typeof logView>) {
   }
 }
 
-export default async function LogPage({ params, searchParams }: { params: Promise<{ id: string }>; searchParams: Promise<{ axis?: string }> }) {
+export default async function LogPage({
+  params,
+  searchParams,
+}: {
+  params: Promise<{ id: string }>;
+  searchParams: Promise<{ axis?: string }>;
+}) {
   const actor = await requireMember("viewer");
   const { id } = await params;
   const wanted = (await searchParams).axis;
@@ -31,23 +37,36 @@ export default async function LogPage({ params, searchParams }: { params: Promis
   const metadata = Object.entries(analysis?.metadata ?? {});
   return (
     <>
-      <p className="small">{airframe ? <Link href={`/airframes/${airframe.id}`}>← {airframe.name}</Link> : <Link href="/fleet">← Fleet</Link>}</p>
+      <p className="small">
+        {airframe ? (
+          <Link href={`/airframes/${airframe.id}`}>← {airframe.name}</Link>
+        ) : (
+          <Link href="/fleet">← Fleet</Link>
+        )}
+      </p>
       <div className="row" style={{ alignItems: "center" }}>
         <div>
           <h1 style={{ marginBottom: 0, overflowWrap: "anywhere" }}>{log.fileName}</h1>
           <div className="muted">
-            {airframe ? `${airframe.name} · ` : "no airframe · "}flown {WHEN.format(log.flownAt)} UTC · {log.status}
+            {airframe ? `${airframe.name} · ` : "no airframe · "}flown {WHEN.format(log.flownAt)}{" "}
+            UTC · {log.status}
             {log.error ? `: ${log.error}` : ""}
           </div>
         </div>
         <div style={{ textAlign: "right" }}>
-          {assessment ? <StatusBadge status={assessment.status} /> : <span className="muted">not judged</span>}
+          {assessment ? (
+            <StatusBadge status={assessment.status} />
+          ) : (
+            <span className="muted">not judged</span>
+          )}
           <div style={{ fontSize: "2rem", fontWeight: 800 }} data-testid="log-score">
             {assessment?.score === null || !assessment ? "–" : Math.round(assessment.score)}
             <span className="muted small"> / 100</span>
           </div>
           <div className="muted small">
-            {assessment ? `against the ${assessment.baseline.active ? "active" : "earlier"} baseline of ${WHEN.format(assessment.baseline.createdAt)}` : "no baseline to judge it by"}
+            {assessment
+              ? `against the ${assessment.baseline.active ? "active" : "earlier"} baseline of ${WHEN.format(assessment.baseline.createdAt)}`
+              : "no baseline to judge it by"}
           </div>
         </div>
       </div>
@@ -61,9 +80,15 @@ export default async function LogPage({ params, searchParams }: { params: Promis
       <section className="card" style={{ marginTop: "1rem" }} data-testid="fleet-view">
         <h2 style={{ marginTop: 0 }}>Against the fleet</h2>
         {view.fleet.airframes === 0 ? (
-          <p className="muted">Fewer than three sister airframes of this design have a baseline: not enough to place this log against the fleet.</p>
+          <p className="muted">
+            Fewer than three sister airframes of this design have a baseline: not enough to place
+            this log against the fleet.
+          </p>
         ) : view.fleet.notes.length === 0 ? (
-          <p>Its modes and levels sit inside the range of {view.fleet.airframes} sister airframes of {airframe?.frameDesign}. The fleet is a second opinion, never a clearance.</p>
+          <p>
+            Its modes and levels sit inside the range of {view.fleet.airframes} sister airframes of{" "}
+            {airframe?.frameDesign}. The fleet is a second opinion, never a clearance.
+          </p>
         ) : (
           <ul>
             {view.fleet.notes.map((n) => (
@@ -86,13 +111,19 @@ export default async function LogPage({ params, searchParams }: { params: Promis
         <div className="card" style={{ overflowX: "auto", marginBottom: "1rem" }}>
           <table data-testid="order-table">
             <caption className="muted small" style={{ textAlign: "left" }}>
-              Each motor&apos;s order spectrum over the log: level on the loudest axis, dB re 1 (deg/s)², power-averaged over the throttle bands flown. The loudest motor of each order is in bold.
+              Each motor&apos;s order spectrum over the log: level on the loudest axis, dB re 1
+              (deg/s)², power-averaged over the throttle bands flown. The loudest motor of each
+              order is in bold.
             </caption>
             <thead>
               <tr>
                 <th scope="col">motor</th>
-                <th scope="col" className="num">mean rpm</th>
-                <th scope="col" className="num">telemetry masked</th>
+                <th scope="col" className="num">
+                  mean rpm
+                </th>
+                <th scope="col" className="num">
+                  telemetry masked
+                </th>
                 {view.orders.labels.map((l) => (
                   <th scope="col" className="num" key={l}>
                     {l}
@@ -123,7 +154,12 @@ export default async function LogPage({ params, searchParams }: { params: Promis
       ) : null}
       <div className="card">
         <MotorOrdersChart motors={view.motors} />
-        {view.motors.length > 0 ? <p className="muted small">1× order (once per revolution) of each motor through the flight, measured by order tracking from its rpm column.</p> : null}
+        {view.motors.length > 0 ? (
+          <p className="muted small">
+            1× order (once per revolution) of each motor through the flight, measured by order
+            tracking from its rpm column.
+          </p>
+        ) : null}
       </div>
 
       <div className="grid two" style={{ marginTop: "1rem" }}>
@@ -149,12 +185,18 @@ export default async function LogPage({ params, searchParams }: { params: Promis
           {analysis ? (
             <ul className="small">
               <li>
-                {analysis.sampleRateHz} Hz, {analysis.durationS.toFixed(1)} s, {analysis.samples} samples, {(log.sizeBytes / 1e6).toFixed(1)} MB
+                {analysis.sampleRateHz} Hz, {analysis.durationS.toFixed(1)} s, {analysis.samples}{" "}
+                samples, {(log.sizeBytes / 1e6).toFixed(1)} MB
               </li>
               <li>
-                {analysis.gaps.length} gap{analysis.gaps.length === 1 ? "" : "s"}, {analysis.droppedRows} dropped row{analysis.droppedRows === 1 ? "" : "s"}
+                {analysis.gaps.length} gap{analysis.gaps.length === 1 ? "" : "s"},{" "}
+                {analysis.droppedRows} dropped row{analysis.droppedRows === 1 ? "" : "s"}
               </li>
-              {log.mapText ? <li>column map: <code style={{ overflowWrap: "anywhere" }}>{log.mapText}</code></li> : null}
+              {log.mapText ? (
+                <li>
+                  column map: <code style={{ overflowWrap: "anywhere" }}>{log.mapText}</code>
+                </li>
+              ) : null}
               {analysis.guesses.map((g) => (
                 <li key={g}>{g}</li>
               ))}

@@ -1,7 +1,13 @@
 "use client";
 
 import { channelFor } from "@/lib/logs/columns";
-import { convertedValue, draftOf, draftToMap, mapKeys, type MapDraft } from "@/lib/logs/map-preview";
+import {
+  convertedValue,
+  draftOf,
+  draftToMap,
+  mapKeys,
+  type MapDraft,
+} from "@/lib/logs/map-preview";
 
 export interface ColumnMapTableProps {
   fileName: string;
@@ -25,7 +31,13 @@ const UNIT_WORDS: Record<string, string> = {
   rpm: "rpm",
   hz: "Hz (rev/s)",
 };
-const SHOWN_UNIT: Record<string, string> = { time: "s from the first row", gyro: "deg/s", setpoint: "deg/s", throttle: "0..1", rpm: "rpm" };
+const SHOWN_UNIT: Record<string, string> = {
+  time: "s from the first row",
+  gyro: "deg/s",
+  setpoint: "deg/s",
+  throttle: "0..1",
+  rpm: "rpm",
+};
 
 function preview(key: string, unit: string, column: number, rows: (number | null)[][]): string {
   if (column < 0) return "";
@@ -33,7 +45,9 @@ function preview(key: string, unit: string, column: number, rows: (number | null
   const t0 = rows[0]?.[column] ?? 0;
   const values = rows.slice(0, 3).map((r) => {
     const v = r[column];
-    return v === null || v === undefined ? "?" : Number(convertedValue(channel, v, t0).toPrecision(4)).toString();
+    return v === null || v === undefined
+      ? "?"
+      : Number(convertedValue(channel, v, t0).toPrecision(4)).toString();
   });
   return `${values.join(", ")} ${SHOWN_UNIT[channel.kind] ?? ""}`;
 }
@@ -43,14 +57,27 @@ function preview(key: string, unit: string, column: number, rows: (number | null
  * unit to choose from, the first rows converted as heatcheck will read them, and what is still
  * missing. It edits the same map text the command line and import profiles use.
  */
-export function ColumnMapTable({ fileName, headers, rows, mapText, onChange }: ColumnMapTableProps) {
+export function ColumnMapTable({
+  fileName,
+  headers,
+  rows,
+  mapText,
+  onChange,
+}: ColumnMapTableProps) {
   const draft = draftOf(mapText);
   const motors = Object.keys(draft).filter((k) => k.startsWith("rpm")).length;
   const keys = mapKeys(Math.max(motors, headers.filter((h) => /rpm|hz|esc|mot/i.test(h)).length));
   const { problem } = draftToMap(draft);
   const set = (key: string, patch: Partial<{ header: string; unit: string }>) => {
     const units = keys.find((k) => k.key === key)?.units ?? [];
-    const next: MapDraft = { ...draft, [key]: { header: draft[key]?.header ?? "", unit: draft[key]?.unit ?? units[0] ?? "", ...patch } };
+    const next: MapDraft = {
+      ...draft,
+      [key]: {
+        header: draft[key]?.header ?? "",
+        unit: draft[key]?.unit ?? units[0] ?? "",
+        ...patch,
+      },
+    };
     onChange(draftToMap(next).mapText);
   };
   return (
@@ -78,7 +105,11 @@ export function ColumnMapTable({ fileName, headers, rows, mapText, onChange }: C
                   {k.required ? <span className="muted small"> (needed)</span> : null}
                 </th>
                 <td>
-                  <select aria-label={`column for ${k.label}`} value={entry?.header ?? ""} onChange={(e) => set(k.key, { header: e.target.value })}>
+                  <select
+                    aria-label={`column for ${k.label}`}
+                    value={entry?.header ?? ""}
+                    onChange={(e) => set(k.key, { header: e.target.value })}
+                  >
                     <option value="">— not in this file —</option>
                     {headers.map((h) => (
                       <option key={h} value={h}>
@@ -88,7 +119,12 @@ export function ColumnMapTable({ fileName, headers, rows, mapText, onChange }: C
                   </select>
                 </td>
                 <td>
-                  <select aria-label={`unit of ${k.label}`} value={entry?.unit ?? k.units[0]} disabled={!entry?.header} onChange={(e) => set(k.key, { unit: e.target.value })}>
+                  <select
+                    aria-label={`unit of ${k.label}`}
+                    value={entry?.unit ?? k.units[0]}
+                    disabled={!entry?.header}
+                    onChange={(e) => set(k.key, { unit: e.target.value })}
+                  >
                     {k.units.map((u) => (
                       <option key={u} value={u}>
                         {UNIT_WORDS[u] ?? u}
@@ -96,13 +132,19 @@ export function ColumnMapTable({ fileName, headers, rows, mapText, onChange }: C
                     ))}
                   </select>
                 </td>
-                <td className="small">{entry?.header ? preview(k.key, entry.unit, column, rows) : ""}</td>
+                <td className="small">
+                  {entry?.header ? preview(k.key, entry.unit, column, rows) : ""}
+                </td>
               </tr>
             );
           })}
         </tbody>
       </table>
-      <p className={problem ? "field-error" : "form-message ok"} data-testid="map-check" role="status">
+      <p
+        className={problem ? "field-error" : "form-message ok"}
+        data-testid="map-check"
+        role="status"
+      >
         {problem ? `Still to do: ${problem}.` : "Every needed field has a column."}
       </p>
     </div>

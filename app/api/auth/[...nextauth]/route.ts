@@ -2,12 +2,17 @@ import NextAuth from "next-auth";
 import { NextResponse } from "next/server";
 import { authOptions } from "@/lib/server/auth-options";
 
-const handler: (request: Request, context: { params: Promise<{ nextauth: string[] }> }) => Promise<Response> = NextAuth(authOptions);
+const handler: (
+  request: Request,
+  context: { params: Promise<{ nextauth: string[] }> },
+) => Promise<Response> = NextAuth(authOptions);
 
 /** next-auth's rule for a return address: http(s), or a path on this server. */
 function isHttpUrl(value: string): boolean {
   try {
-    return /^https?:$/.test(new URL(value, value.startsWith("/") ? "http://localhost" : undefined).protocol);
+    return /^https?:$/.test(
+      new URL(value, value.startsWith("/") ? "http://localhost" : undefined).protocol,
+    );
   } catch {
     return false;
   }
@@ -19,7 +24,10 @@ const CALLBACK_COOKIES = ["next-auth.callback-url", "__Secure-next-auth.callback
  * next-auth answers a return address such as `javascript:…` with a 500; it is bad input, so it is
  * refused here with a 400 and a sentence (and a bad return-address cookie is cleared).
  */
-async function guarded(request: Request, context: { params: Promise<{ nextauth: string[] }> }): Promise<Response> {
+async function guarded(
+  request: Request,
+  context: { params: Promise<{ nextauth: string[] }> },
+): Promise<Response> {
   const callbackUrl = new URL(request.url).searchParams.get("callbackUrl");
   const cookieHeader = request.headers.get("cookie") ?? "";
   const badCookie = CALLBACK_COOKIES.some((name) => {
@@ -32,7 +40,13 @@ async function guarded(request: Request, context: { params: Promise<{ nextauth: 
     }
   });
   if ((callbackUrl !== null && !isHttpUrl(callbackUrl)) || badCookie) {
-    const response = NextResponse.json({ error: "That sign-in link's return address is not a web address on this server.", code: "bad-input" }, { status: 400, headers: { "Cache-Control": "no-store" } });
+    const response = NextResponse.json(
+      {
+        error: "That sign-in link's return address is not a web address on this server.",
+        code: "bad-input",
+      },
+      { status: 400, headers: { "Cache-Control": "no-store" } },
+    );
     for (const name of CALLBACK_COOKIES) response.cookies.delete(name);
     return response;
   }

@@ -9,6 +9,12 @@ export async function GET(request: Request) {
   return jsonRoute("GET /api/v1/queue", async () => {
     const actor = await requireApiCaller(request, "viewer");
     const { entries } = await inspectionQueue(actor);
-    return entries.map((e) => ({ airframe: e.name, status: e.status, score: e.score, reasons: e.reasons, inNextHeat: e.inNextHeat }));
+    return entries.map((e) => ({
+      airframe: e.name,
+      status: e.status,
+      score: e.score,
+      reasons: e.reasons,
+      inNextHeat: e.inNextHeat,
+    }));
   });
 }

@@ -9,7 +9,15 @@ export interface LogsTableProps {
   airframeId: string;
   canTech: boolean;
   logs: {
-    log: { id: string; flownAt: Date; fileName: string; sampleRateHz: number | null; durationS: number | null; status: string; error: string | null };
+    log: {
+      id: string;
+      flownAt: Date;
+      fileName: string;
+      sampleRateHz: number | null;
+      durationS: number | null;
+      status: string;
+      error: string | null;
+    };
     assessment: { status: Status; score: number | null } | null;
   }[];
 }
@@ -37,9 +45,23 @@ export function LogsTable({ airframeId, canTech, logs }: LogsTableProps) {
               <td>
                 <Link href={`/logs/${log.id}`}>{log.fileName}</Link>
               </td>
-              <td className="small">{log.sampleRateHz ? `${Math.round(log.sampleRateHz)} Hz · ${(log.durationS ?? 0).toFixed(0)} s` : "–"}</td>
-              <td>{log.status === "failed" ? <span className="field-error">failed: {log.error}</span> : assessment ? <StatusBadge status={assessment.status} /> : log.status}</td>
-              <td className="num">{assessment?.score === null || !assessment ? "–" : Math.round(assessment.score)}</td>
+              <td className="small">
+                {log.sampleRateHz
+                  ? `${Math.round(log.sampleRateHz)} Hz · ${(log.durationS ?? 0).toFixed(0)} s`
+                  : "–"}
+              </td>
+              <td>
+                {log.status === "failed" ? (
+                  <span className="field-error">failed: {log.error}</span>
+                ) : assessment ? (
+                  <StatusBadge status={assessment.status} />
+                ) : (
+                  log.status
+                )}
+              </td>
+              <td className="num">
+                {assessment?.score === null || !assessment ? "–" : Math.round(assessment.score)}
+              </td>
               <td>
                 {canTech && log.status !== "pending" ? (
                   <ActionForm action={reanalyseAction} submitLabel="Re-run analysis" compact>

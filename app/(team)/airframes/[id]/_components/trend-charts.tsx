@@ -2,7 +2,17 @@
 
 import { useRouter } from "next/navigation";
 import { lineStyle } from "@/app/_components/line-styles";
-import { CartesianGrid, Legend, Line, LineChart, ReferenceLine, ResponsiveContainer, Tooltip, XAxis, YAxis } from "recharts";
+import {
+  CartesianGrid,
+  Legend,
+  Line,
+  LineChart,
+  ReferenceLine,
+  ResponsiveContainer,
+  Tooltip,
+  XAxis,
+  YAxis,
+} from "recharts";
 
 type Row = { logId: string; fileName: string; t: number } & Record<string, number | string | null>;
 type Steps = { watch: number; inspect: number; ground: number };
@@ -16,9 +26,27 @@ export interface TrendChartsProps {
 
 const DATE = new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "short", timeZone: "UTC" });
 const STEP_LINES = (t: Steps, sign: 1 | -1) =>
-  (["watch", "inspect", "ground"] as const).map((k) => ({ y: sign * t[k], label: k, colour: k === "watch" ? "var(--watch)" : k === "inspect" ? "var(--inspect)" : "var(--ground)" }));
+  (["watch", "inspect", "ground"] as const).map((k) => ({
+    y: sign * t[k],
+    label: k,
+    colour: k === "watch" ? "var(--watch)" : k === "inspect" ? "var(--inspect)" : "var(--ground)",
+  }));
 
-function TrendChart({ rows, series, steps, unit, events, testId }: { rows: Row[]; series: { key: string; name: string }[]; steps: { y: number; label: string; colour: string }[]; unit: string; events: TrendChartsProps["events"]; testId: string }) {
+function TrendChart({
+  rows,
+  series,
+  steps,
+  unit,
+  events,
+  testId,
+}: {
+  rows: Row[];
+  series: { key: string; name: string }[];
+  steps: { y: number; label: string; colour: string }[];
+  unit: string;
+  events: TrendChartsProps["events"];
+  testId: string;
+}) {
   const router = useRouter();
   return (
     <div style={{ width: "100%", height: 250 }} data-testid={testId}>
@@ -27,25 +55,58 @@ function TrendChart({ rows, series, steps, unit, events, testId }: { rows: Row[]
           data={rows}
           margin={{ top: 10, right: 20, bottom: 8, left: 4 }}
           onClick={(state) => {
-            const index = typeof state?.activeTooltipIndex === "number" ? state.activeTooltipIndex : Number(state?.activeTooltipIndex);
+            const index =
+              typeof state?.activeTooltipIndex === "number"
+                ? state.activeTooltipIndex
+                : Number(state?.activeTooltipIndex);
             const row = Number.isInteger(index) ? rows[index] : undefined;
             if (row) router.push(`/logs/${row.logId}`);
           }}
         >
           <CartesianGrid stroke="#e4dfd4" />
-          <XAxis dataKey="t" type="number" scale="time" domain={["dataMin", "dataMax"]} tickFormatter={(t: number) => DATE.format(t)} />
+          <XAxis
+            dataKey="t"
+            type="number"
+            scale="time"
+            domain={["dataMin", "dataMax"]}
+            tickFormatter={(t: number) => DATE.format(t)}
+          />
           <YAxis width={48} unit={unit} domain={["auto", "auto"]} />
-          <Tooltip labelFormatter={(_, payload) => String(payload?.[0]?.payload?.fileName ?? "")} formatter={(v) => (v === null ? "no peak near it" : `${v} ${unit}`)} />
+          <Tooltip
+            labelFormatter={(_, payload) => String(payload?.[0]?.payload?.fileName ?? "")}
+            formatter={(v) => (v === null ? "no peak near it" : `${v} ${unit}`)}
+          />
           <Legend />
           {steps.map((s) => (
-            <ReferenceLine key={`${s.label}${s.y}`} y={s.y} stroke={s.colour} strokeDasharray="3 3" label={{ value: s.label, position: "right", fontSize: 10 }} />
+            <ReferenceLine
+              key={`${s.label}${s.y}`}
+              y={s.y}
+              stroke={s.colour}
+              strokeDasharray="3 3"
+              label={{ value: s.label, position: "right", fontSize: 10 }}
+            />
           ))}
           {events.map((e, i) => (
-            <ReferenceLine key={i} x={e.t} stroke="#9fb3bb" label={{ value: e.label, angle: -90, position: "insideTopLeft", fontSize: 9 }} />
+            <ReferenceLine
+              key={i}
+              x={e.t}
+              stroke="#9fb3bb"
+              label={{ value: e.label, angle: -90, position: "insideTopLeft", fontSize: 9 }}
+            />
           ))}
           {series.map((s, i) => {
             const style = lineStyle(i);
-            return <Line key={s.key} dataKey={s.key} name={s.name} stroke={style.stroke} strokeDasharray={style.dash} isAnimationActive={false} connectNulls={false} />;
+            return (
+              <Line
+                key={s.key}
+                dataKey={s.key}
+                name={s.name}
+                stroke={style.stroke}
+                strokeDasharray={style.dash}
+                isAnimationActive={false}
+                connectNulls={false}
+              />
+            );
           })}
         </LineChart>
       </ResponsiveContainer>
@@ -56,16 +117,32 @@ function TrendChart({ rows, series, steps, unit, events, testId }: { rows: Row[]
 /** Mode shifts and band rises against the baseline over the airframe's logs; click a point to open its log. */
 export function TrendCharts({ rows, modes, events, thresholds }: TrendChartsProps) {
   if (rows.length === 0) return <p className="muted">No analysed log yet.</p>;
-  const inRange = events.filter((e) => e.t >= (rows[0]?.t ?? 0) && e.t <= (rows[rows.length - 1]?.t ?? 0));
+  const inRange = events.filter(
+    (e) => e.t >= (rows[0]?.t ?? 0) && e.t <= (rows[rows.length - 1]?.t ?? 0),
+  );
   return (
     <div className="grid two">
       <div className="card">
         <h3 style={{ marginTop: 0 }}>Mode frequency, % from the baseline</h3>
-        <TrendChart rows={rows} series={modes.map((m) => ({ key: `mode:${m}`, name: m }))} steps={STEP_LINES(thresholds.modeShiftPct, -1)} unit="%" events={inRange} testId="trend-modes" />
+        <TrendChart
+          rows={rows}
+          series={modes.map((m) => ({ key: `mode:${m}`, name: m }))}
+          steps={STEP_LINES(thresholds.modeShiftPct, -1)}
+          unit="%"
+          events={inRange}
+          testId="trend-modes"
+        />
       </div>
       <div className="card">
         <h3 style={{ marginTop: 0 }}>Largest band rise at matched throttle, dB</h3>
-        <TrendChart rows={rows} series={["roll", "pitch", "yaw"].map((a) => ({ key: `band:${a}`, name: a }))} steps={STEP_LINES(thresholds.levelDb, 1)} unit="dB" events={inRange} testId="trend-bands" />
+        <TrendChart
+          rows={rows}
+          series={["roll", "pitch", "yaw"].map((a) => ({ key: `band:${a}`, name: a }))}
+          steps={STEP_LINES(thresholds.levelDb, 1)}
+          unit="dB"
+          events={inRange}
+          testId="trend-bands"
+        />
       </div>
     </div>
   );

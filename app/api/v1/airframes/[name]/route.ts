@@ -17,7 +17,11 @@ export async function GET(request: Request, { params }: { params: Promise<{ name
       installedParts(actor, airframe.id),
       db.crash.findMany({ where: { airframeId: airframe.id }, orderBy: { at: "desc" } }),
       db.inspection.findMany({ where: { airframeId: airframe.id }, orderBy: { at: "desc" } }),
-      db.flightLog.findMany({ where: { airframeId: airframe.id }, orderBy: { flownAt: "desc" }, include: { assessments: { orderBy: { createdAt: "desc" }, take: 1 } } }),
+      db.flightLog.findMany({
+        where: { airframeId: airframe.id },
+        orderBy: { flownAt: "desc" },
+        include: { assessments: { orderBy: { createdAt: "desc" }, take: 1 } },
+      }),
       activeBaseline(airframe.id),
     ]);
     return {
@@ -26,11 +30,45 @@ export async function GET(request: Request, { params }: { params: Promise<{ name
       serial: airframe.serial,
       state: airframe.status,
       retired: airframe.retired,
-      parts: parts.map((p) => ({ position: p.position, kind: p.part.kind, model: p.part.model, label: p.part.label, since: p.fromAt, flights: p.life.flights, minutes: Math.round(p.life.minutes * 10) / 10, lifeUsed: p.life.fraction })),
-      crashes: crashes.map((c) => ({ at: c.at, severity: c.severity, positions: JSON.parse(c.positions) as string[], note: c.note })),
-      inspections: inspections.map((i) => ({ at: i.at, signedOffBy: i.signedOffName, findings: i.findings, returnedToService: i.returnedToService })),
-      baseline: baseline ? { setAt: baseline.createdAt, setBy: baseline.setByName, reason: baseline.reason, logs: baseline.logIds.length } : null,
-      logs: logs.map((l) => ({ id: l.id, fileName: l.fileName, flownAt: l.flownAt, status: l.status, error: l.error, score: l.assessments[0]?.score ?? null, verdict: l.assessments[0]?.status ?? null })),
+      parts: parts.map((p) => ({
+        position: p.position,
+        kind: p.part.kind,
+        model: p.part.model,
+        label: p.part.label,
+        since: p.fromAt,
+        flights: p.life.flights,
+        minutes: Math.round(p.life.minutes * 10) / 10,
+        lifeUsed: p.life.fraction,
+      })),
+      crashes: crashes.map((c) => ({
+        at: c.at,
+        severity: c.severity,
+        positions: JSON.parse(c.positions) as string[],
+        note: c.note,
+      })),
+      inspections: inspections.map((i) => ({
+        at: i.at,
+        signedOffBy: i.signedOffName,
+        findings: i.findings,
+        returnedToService: i.returnedToService,
+      })),
+      baseline: baseline
+        ? {
+            setAt: baseline.createdAt,
+            setBy: baseline.setByName,
+            reason: baseline.reason,
+            logs: baseline.logIds.length,
+          }
+        : null,
+      logs: logs.map((l) => ({
+        id: l.id,
+        fileName: l.fileName,
+        flownAt: l.flownAt,
+        status: l.status,
+        error: l.error,
+        score: l.assessments[0]?.score ?? null,
+        verdict: l.assessments[0]?.status ?? null,
+      })),
     };
   });
 }

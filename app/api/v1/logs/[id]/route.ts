@@ -13,7 +13,10 @@ export async function GET(request: Request, { params }: { params: Promise<{ id: 
     const { id } = await params;
     const log = await db.flightLog.findFirst({
       where: { id, teamId: actor.teamId },
-      include: { airframe: { select: { name: true } }, assessments: { orderBy: { createdAt: "desc" }, take: 1 } },
+      include: {
+        airframe: { select: { name: true } },
+        assessments: { orderBy: { createdAt: "desc" }, take: 1 },
+      },
     });
     if (!log) throw new NotFoundError("That log");
     const a = log.assessments[0];

@@ -20,9 +20,15 @@ export async function GET(request: Request, { params }: { params: Promise<{ name
     if (format === "csv") csv = historyCsv(history);
     return history;
   });
-  const headers = { "content-disposition": `attachment; filename="${fileName}"`, "cache-control": "no-store" };
+  const headers = {
+    "content-disposition": `attachment; filename="${fileName}"`,
+    "cache-control": "no-store",
+  };
   if (json.status !== 200) return json;
-  if (format === "csv") return new NextResponse(csv, { headers: { ...headers, "content-type": "text/csv; charset=utf-8" } });
+  if (format === "csv")
+    return new NextResponse(csv, {
+      headers: { ...headers, "content-type": "text/csv; charset=utf-8" },
+    });
   json.headers.set("content-disposition", headers["content-disposition"]);
   json.headers.set("cache-control", "no-store");
   return json;
