@@ -5,8 +5,8 @@ const config: NextConfig = {
   poweredByHeader: false,
   // Uploads go to route handlers as streams; server actions only take small forms.
   experimental: { serverActions: { bodySizeLimit: "1mb" } },
-  async headers() {
-    return [{ source: "/:path*", headers: FIXED_HEADERS }];
+  headers() {
+    return Promise.resolve([{ source: "/:path*", headers: FIXED_HEADERS }]);
   },
 };
 

@@ -7,7 +7,9 @@ export default defineConfig({
   experimental: { adapter: true },
   engine: "js",
   schema: "prisma/schema.prisma",
-  async adapter() {
-    return new PrismaBetterSQLite3({ url: process.env.DATABASE_URL ?? "file:./data/heatcheck.db" });
+  adapter() {
+    return Promise.resolve(
+      new PrismaBetterSQLite3({ url: process.env.DATABASE_URL ?? "file:./data/heatcheck.db" }),
+    );
   },
 });

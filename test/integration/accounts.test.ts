@@ -1,3 +1,7 @@
+import { execFileSync } from "node:child_process";
+import { mkdtempSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
 import { beforeAll, describe, expect, it } from "vitest";
 import {
   ConflictError,
@@ -266,11 +270,7 @@ describe("members and tokens (issue 7 item 7)", () => {
 });
 
 describe("the first owner of a server without the demo (npm run accounts -- first-owner)", () => {
-  it("creates the team and its owner once, with a password that passes the rules, and refuses a second time", async () => {
-    const { execFileSync } = await import("node:child_process");
-    const { mkdtempSync } = await import("node:fs");
-    const { tmpdir } = await import("node:os");
-    const { join } = await import("node:path");
+  it("creates the team and its owner once, with a password that passes the rules, and refuses a second time", () => {
     // An empty server of its own: migrated, no accounts.
     const url = `file:${join(mkdtempSync(join(tmpdir(), "heatcheck-owner-")), "h.db")}`;
     execFileSync("npx", ["prisma", "migrate", "deploy"], {

@@ -2,7 +2,7 @@ import { demoCsv } from "@/lib/demo/demo-csv";
 import type { Actor, Role } from "@/lib/roles";
 import { startApp, type AppServer } from "../support/app-server";
 import { join } from "node:path";
-import { Client, signedIn } from "./http";
+import { type Client, signedIn } from "./http";
 
 /**
  * The built app on a free loopback port with HEATCHECK_DEMO=0 (no demo team), and two invented
