@@ -5,13 +5,7 @@ import { mulberry32 } from "@/lib/demo/random";
 import { DomainError, LimitExceededError, LogFormatError } from "@/lib/errors";
 import { parseColumnMap, type ColumnMap } from "@/lib/logs/columns";
 import { MAX_LINE_BYTES } from "@/lib/logs/preamble";
-import {
-  LogReader,
-  fitSamplePeriod,
-  readLog,
-  type LogInfo,
-  type SampleBlock,
-} from "@/lib/logs/read-log";
+import { LogReader, readLog, type LogInfo, type SampleBlock } from "@/lib/logs/read-log";
 
 const enc = new TextEncoder();
 
@@ -267,33 +261,6 @@ describe("sample rate from a line fit of the time stamps", () => {
     );
     expect(r.info?.sampleRateHz).toBe(4000);
     expect(r.time[4999]).toBeCloseTo(4999 * 250e-6, 12);
-  });
-  it("heavy jitter on integer-µs stamps: within 2e-5, where the median step is 0.4 % off", () => {
-    // Ordinary least squares: the slope's standard error is σ·√(12/n³) for n equally spaced points
-    // with independent errors of standard deviation σ; here σ = 80/√12 µs, n = 4096, step 124.5 µs,
-    // so about 2.5e-6 relative; the tolerance 2e-5 is 8 of them.
-    const rand = mulberry32(5);
-    const n = 4096;
-    const step = 124.5;
-    const t = new Float64Array(n).map((_, k) => Math.round(k * step + (rand() - 0.5) * 80) * 1e-6);
-    t.forEach((v, k) => (t[k] = v - (t[0] ?? 0)));
-    const period = fitSamplePeriod(t, new Int32Array(n));
-    expect(Math.abs(period / (step * 1e-6) - 1)).toBeLessThan(2e-5);
-    const steps = Array.from({ length: n - 1 }, (_, k) => (t[k + 1] ?? 0) - (t[k] ?? 0)).sort(
-      (a, b) => a - b,
-    );
-    const median = steps[(n - 2) >> 1] ?? 0;
-    expect(Math.abs(median / (step * 1e-6) - 1)).toBeGreaterThan(3e-3); // the method it replaces
-  });
-  it("runs between gaps share one slope; damaged rows that left a hole count as missing samples", () => {
-    const t: number[] = [];
-    const missed: number[] = [];
-    for (let k = 0; k < 3000; k++) {
-      if (k % 100 === 50) continue; // a damaged row: the sample is missing
-      t.push((k < 1500 ? k : k + 400) * 500e-6); // and a 0.2 s gap in the middle
-      missed.push(k % 100 === 51 ? 1 : 0);
-    }
-    expect(fitSamplePeriod(Float64Array.from(t), Int32Array.from(missed))).toBeCloseTo(500e-6, 15);
   });
 });
 
