@@ -110,13 +110,17 @@ export class RowReader {
     this.guesses = [...options.guesses];
     this.line = options.headerLine;
     const size = this.capacity();
-    this.raw = Array.from({ length: layout.slots }, () => new Float64Array(size));
-    this.rawTime = this.rawOf(layout.time);
+    // One buffer per slot; every slot belongs to exactly one channel of the layout.
+    const raw = Array.from({ length: layout.slots }, () => new Float64Array(0));
+    const rawOf = (c: { slot: number }) => (raw[c.slot] = new Float64Array(size));
+    const scaled = (c: Slot): Scaled => ({ src: rawOf(c), scale: c.scale });
+    this.rawTime = rawOf(layout.time);
     this.timeScale = layout.time.scale;
-    this.rawGyro = layout.gyro.map((c) => this.scaled(c));
-    this.rawThrottle = layout.throttle ? this.rawOf(layout.throttle) : null;
-    this.rawRpm = layout.rpm.map((c) => this.scaled(c));
-    this.rawSetpoint = layout.setpoint?.map((c) => this.scaled(c)) ?? [];
+    this.rawGyro = layout.gyro.map(scaled);
+    this.rawThrottle = layout.throttle ? rawOf(layout.throttle) : null;
+    this.rawRpm = layout.rpm.map(scaled);
+    this.rawSetpoint = layout.setpoint?.map(scaled) ?? [];
+    this.raw = raw;
     this.rawLines = new Int32Array(size);
     this.rawMissed = new Int32Array(size);
   }
@@ -124,16 +128,6 @@ export class RowReader {
   /** Rows a block holds: the probe's rows before the rate is known, blockRows after. */
   private capacity(): number {
     return Math.max(this.blockRows, PROBE_ROWS);
-  }
-
-  private rawOf(s: { slot: number }): Float64Array {
-    const a = this.raw[s.slot];
-    if (!a) throw new Error(`no raw buffer for slot ${s.slot}`);
-    return a;
-  }
-
-  private scaled(s: Slot): Scaled {
-    return { src: this.rawOf(s), scale: s.scale };
   }
 
   /** Rows in bytes[start, end); bytes[end - 1] is a newline. */
