@@ -32,7 +32,7 @@ export type {
   ReadSummary,
   SampleBlock,
 } from "./types";
-export { newSampleBlock } from "./types";
+export { blockShapeOf, newSampleBlock } from "./types";
 export { formatBytes } from "./format";
 export { GAP_FACTOR, MAX_SAMPLE_RATE_HZ, MIN_SAMPLE_RATE_HZ } from "./sample-rate";
 export { MAX_LISTED_GAPS } from "./rows";

@@ -12,6 +12,7 @@ import { formatSeconds } from "./format";
 import { EMPTY_CELL, POW10, parseDecimal } from "./parse-number";
 import { GAP_FACTOR, sampleRateOf } from "./sample-rate";
 import {
+  blockShapeOf,
   newSampleBlock,
   type Gap,
   type LogInfo,
@@ -362,7 +363,7 @@ export class RowReader {
       info,
       period: 1 / rate,
       throttle: throttleConversion(throttleUnit),
-      out: newSampleBlock(this.capacity(), info),
+      out: newSampleBlock(this.capacity(), blockShapeOf(info)),
     };
     return this.stream;
   }

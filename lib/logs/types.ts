@@ -81,18 +81,32 @@ export interface HeadFound {
   line: number;
 }
 
-/** The channels a block carries, as a LogInfo describes them. */
-export type BlockShape = Pick<LogInfo, "hasThrottle" | "motors" | "hasSetpoint">;
+/** The channels a block carries: a throttle array or none, how many rpm arrays, setpoints or none. */
+export interface BlockShape {
+  throttle: boolean;
+  motors: number;
+  setpoint: boolean;
+}
 
-/** An empty block with room for `rows` rows of the channels in `shape`; the caller owns it. */
+/** The shape of the blocks a log described by `info` is read into. */
+export function blockShapeOf(
+  info: Pick<LogInfo, "hasThrottle" | "motors" | "hasSetpoint">,
+): BlockShape {
+  return { throttle: info.hasThrottle, motors: info.motors.length, setpoint: info.hasSetpoint };
+}
+
+/**
+ * An empty block with room for `rows` rows of the channels in `shape`; the caller owns it (a copy
+ * of another block's shape: `{ throttle: b.throttle !== null, motors: b.rpm.length, setpoint: b.setpoint !== null }`).
+ */
 export function newSampleBlock(rows: number, shape: BlockShape): SampleBlock {
   const make = () => new Float64Array(rows);
   return {
     length: 0,
     timeS: make(),
     gyro: [make(), make(), make()],
-    throttle: shape.hasThrottle ? make() : null,
-    rpm: shape.motors.map(make),
-    setpoint: shape.hasSetpoint ? [make(), make(), make()] : null,
+    throttle: shape.throttle ? make() : null,
+    rpm: Array.from({ length: shape.motors }, make),
+    setpoint: shape.setpoint ? [make(), make(), make()] : null,
   };
 }

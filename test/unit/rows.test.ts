@@ -3,7 +3,7 @@ import { LogFormatError } from "@/lib/errors";
 import { makeLayout } from "@/lib/logs/column-layout";
 import { canonicalMap, parseColumnMap } from "@/lib/logs/columns";
 import { MAX_LISTED_GAPS, PROBE_ROWS, RowReader } from "@/lib/logs/rows";
-import { newSampleBlock, type Gap, type LogInfo } from "@/lib/logs/types";
+import { blockShapeOf, newSampleBlock, type Gap, type LogInfo } from "@/lib/logs/types";
 
 // The row core on its own, on rows of heatcheck's canonical format (README, "Log format"); the
 // expected values are the rows' own numbers, converted by the documented unit factors.
@@ -147,12 +147,21 @@ describe("the row core", () => {
 
 describe("an empty sample block", () => {
   it("has room for the rows asked and arrays only for the channels a log has", () => {
-    const b = newSampleBlock(64, { hasThrottle: false, motors: [1, 2, 4], hasSetpoint: true });
+    const b = newSampleBlock(
+      64,
+      blockShapeOf({ hasThrottle: false, motors: [1, 2, 4], hasSetpoint: true }),
+    );
     expect(b.length).toBe(0);
     expect(b.timeS).toHaveLength(64);
     expect(b.gyro.map((g) => g.length)).toEqual([64, 64, 64]);
     expect(b.throttle).toBeNull();
     expect(b.rpm).toHaveLength(3);
     expect(b.setpoint?.[2]).toHaveLength(64);
+    const copy = newSampleBlock(8, {
+      throttle: b.throttle !== null,
+      motors: b.rpm.length,
+      setpoint: false,
+    });
+    expect([copy.throttle, copy.rpm.length, copy.setpoint]).toEqual([null, 3, null]);
   });
 });
