@@ -239,11 +239,11 @@ export function proposeColumnMap(
   // No time word: a column with a time unit as a word of its name whose first values only rise.
   if (!taken.has("time")) {
     lower.forEach((h, i) => {
-      const unit: TimeUnit | null = /(^|[\s_(\[])(us|usec)([\s_)\]]|$)/.test(h)
+      const unit: TimeUnit | null = /(^|[\s_([])(us|usec)([\s_)\]]|$)/.test(h)
         ? "us"
-        : /(^|[\s_(\[])ms([\s_)\]]|$)/.test(h)
+        : /(^|[\s_([])ms([\s_)\]]|$)/.test(h)
           ? "ms"
-          : /(^|[\s_(\[])(s|sec)([\s_)\]]|$)/.test(h)
+          : /(^|[\s_([])(s|sec)([\s_)\]]|$)/.test(h)
             ? "s"
             : null;
       if (!unit || !rises(rows, i)) return;

@@ -41,25 +41,22 @@ export function parseDecimal(bytes: Uint8Array, start: number, end: number): num
   let digits = 0;
   let significant = 0;
   let scale = 0;
+  // Digits before and after one decimal point; each digit after it lowers the scale.
+  let point = false;
   while (i < e) {
-    const d = (bytes[i] ?? 0) - 0x30;
+    const c = bytes[i] ?? 0;
+    if (c === 0x2e /* . */ && !point) {
+      point = true;
+      i++;
+      continue;
+    }
+    const d = c - 0x30;
     if (d < 0 || d > 9) break;
     if (significant > 0 || d !== 0) significant++;
     mantissa = mantissa * 10 + d;
     digits++;
+    if (point) scale--;
     i++;
-  }
-  if (i < e && bytes[i] === 0x2e /* . */) {
-    i++;
-    while (i < e) {
-      const d = (bytes[i] ?? 0) - 0x30;
-      if (d < 0 || d > 9) break;
-      if (significant > 0 || d !== 0) significant++;
-      mantissa = mantissa * 10 + d;
-      digits++;
-      scale--;
-      i++;
-    }
   }
   if (digits === 0) return Number.NaN;
   if (i < e && (bytes[i] === 0x65 || bytes[i] === 0x45) /* e E */) {

@@ -1,8 +1,13 @@
+import { LogFormatError } from "../errors";
+import { formatBytes } from "./format";
+import type { HeadFound } from "./types";
+
 /**
  * The rules for the part of a log before its rows: what kind of file it is, how long a line may be,
  * how far into the file the header may start, and how a `# key: value` line and the header line are
  * split. The streaming reader (read-log.ts) and the head reader the upload paths use (sniff.ts) both
- * apply these, so a file is judged the same whichever path reads it and however its bytes are chunked.
+ * read the preamble with one Preamble, so a file is judged the same whichever path reads it and
+ * however its bytes are chunked.
  */
 
 /** No line of a log, metadata, header or row, may be longer than this (bytes, line ending excluded). */
@@ -72,4 +77,76 @@ export function separatorHint(line: string): string {
   if (line.includes("\t"))
     return " (the columns seem separated by tabs; heatcheck reads comma-separated files)";
   return "";
+}
+
+/** The header row as found: the head of the log, and the line's text (for the separator hint). */
+export interface HeaderLine {
+  head: HeadFound;
+  text: string;
+}
+
+/**
+ * Reads the lines before the rows, one at a time: blank lines and comments are skipped, `# key:
+ * value` lines fill the metadata, and the first other line is the header row (then `found` is set
+ * and no more lines may be given). Throws LogFormatError, naming the line, for binary data, text
+ * that is not UTF-8, a first line of numbers, or no header within MAX_PREAMBLE_BYTES.
+ */
+export class Preamble {
+  readonly metadata: Record<string, string> = {};
+  /** 1-based number of the last line read. */
+  line = 0;
+  /** Set once the header row was read. */
+  found: HeaderLine | null = null;
+  private bytes = 0;
+
+  /** Reads the line starting at `start` (bytes up to `end` hold whole lines) and returns the index after it. */
+  read(bytes: Uint8Array, start: number, end: number): number {
+    let eol = bytes.indexOf(10, start);
+    if (eol < 0 || eol >= end) eol = end;
+    this.line++;
+    let lineEnd = eol;
+    if (lineEnd > start && bytes[lineEnd - 1] === 13) lineEnd--;
+    this.lineText(bytes, start, lineEnd);
+    this.bytes += eol + 1 - start;
+    return eol + 1;
+  }
+
+  private lineText(bytes: Uint8Array, start: number, end: number): void {
+    if (this.bytes >= MAX_PREAMBLE_BYTES) {
+      throw new LogFormatError(
+        `no header row in the first ${formatBytes(MAX_PREAMBLE_BYTES)}: after the # metadata lines, the first line must name the columns`,
+        { line: this.line },
+      );
+    }
+    for (let i = start; i < end; i++) {
+      const b = bytes[i] ?? 0;
+      if (b === 0 || (b < 0x20 && b !== 0x09)) {
+        throw new LogFormatError("the file holds binary data, not CSV text", { line: this.line });
+      }
+    }
+    const text = new TextDecoder("utf-8", { fatal: false })
+      .decode(bytes.subarray(start, end))
+      .replace(/^\uFEFF/, "");
+    if (text.includes("\uFFFD")) {
+      throw new LogFormatError(
+        "the file holds binary data or an unknown text encoding, not UTF-8 CSV",
+        { line: this.line },
+      );
+    }
+    const trimmed = text.trim();
+    if (trimmed === "") return;
+    if (trimmed.startsWith("#")) {
+      const entry = metadataEntry(trimmed);
+      if (entry) this.metadata[entry[0]] = entry[1];
+      return;
+    }
+    const headers = splitHeader(text);
+    if (headers.every((h) => h !== "" && Number.isFinite(Number(h)))) {
+      throw new LogFormatError(
+        "the first line holds numbers, not column names: add a header row such as time_us,gyro_roll,gyro_pitch,gyro_yaw",
+        { line: this.line },
+      );
+    }
+    this.found = { head: { metadata: this.metadata, headers, line: this.line }, text };
+  }
 }

@@ -1,6 +1,5 @@
 import { describe, expect, it } from "vitest";
 import { rankQueue, type AirframeFacts } from "@/lib/health/queue-rank";
-import { matchAirframe, sniffLogHead } from "@/lib/logs/sniff";
 
 // The queue's ordering rules are heatcheck's own (README, "How a log is judged"): a crash with no
 // inspection after it grounds the quad; status first, then the lower score.
@@ -62,32 +61,5 @@ describe("rankQueue", () => {
     ]);
     expect(entry?.status).toBe("inspect");
     expect(entry?.reasons.join(" ")).toMatch(/no baseline set/);
-  });
-});
-
-describe("matching a file to an airframe", () => {
-  const names = ["HV-01", "HV-1", "Kite 3"];
-  it("prefers the # airframe: line, then the longest name in the file name", () => {
-    expect(matchAirframe(names, { metadataAirframe: "hv-01", fileName: "whatever.csv" })).toEqual({
-      name: "HV-01",
-      how: "metadata",
-    });
-    expect(matchAirframe(names, { fileName: "heat2_HV-01_2026.csv" })).toEqual({
-      name: "HV-01",
-      how: "file name",
-    });
-    expect(matchAirframe(names, { fileName: "kite_3-heat1.csv" })).toEqual({
-      name: "Kite 3",
-      how: "file name",
-    });
-    expect(matchAirframe(names, { metadataAirframe: "Unknown", fileName: "log.csv" })).toBeNull();
-  });
-  it("reads metadata and header from the head of a file", () => {
-    const head = sniffLogHead(
-      "\uFEFF# airframe: HV-01\n# flown_at: 2026-11-28T14:05:00Z\n\ntime_us,gyro_roll,gyro_pitch,gyro_yaw\n0,1,2,3\n",
-    );
-    expect(head?.metadata).toEqual({ airframe: "HV-01", flown_at: "2026-11-28T14:05:00Z" });
-    expect(head?.canonical).toBe(true);
-    expect(sniffLogHead("# only comments\n")).toBeNull();
   });
 });
