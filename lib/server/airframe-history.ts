@@ -41,7 +41,7 @@ export async function airframeHistory(actor: Actor, name: string) {
       name: airframe.name,
       frameDesign: airframe.frameDesign,
       serial: airframe.serial,
-      state: airframe.status,
+      state: airframe.state,
       retired: airframe.retired,
       notes: airframe.notes,
     },

@@ -1,7 +1,7 @@
 import "server-only";
 import { ConflictError, NotFoundError } from "@/lib/errors";
 import type { Actor } from "@/lib/roles";
-import type { AirframeInput } from "@/lib/validations/airframe";
+import type { AirframeInput, AirframeState } from "@/lib/validations/airframe";
 import { audit } from "./audit";
 import { db } from "./db";
 import { assertRole } from "./authorize";
@@ -32,20 +32,21 @@ export async function createAirframe(actor: Actor, input: AirframeInput) {
   });
 }
 
-export async function setAirframeStatus(
+/** Ground an airframe or return it to service (its `state`, not its health `status`). */
+export async function setAirframeState(
   actor: Actor,
   airframeId: string,
-  status: "ready" | "grounded",
+  state: AirframeState,
   note: string,
 ) {
   assertRole(actor, "tech");
   const a = await airframeOfTeam(actor, airframeId);
   return db.$transaction(async (tx) => {
-    const updated = await tx.airframe.update({ where: { id: a.id }, data: { status } });
+    const updated = await tx.airframe.update({ where: { id: a.id }, data: { state } });
     await audit(
       tx,
       actor,
-      status === "grounded" ? "ground" : "return to service",
+      state === "grounded" ? "ground" : "return to service",
       "airframe",
       a.id,
       note,

@@ -31,7 +31,7 @@ export async function logCrash(actor: Actor, input: CrashInput) {
       },
     });
     if (ground)
-      await tx.airframe.update({ where: { id: airframe.id }, data: { status: "grounded" } });
+      await tx.airframe.update({ where: { id: airframe.id }, data: { state: "grounded" } });
     await audit(
       tx,
       actor,
@@ -62,7 +62,7 @@ export async function recordInspection(actor: Actor, input: InspectionInput) {
       },
     });
     if (input.returnToService)
-      await tx.airframe.update({ where: { id: airframe.id }, data: { status: "ready" } });
+      await tx.airframe.update({ where: { id: airframe.id }, data: { state: "ready" } });
     await audit(
       tx,
       actor,

@@ -52,7 +52,7 @@ export async function fleetTable(actor: Actor) {
       id: a.id,
       name: a.name,
       frameDesign: a.frameDesign,
-      state: a.status,
+      state: a.state,
       retired: a.retired,
       status: latest?.status ?? null,
       score: latest?.score ?? null,
@@ -107,7 +107,7 @@ export async function fleetPlacement(actor: Actor): Promise<FleetPlacement> {
   const sources = await placementSources(actor);
   const fingerprint = sources
     .map((r) =>
-      [r.id, r.name, r.frameDesign, r.status, r.baselines[0]?.id ?? "", r.logs[0]?.id ?? ""].join(
+      [r.id, r.name, r.frameDesign, r.state, r.baselines[0]?.id ?? "", r.logs[0]?.id ?? ""].join(
         "|",
       ),
     )
@@ -134,7 +134,7 @@ function placementSources(actor: Actor) {
       id: true,
       name: true,
       frameDesign: true,
-      status: true,
+      state: true,
       baselines: {
         where: { active: true },
         orderBy: { createdAt: "desc" },
@@ -172,7 +172,7 @@ async function computePlacement(
     const fromBaseline = bJson
       ? memberFromBaseline(a.id, a.name, JSON.parse(bJson) as Baseline)
       : null;
-    if (fromBaseline && a.status !== "grounded")
+    if (fromBaseline && a.state !== "grounded")
       members.set(a.frameDesign, [...(members.get(a.frameDesign) ?? []), fromBaseline]);
     const fromLog =
       !fromBaseline && aJson ? memberFromLog(a.id, a.name, JSON.parse(aJson) as LogAnalysis) : null;

@@ -140,7 +140,7 @@ async function rankTeam(actor: Actor): Promise<Ranked> {
     facts.push({
       id: a.id,
       name: a.name,
-      state: a.status,
+      state: a.state,
       latest: latestAssessment
         ? {
             status: latestAssessment.status as Status,

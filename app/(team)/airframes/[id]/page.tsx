@@ -60,7 +60,7 @@ export default async function AirframePage({
           <div className="muted">
             {airframe.frameDesign}
             {airframe.serial ? ` · serial ${airframe.serial}` : ""} ·{" "}
-            {airframe.status === "grounded" ? "GROUNDED" : "ready"}
+            {airframe.state === "grounded" ? "GROUNDED" : "ready"}
             {airframe.retired ? " · retired" : ""}
           </div>
           <div className="small">
@@ -139,7 +139,7 @@ export default async function AirframePage({
       <ThrottleMapCard analysis={analysis} axis={heatAxis} href={`/airframes/${airframe.id}`} />
 
       <WorkForms
-        airframe={{ id: airframe.id, status: airframe.status }}
+        airframe={{ id: airframe.id, state: airframe.state }}
         actorName={actor.name}
         canPilot={canPilot}
         canTech={canTech}

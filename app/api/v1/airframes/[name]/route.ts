@@ -28,7 +28,7 @@ export async function GET(request: Request, { params }: { params: Promise<{ name
       name: airframe.name,
       frameDesign: airframe.frameDesign,
       serial: airframe.serial,
-      state: airframe.status,
+      state: airframe.state,
       retired: airframe.retired,
       parts: parts.map((p) => ({
         position: p.position,
