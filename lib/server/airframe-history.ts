@@ -1,8 +1,8 @@
 import "server-only";
-import type { Finding } from "@/lib/health/compare";
 import type { Actor } from "@/lib/roles";
 import { airframeByName } from "./airframes";
 import { db } from "./db";
+import { decodeCrashPositions, decodeFindings, decodeStatus } from "./stored";
 
 /**
  * An airframe's whole history for export: every crash, part fitted or removed, inspection,
@@ -57,7 +57,7 @@ export async function airframeHistory(actor: Actor, name: string) {
     crashes: crashes.map((c) => ({
       at: c.at,
       severity: c.severity,
-      positions: JSON.parse(c.positions) as string[],
+      positions: decodeCrashPositions(c.positions),
       note: c.note,
     })),
     inspections: inspections.map((i) => ({
@@ -84,8 +84,8 @@ export async function airframeHistory(actor: Actor, name: string) {
         sampleRateHz: l.sampleRateHz,
         durationS: l.durationS,
         score: a?.score ?? null,
-        verdict: a?.status ?? null,
-        findings: a ? (JSON.parse(a.findings) as Finding[]).map((f) => f.text) : [],
+        verdict: a ? decodeStatus(a.status) : null,
+        findings: a ? decodeFindings(a.findings).map((f) => f.text) : [],
       };
     }),
   };

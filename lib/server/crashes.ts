@@ -7,6 +7,7 @@ import { airframeOfTeam } from "./airframes";
 import { audit } from "./audit";
 import { db } from "./db";
 import { assertRole } from "./authorize";
+import { encodeCrashPositions } from "./stored";
 
 /** Logs a crash (pilots may). A hard crash or a destroyed airframe grounds it, as does the box. */
 export async function logCrash(actor: Actor, input: CrashInput) {
@@ -25,7 +26,7 @@ export async function logCrash(actor: Actor, input: CrashInput) {
         at: input.at,
         heatId: input.heatId,
         severity: input.severity,
-        positions: JSON.stringify(input.positions),
+        positions: encodeCrashPositions(input.positions),
         note: input.note,
         loggedById: actor.userId ?? "token",
       },

@@ -2,6 +2,7 @@ import { airframeByName } from "@/lib/server/airframes";
 import { activeBaseline } from "@/lib/server/baselines";
 import { db } from "@/lib/server/db";
 import { requireApiCaller } from "@/lib/server/guard";
+import { decodeCrashPositions } from "@/lib/server/stored";
 import { jsonRoute } from "@/lib/server/http";
 import { installedParts } from "@/lib/server/parts";
 
@@ -43,7 +44,7 @@ export async function GET(request: Request, { params }: { params: Promise<{ name
       crashes: crashes.map((c) => ({
         at: c.at,
         severity: c.severity,
-        positions: JSON.parse(c.positions) as string[],
+        positions: decodeCrashPositions(c.positions),
         note: c.note,
       })),
       inspections: inspections.map((i) => ({
