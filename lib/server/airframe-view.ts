@@ -15,6 +15,9 @@ export interface TimelineItem {
 }
 
 /** Everything the airframe screen shows, read once. */
+export type AirframeView = Awaited<ReturnType<typeof airframeView>>;
+
+/** Everything the airframe screen shows, read once. */
 export async function airframeView(actor: Actor, airframeId: string) {
   const airframe = await airframeOfTeam(actor, airframeId);
   const [baseline, parts, logs, crashes, inspections, swaps, baselines] = await Promise.all([

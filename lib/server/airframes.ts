@@ -3,7 +3,7 @@ import { ConflictError, NotFoundError } from "@/lib/errors";
 import type { Actor } from "@/lib/roles";
 import type { AirframeInput, AirframeState } from "@/lib/validations/airframe";
 import { audit } from "./audit";
-import { db } from "./db";
+import { db, type Tx } from "./db";
 import { assertRole } from "./authorize";
 
 /** An airframe of the actor's team, or NotFoundError (also for another team's id). */
@@ -17,6 +17,15 @@ export async function airframeByName(actor: Actor, name: string) {
   const airframe = await db.airframe.findFirst({ where: { teamId: actor.teamId, name } });
   if (!airframe) throw new NotFoundError(`An airframe named "${name}"`);
   return airframe;
+}
+
+/** The team's airframes in service (not retired), by name: for pickers on the upload and events screens. */
+export async function airframesInService(actor: Actor): Promise<{ id: string; name: string }[]> {
+  return db.airframe.findMany({
+    where: { teamId: actor.teamId, retired: false },
+    orderBy: { name: "asc" },
+    select: { id: true, name: true },
+  });
 }
 
 export async function createAirframe(actor: Actor, input: AirframeInput) {
@@ -42,17 +51,28 @@ export async function setAirframeState(
   assertRole(actor, "tech");
   const a = await airframeOfTeam(actor, airframeId);
   return db.$transaction(async (tx) => {
-    const updated = await tx.airframe.update({ where: { id: a.id }, data: { state } });
-    await audit(
-      tx,
-      actor,
-      state === "grounded" ? "ground" : "return to service",
-      "airframe",
-      a.id,
-      note,
-    );
-    return updated;
+    await settleAirframe(tx, actor, a.id, {
+      state,
+      action: state === "grounded" ? "ground" : "return to service",
+      detail: note,
+    });
+    return { ...a, state };
   });
+}
+
+/**
+ * The end of every write about one airframe, inside its transaction: the airframe's new state when
+ * the write changes it (a crash grounds, an inspection returns to service) and the audit entry.
+ */
+export async function settleAirframe(
+  tx: Tx,
+  actor: Actor,
+  airframeId: string,
+  change: { state: AirframeState | null; action: string; detail: string },
+): Promise<void> {
+  if (change.state)
+    await tx.airframe.update({ where: { id: airframeId }, data: { state: change.state } });
+  await audit(tx, actor, change.action, "airframe", airframeId, change.detail);
 }
 
 export async function setAirframeRetired(actor: Actor, airframeId: string, retired: boolean) {

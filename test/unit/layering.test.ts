@@ -26,6 +26,15 @@ const tree = [
 ];
 
 describe("layering", () => {
+  it("has no file in app/ import the database module or the Prisma client (they go through lib/server services)", () => {
+    const importers = sources("app").filter((file) =>
+      /from\s+["'](@\/lib\/server\/db|@\/generated\/prisma[^"']*|[./]+(lib\/server\/)?db)["']/.test(
+        readFileSync(join(root, file), "utf8"),
+      ),
+    );
+    expect(importers).toEqual([]);
+  });
+
   it("has only lib/config.ts read the environment", () => {
     // Not yet switched: the upload limits and the worker pool (their own branch switches them),
     // the plain-JavaScript bin (it runs before any TypeScript loader), and NEXT_RUNTIME, which
