@@ -3,7 +3,8 @@
 // re-queued, a bounded shutdown armed (lib/server/startup.ts).
 export async function register(): Promise<void> {
   if (process.env.NEXT_RUNTIME !== "nodejs") return;
-  if (process.env.HEATCHECK_TRUST_PROXY !== "1") {
+  const { config } = await import("@/lib/config");
+  if (!config().trustProxy) {
     const { dropClientForwardedFor } = await import("@/lib/server/trust-proxy");
     dropClientForwardedFor();
   }

@@ -1,5 +1,6 @@
 import { PrismaBetterSQLite3 } from "@prisma/adapter-better-sqlite3";
 import { defineConfig } from "prisma/config";
+import { config } from "./lib/config";
 
 // Prisma's JavaScript schema engine with the better-sqlite3 adapter: no engine binary to
 // download. Paths resolve from the project root; run Prisma commands from there.
@@ -8,8 +9,6 @@ export default defineConfig({
   engine: "js",
   schema: "prisma/schema.prisma",
   adapter() {
-    return Promise.resolve(
-      new PrismaBetterSQLite3({ url: process.env.DATABASE_URL ?? "file:./data/heatcheck.db" }),
-    );
+    return Promise.resolve(new PrismaBetterSQLite3({ url: config().databaseUrl }));
   },
 });

@@ -1,5 +1,6 @@
 import { getToken } from "next-auth/jwt";
 import { NextResponse, type NextRequest } from "next/server";
+import { config as settings } from "@/lib/config";
 import { contentSecurityPolicy, HSTS } from "@/lib/security-headers";
 
 /**
@@ -18,17 +19,15 @@ export async function proxy(request: NextRequest): Promise<NextResponse> {
   const { pathname, search } = request.nextUrl;
   const https =
     request.nextUrl.protocol === "https:" || request.headers.get("x-forwarded-proto") === "https";
+  const { development, authSecret } = settings();
   const nonce = btoa(crypto.randomUUID());
   const csp = contentSecurityPolicy(nonce, {
     https,
-    development: process.env.NODE_ENV === "development",
+    development,
   });
 
   let response: NextResponse;
-  if (
-    !isPublic(pathname) &&
-    !(await getToken({ req: request, secret: process.env.NEXTAUTH_SECRET }))
-  ) {
+  if (!isPublic(pathname) && !(await getToken({ req: request, secret: authSecret }))) {
     const signIn = new URL("/signin", request.nextUrl.origin);
     signIn.searchParams.set("callbackUrl", `${pathname}${search}`);
     response = NextResponse.redirect(signIn);

@@ -14,7 +14,9 @@ export type ErrorCode =
   | "limit-exceeded"
   | "conflict"
   | "too-many-requests"
-  | "insufficient-storage";
+  | "insufficient-storage"
+  | "bad-config"
+  | "bad-record";
 
 export abstract class DomainError extends Error {
   abstract readonly code: ErrorCode;
@@ -100,21 +102,46 @@ export class ForbiddenError extends DomainError {
   }
 }
 
+/** Something is larger than its limit (an upload, a file's lines). */
 export class LimitExceededError extends DomainError {
   readonly code = "limit-exceeded" as const;
   readonly httpStatus = 413;
-  constructor(message: string) {
-    super(message);
-    this.name = "LimitExceededError";
-  }
+  override readonly name = "LimitExceededError";
 }
 
+/** The change clashes with what is already recorded (a name in use, a part already fitted). */
 export class ConflictError extends DomainError {
   readonly code = "conflict" as const;
   readonly httpStatus = 409;
-  constructor(message: string) {
-    super(message);
-    this.name = "ConflictError";
+  override readonly name = "ConflictError";
+}
+
+/**
+ * An environment variable that does not parse (lib/config.ts). The server cannot run as asked, so
+ * it is the operator's to fix: `npm start` stops with this sentence before it starts anything.
+ */
+export class ConfigError extends DomainError {
+  readonly code = "bad-config" as const;
+  readonly httpStatus = 500;
+  override readonly name = "ConfigError";
+  constructor(variable: string, value: string | undefined, expected: string) {
+    super(`${variable} must be ${expected}; it is set to "${value ?? ""}".`);
+  }
+}
+
+/**
+ * A row of the database this version cannot read (lib/server/stored.ts): JSON that does not parse,
+ * a version newer than this code, a status that is not one. It is the server's fault, not the
+ * user's: a 500 with a sentence that says what to redo.
+ */
+export class StoredRecordError extends DomainError {
+  readonly code = "bad-record" as const;
+  readonly httpStatus = 500;
+  override readonly name = "StoredRecordError";
+  constructor(what: string) {
+    super(
+      `${what} could not be read (written by another version of heatcheck, or damaged); re-run the log's analysis or set the baseline again.`,
+    );
   }
 }
 

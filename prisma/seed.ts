@@ -5,6 +5,7 @@ import { createReadStream } from "node:fs";
 import { mkdtemp, rm, writeFile } from "node:fs/promises";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
+import { config } from "@/lib/config";
 import { DEMO_ACCOUNTS } from "@/lib/demo/accounts";
 import { demoCsv } from "@/lib/demo/demo-csv";
 import type { DemoLogOptions } from "@/lib/demo/generator";
@@ -61,7 +62,7 @@ const POSITIONS: { position: string; kind: PartKind; model: string; lifeFlights?
 ];
 
 async function main(): Promise<void> {
-  if (process.env.HEATCHECK_DEMO === "0") {
+  if (!config().demo) {
     console.log(
       "seed: HEATCHECK_DEMO=0, no demo team (create the first owner with `npm run accounts -- first-owner`)",
     );

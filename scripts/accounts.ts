@@ -4,13 +4,14 @@
 //   npm run accounts -- enable <email>
 // The first owner's password is read from HEATCHECK_OWNER_PASSWORD, or asked for on the terminal.
 import { createInterface } from "node:readline/promises";
+import { config } from "@/lib/config";
 import { isDomainError } from "@/lib/errors";
 import { db } from "@/lib/server/db";
 import { assertAcceptablePassword, hashPassword } from "@/lib/server/passwords";
 import { endUserSessions } from "@/lib/server/sessions";
 
 async function askPassword(): Promise<string> {
-  const fromEnv = process.env.HEATCHECK_OWNER_PASSWORD;
+  const fromEnv = config().ownerPassword;
   if (fromEnv) return fromEnv;
   const rl = createInterface({ input: process.stdin, output: process.stdout, terminal: true });
   const answer = await rl.question("Password for the first owner (12+ characters): ");

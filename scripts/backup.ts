@@ -7,6 +7,7 @@ import { tmpdir } from "node:os";
 import { isAbsolute, join, resolve } from "node:path";
 import { createGzip } from "node:zlib";
 import { openSqlite } from "../lib/archive/sqlite-file";
+import { config } from "../lib/config";
 import { TarWriter } from "../lib/archive/tar";
 
 export const BACKUP_FORMAT = "heatcheck-backup";
@@ -17,14 +18,10 @@ async function main(): Promise<number> {
     console.error("usage: npm run backup -- <file.tar.gz>");
     return 2;
   }
-  const cwd = process.env.INIT_CWD ?? process.cwd();
+  const cwd = config().invocationDir;
   const out = resolve(cwd, target);
-  const dataDir = resolve(process.env.HEATCHECK_DATA_DIR ?? join(process.cwd(), "data"));
-  const dbFile = resolve(
-    (process.env.DATABASE_URL ?? `file:${join(dataDir, "heatcheck.db")}`)
-      .replace(/^file:/, "")
-      .replace(/\?.*$/, ""),
-  );
+  const { dataDir, databaseUrl } = config();
+  const dbFile = resolve(databaseUrl.replace(/^file:/, "").replace(/\?.*$/, ""));
   const work = await mkdtemp(join(tmpdir(), "heatcheck-backup-"));
   const t0 = Date.now();
   try {

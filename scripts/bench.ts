@@ -8,9 +8,10 @@
 import { spawnSync } from "node:child_process";
 import { existsSync, mkdirSync, statSync } from "node:fs";
 import { join } from "node:path";
+import { config, inheritedEnvironment } from "../lib/config";
 
 const OUT = "bench-out";
-const RUNS = Number(process.env.BENCH_RUNS ?? 5);
+const RUNS = config().tools.benchRuns ?? 5;
 mkdirSync(OUT, { recursive: true });
 
 /** The README's command, and the linked one. */
@@ -48,7 +49,7 @@ function timeAnalyze(how: keyof typeof COMMANDS, file: string): Run {
   const r = spawnSync(command, [...prefix, "analyze", file, "--max-mb", "4096"], {
     encoding: "utf8",
     maxBuffer: 1 << 30,
-    env: { ...process.env, HEATCHECK_REPORT_RSS: "1" },
+    env: { ...inheritedEnvironment(), HEATCHECK_REPORT_RSS: "1" },
   });
   const wallS = Number(process.hrtime.bigint() - t) / 1e9;
   if (r.status !== 0) throw new Error(`analyze failed: ${r.stderr}`);

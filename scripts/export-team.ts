@@ -2,11 +2,11 @@
 // team as a documented archive (see README "Team export"). Exit 0 done, 1 failed, 2 usage.
 import { createWriteStream } from "node:fs";
 import { rm } from "node:fs/promises";
-import { join, resolve } from "node:path";
+import { resolve } from "node:path";
 import { createGzip } from "node:zlib";
+import { config } from "../lib/config";
 
-// The same defaults as npm start: the database in the data folder unless DATABASE_URL says otherwise.
-process.env.DATABASE_URL ??= `file:${join(resolve(process.env.HEATCHECK_DATA_DIR ?? "data"), "heatcheck.db")}`;
+// The database is npm start's (lib/config.ts): the data folder's unless DATABASE_URL says otherwise.
 const { db } = await import("../lib/server/db");
 const { writeTeamExport } = await import("../lib/server/team-export");
 
@@ -26,7 +26,7 @@ async function main(): Promise<number> {
     );
     return 1;
   }
-  const out = resolve(process.env.INIT_CWD ?? process.cwd(), target);
+  const out = resolve(config().invocationDir, target);
   const file = createWriteStream(out, { mode: 0o600, flags: "wx" });
   const gzip = createGzip();
   const done = new Promise<void>((ok, fail) => {

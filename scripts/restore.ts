@@ -7,6 +7,7 @@ import { chmod, mkdir, readdir, readFile, rm } from "node:fs/promises";
 import { dirname, join, resolve } from "node:path";
 import { createGunzip } from "node:zlib";
 import { openSqlite } from "../lib/archive/sqlite-file";
+import { config } from "../lib/config";
 import { readTar, writeEntryFile } from "../lib/archive/tar";
 
 async function main(): Promise<number> {
@@ -15,13 +16,9 @@ async function main(): Promise<number> {
     console.error("usage: npm run restore -- <file.tar.gz>");
     return 2;
   }
-  const archive = resolve(process.env.INIT_CWD ?? process.cwd(), source);
-  const dataDir = resolve(process.env.HEATCHECK_DATA_DIR ?? join(process.cwd(), "data"));
-  const dbFile = resolve(
-    (process.env.DATABASE_URL ?? `file:${join(dataDir, "heatcheck.db")}`)
-      .replace(/^file:/, "")
-      .replace(/\?.*$/, ""),
-  );
+  const archive = resolve(config().invocationDir, source);
+  const { dataDir, databaseUrl } = config();
+  const dbFile = resolve(databaseUrl.replace(/^file:/, "").replace(/\?.*$/, ""));
   if (!existsSync(archive)) {
     console.error(`heatcheck: ${archive} does not exist.`);
     return 1;

@@ -3,14 +3,12 @@
 // change it), then 50 kill -9 trials during uploads and analyses (SOAK_KILLS). Prints requests,
 // errors, p50/p95/p99, upload MB/s, lost uploads and peak RSS; the README shows the latest figures.
 import { rmSync } from "node:fs";
+import { config } from "../lib/config";
 import { addToken, seededDataDir, startThroughScript } from "../test/reliability/harness";
 import { killTrials } from "../test/reliability/kill-trials";
 import { runLoad, type Stats } from "../test/reliability/load";
 
-const n = (name: string, fallback: number) => {
-  const v = Number(process.env[name]);
-  return Number.isFinite(v) && v >= 0 ? v : fallback;
-};
+const { tools } = config();
 const ms = (s: Stats) =>
   `p50 ${s.p50.toFixed(0)} ms, p95 ${s.p95.toFixed(0)} ms, p99 ${s.p99.toFixed(0)} ms (n = ${s.count})`;
 
@@ -19,10 +17,10 @@ let app = await startThroughScript(dir);
 let failed = false;
 try {
   const load = await runLoad(app, app.pid, {
-    readers: n("SOAK_READERS", 50),
-    uploaders: n("SOAK_UPLOADERS", 20),
-    seconds: n("SOAK_SECONDS", 60),
-    uploadMb: n("SOAK_UPLOAD_MB", 15),
+    readers: tools.soakReaders ?? 50,
+    uploaders: tools.soakUploaders ?? 20,
+    seconds: tools.soakSeconds ?? 60,
+    uploadMb: tools.soakUploadMb ?? 15,
   });
   console.log(`
 load: ${load.options.readers} readers + ${load.options.uploaders} uploaders of ${load.options.uploadMb} MB for ${load.options.seconds} s
@@ -32,7 +30,7 @@ load: ${load.options.readers} readers + ${load.options.uploaders} uploaders of $
   uploads    ${ms(load.uploadMs)}; per upload ${load.uploadMBps.median.toFixed(1)} MB/s median, ${load.uploadMBps.p5.toFixed(1)} MB/s 5th percentile, ${load.uploadMBps.min.toFixed(1)} MB/s slowest
   uploads answered 200: ${load.uploads}, lost: ${load.lostUploads}; peak RSS of one server process ${load.maxRssMb} MB`);
   failed ||= load.errors > 0 || load.lostUploads > 0;
-  const trials = n("SOAK_KILLS", 50);
+  const trials = tools.soakKills ?? 50;
   if (trials > 0) {
     const token = addToken(app.dataDir);
     const { report, app: last } = await killTrials(app, token, trials, Date.now() % 100_000);

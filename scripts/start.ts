@@ -6,16 +6,14 @@
 import { spawn, type ChildProcess } from "node:child_process";
 import { randomBytes } from "node:crypto";
 import { existsSync, mkdirSync, readdirSync, readFileSync, statSync, writeFileSync } from "node:fs";
-import { join, resolve } from "node:path";
+import { join } from "node:path";
 import { createInterface } from "node:readline";
+import { config, inheritedEnvironment, type Config } from "../lib/config";
 import { DEMO_ACCOUNTS } from "../lib/demo/accounts";
+import { isDomainError } from "../lib/errors";
+import { DECISION_AID_NOTE } from "../lib/health/safety";
 
 const root = process.cwd();
-const dataDir = resolve(process.env.HEATCHECK_DATA_DIR ?? join(root, "data"));
-const port = process.env.PORT ?? "3000";
-// Loopback unless told otherwise: a pit laptop on a shared Wi-Fi should not serve the team's
-// records to everyone in range by accident.
-const host = process.env.HEATCHECK_HOST ?? "127.0.0.1";
 
 const startedAt = Date.now();
 const children = new Set<ChildProcess>();
@@ -69,6 +67,19 @@ function step(
   });
 }
 
+/** Every setting, checked before anything starts: a bad value stops here with its sentence. */
+function settings(): Config {
+  try {
+    return config();
+  } catch (e) {
+    if (isDomainError(e)) fail(e.message);
+    throw e;
+  }
+}
+// Loopback unless told otherwise (lib/config.ts): a pit laptop on a shared Wi-Fi should not serve
+// the team's records to everyone in range by accident.
+const { dataDir, port, host, databaseUrl, publicUrl, demo } = settings();
+
 /** A signing secret kept in the data folder, so sessions survive restarts. */
 function authSecret(): string {
   const file = join(dataDir, ".auth-secret");
@@ -105,12 +116,12 @@ async function main(): Promise<void> {
     );
   }
   const env: NodeJS.ProcessEnv = {
-    ...process.env,
+    ...inheritedEnvironment(),
     NEXT_TELEMETRY_DISABLED: "1",
     HEATCHECK_DATA_DIR: dataDir,
-    DATABASE_URL: process.env.DATABASE_URL ?? `file:${join(dataDir, "heatcheck.db")}`,
-    NEXTAUTH_URL: process.env.NEXTAUTH_URL ?? `http://localhost:${port}`,
-    NEXTAUTH_SECRET: process.env.NEXTAUTH_SECRET ?? authSecret(),
+    DATABASE_URL: databaseUrl,
+    NEXTAUTH_URL: publicUrl,
+    NEXTAUTH_SECRET: settings().authSecret ?? authSecret(),
   };
   const npx = process.platform === "win32" ? "npx.cmd" : "npx";
 
@@ -165,7 +176,7 @@ async function main(): Promise<void> {
       : Promise.resolve(),
   ]);
 
-  const server = spawn(npx, ["next", "start", "-p", port, "-H", host], {
+  const server = spawn(npx, ["next", "start", "-p", String(port), "-H", host], {
     stdio: ["ignore", "inherit", "inherit"],
     env,
   });
@@ -175,12 +186,12 @@ async function main(): Promise<void> {
 heatcheck is starting on ${env.NEXTAUTH_URL} (listening on ${host}:${port}; prepared in ${seconds(startedAt)})
   database: ${env.DATABASE_URL}
 ${
-  process.env.HEATCHECK_DEMO === "0"
+  !demo
     ? "  demo off (HEATCHECK_DEMO=0); first owner of an empty server: npm run accounts -- first-owner"
     : `  DEMO MODE (HEATCHECK_DEMO=0 turns it off); demo sign-in, while the demo team exists:
 ${DEMO_ACCOUNTS.map((a) => `    ${a.role.padEnd(6)} ${a.email} / ${a.password}`).join("\n")}`
 }
-  The score is a decision aid, not an airworthiness certificate.
+  ${DECISION_AID_NOTE}
 `);
 }
 

@@ -4,7 +4,7 @@ import { revalidatePath } from "next/cache";
 import { cookies } from "next/headers";
 import { z } from "zod";
 import { answerInvitation, assertMemberOf, changePassword } from "@/lib/server/account";
-import { createAirframe, setAirframeRetired, setAirframeStatus } from "@/lib/server/airframes";
+import { createAirframe, setAirframeRetired, setAirframeState } from "@/lib/server/airframes";
 import { requireUser, TEAM_COOKIE, TEAM_COOKIE_OPTIONS } from "@/lib/server/guard";
 import { runAction, type ActionState } from "@/lib/server/actions";
 import { setBaseline } from "@/lib/server/baselines";
@@ -22,7 +22,7 @@ import {
   saveProfile,
   withdrawInvitation,
 } from "@/lib/server/team";
-import { airframeSchema, airframeStatusSchema } from "@/lib/validations/airframe";
+import { airframeSchema, airframeStateSchema } from "@/lib/validations/airframe";
 import { baselineSchema } from "@/lib/validations/baseline";
 import { idField, optionalText } from "@/lib/validations/common";
 import { crashSchema } from "@/lib/validations/crash";
@@ -58,21 +58,12 @@ export async function createAirframeAction(_: ActionState, form: FormData): Prom
   });
 }
 
-export async function setAirframeStatusAction(
-  _: ActionState,
-  form: FormData,
-): Promise<ActionState> {
-  return runAction(
-    "setAirframeStatus",
-    "tech",
-    airframeStatusSchema,
-    form,
-    async (actor, input) => {
-      await setAirframeStatus(actor, input.airframeId, input.status, input.note);
-      refreshAirframe(input.airframeId);
-      return input.status === "grounded" ? "Airframe grounded." : "Airframe back in service.";
-    },
-  );
+export async function setAirframeStateAction(_: ActionState, form: FormData): Promise<ActionState> {
+  return runAction("setAirframeState", "tech", airframeStateSchema, form, async (actor, input) => {
+    await setAirframeState(actor, input.airframeId, input.state, input.note);
+    refreshAirframe(input.airframeId);
+    return input.state === "grounded" ? "Airframe grounded." : "Airframe back in service.";
+  });
 }
 
 export async function retireAirframeAction(_: ActionState, form: FormData): Promise<ActionState> {

@@ -1,8 +1,8 @@
 import { redirect } from "next/navigation";
 import type { ReactNode } from "react";
 import { ForbiddenError, UnauthenticatedError } from "@/lib/errors";
-import { db } from "@/lib/server/db";
 import { NO_TEAM_MESSAGE, requireMember } from "@/lib/server/guard";
+import { teamName } from "@/lib/server/team";
 import { Nav } from "./_components/nav";
 
 export const dynamic = "force-dynamic";
@@ -17,10 +17,9 @@ export default async function TeamLayout({ children }: { children: ReactNode }) 
     if (e instanceof ForbiddenError && e.message === NO_TEAM_MESSAGE) redirect("/welcome");
     throw e;
   }
-  const team = await db.team.findUnique({ where: { id: actor.teamId } });
   return (
     <>
-      <Nav teamName={team?.name ?? ""} userName={actor.name} role={actor.role} />
+      <Nav teamName={await teamName(actor)} userName={actor.name} role={actor.role} />
       <main>{children}</main>
     </>
   );

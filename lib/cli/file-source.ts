@@ -1,6 +1,7 @@
 import { createReadStream } from "node:fs";
 import { stat } from "node:fs/promises";
 import { resolve } from "node:path";
+import { config } from "../config";
 import { InputError } from "../errors";
 
 /**
@@ -8,7 +9,7 @@ import { InputError } from "../errors";
  * resolved against the folder npm was started from (INIT_CWD), as the user expects.
  */
 export function userPath(path: string): string {
-  return resolve(process.env.INIT_CWD ?? process.cwd(), path);
+  return resolve(config().invocationDir, path);
 }
 
 /** A file as a byte stream in 1 MiB chunks; a missing or unreadable file is an InputError. */

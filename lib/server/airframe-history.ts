@@ -1,8 +1,33 @@
 import "server-only";
-import type { Finding } from "@/lib/health/compare";
 import type { Actor } from "@/lib/roles";
 import { airframeByName } from "./airframes";
 import { db } from "./db";
+import { decodeCrashPositions, decodeFindings, decodeStatus } from "./stored";
+
+/** A crash as the history export and the airframe API show it. */
+export function crashRecord(c: { at: Date; severity: string; positions: string; note: string }) {
+  return {
+    at: c.at,
+    severity: c.severity,
+    positions: decodeCrashPositions(c.positions),
+    note: c.note,
+  };
+}
+
+/** An inspection as the history export and the airframe API show it. */
+export function inspectionRecord(i: {
+  at: Date;
+  signedOffName: string;
+  findings: string;
+  returnedToService: boolean;
+}) {
+  return {
+    at: i.at,
+    signedOffBy: i.signedOffName,
+    findings: i.findings,
+    returnedToService: i.returnedToService,
+  };
+}
 
 /**
  * An airframe's whole history for export: every crash, part fitted or removed, inspection,
@@ -11,27 +36,14 @@ import { db } from "./db";
  */
 export async function airframeHistory(actor: Actor, name: string) {
   const airframe = await airframeByName(actor, name);
+  const where = { airframeId: airframe.id, teamId: actor.teamId };
   const [installations, crashes, inspections, baselines, logs] = await Promise.all([
-    db.installation.findMany({
-      where: { airframeId: airframe.id, teamId: actor.teamId },
-      include: { part: true },
-      orderBy: { fromAt: "asc" },
-    }),
-    db.crash.findMany({
-      where: { airframeId: airframe.id, teamId: actor.teamId },
-      orderBy: { at: "asc" },
-    }),
-    db.inspection.findMany({
-      where: { airframeId: airframe.id, teamId: actor.teamId },
-      orderBy: { at: "asc" },
-    }),
-    db.baseline.findMany({
-      where: { airframeId: airframe.id, teamId: actor.teamId },
-      include: { logs: true },
-      orderBy: { createdAt: "asc" },
-    }),
+    db.installation.findMany({ where, include: { part: true }, orderBy: { fromAt: "asc" } }),
+    db.crash.findMany({ where, orderBy: { at: "asc" } }),
+    db.inspection.findMany({ where, orderBy: { at: "asc" } }),
+    db.baseline.findMany({ where, include: { logs: true }, orderBy: { createdAt: "asc" } }),
     db.flightLog.findMany({
-      where: { airframeId: airframe.id, teamId: actor.teamId },
+      where,
       orderBy: { flownAt: "asc" },
       include: { assessments: { orderBy: { createdAt: "desc" } } },
     }),
@@ -41,7 +53,7 @@ export async function airframeHistory(actor: Actor, name: string) {
       name: airframe.name,
       frameDesign: airframe.frameDesign,
       serial: airframe.serial,
-      state: airframe.status,
+      state: airframe.state,
       retired: airframe.retired,
       notes: airframe.notes,
     },
@@ -54,18 +66,8 @@ export async function airframeHistory(actor: Actor, name: string) {
       removedAt: i.toAt,
       reason: i.reason,
     })),
-    crashes: crashes.map((c) => ({
-      at: c.at,
-      severity: c.severity,
-      positions: JSON.parse(c.positions) as string[],
-      note: c.note,
-    })),
-    inspections: inspections.map((i) => ({
-      at: i.at,
-      signedOffBy: i.signedOffName,
-      findings: i.findings,
-      returnedToService: i.returnedToService,
-    })),
+    crashes: crashes.map(crashRecord),
+    inspections: inspections.map(inspectionRecord),
     baselines: baselines.map((b) => ({
       setAt: b.createdAt,
       setBy: b.setByName,
@@ -84,8 +86,8 @@ export async function airframeHistory(actor: Actor, name: string) {
         sampleRateHz: l.sampleRateHz,
         durationS: l.durationS,
         score: a?.score ?? null,
-        verdict: a?.status ?? null,
-        findings: a ? (JSON.parse(a.findings) as Finding[]).map((f) => f.text) : [],
+        verdict: a ? decodeStatus(a.status) : null,
+        findings: a ? decodeFindings(a.findings).map((f) => f.text) : [],
       };
     }),
   };

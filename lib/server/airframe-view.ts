@@ -1,14 +1,11 @@
 import "server-only";
-import type { LogAnalysis } from "@/lib/analysis/types";
-import type { Baseline } from "@/lib/health/baseline";
-import type { Finding, NotCompared } from "@/lib/health/compare";
-import type { Status } from "@/lib/health/thresholds";
 import { AXES, type Axis } from "@/lib/logs/columns";
 import type { Actor } from "@/lib/roles";
 import { airframeOfTeam } from "./airframes";
 import { activeBaseline } from "./baselines";
 import { db } from "./db";
 import { installedParts } from "./parts";
+import { decodeAnalysis, decodeAssessment, decodeCrashPositions } from "./stored";
 import { spectrumOverlay, type SpectrumPoint } from "./spectrum-view";
 
 export interface TimelineItem {
@@ -16,6 +13,9 @@ export interface TimelineItem {
   kind: "crash" | "swap" | "log" | "baseline" | "inspection";
   text: string;
 }
+
+/** Everything the airframe screen shows, read once. */
+export type AirframeView = Awaited<ReturnType<typeof airframeView>>;
 
 /** Everything the airframe screen shows, read once. */
 export async function airframeView(actor: Actor, airframeId: string) {
@@ -41,14 +41,7 @@ export async function airframeView(actor: Actor, airframeId: string) {
     const a = baseline ? l.assessments.find((x) => x.baselineId === baseline.id) : undefined;
     return {
       log: l,
-      assessment: a
-        ? {
-            score: a.score,
-            status: a.status as Status,
-            findings: JSON.parse(a.findings) as Finding[],
-            notCompared: JSON.parse(a.notCompared) as NotCompared[],
-          }
-        : null,
+      assessment: a ? decodeAssessment(a) : null,
     };
   });
   const latest = assessed.find((x) => x.assessment) ?? null;
@@ -56,18 +49,21 @@ export async function airframeView(actor: Actor, airframeId: string) {
   const analysisRow = latestAnalysed
     ? await db.analysis.findUnique({ where: { logId: latestAnalysed.id } })
     : null;
-  const analysis = analysisRow ? (JSON.parse(analysisRow.json) as LogAnalysis) : null;
+  const analysis = analysisRow ? decodeAnalysis(analysisRow.json) : null;
 
   const spectra = {} as Record<Axis, SpectrumPoint[]>;
   for (const axis of AXES)
     spectra[axis] = analysis ? spectrumOverlay(analysis, axis, baseline?.baseline) : [];
 
   const timeline: TimelineItem[] = [
-    ...crashes.map((c) => ({
-      at: c.at,
-      kind: "crash" as const,
-      text: `${c.severity} crash${(JSON.parse(c.positions) as string[]).length ? ` — ${(JSON.parse(c.positions) as string[]).join(", ")}` : ""}${c.note ? `: ${c.note}` : ""}`,
-    })),
+    ...crashes.map((c) => {
+      const positions = decodeCrashPositions(c.positions);
+      return {
+        at: c.at,
+        kind: "crash" as const,
+        text: `${c.severity} crash${positions.length ? ` — ${positions.join(", ")}` : ""}${c.note ? `: ${c.note}` : ""}`,
+      };
+    }),
     ...swaps
       .filter((s) => s.reason !== "initial build")
       .map((s) => ({

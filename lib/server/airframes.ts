@@ -1,9 +1,9 @@
 import "server-only";
 import { ConflictError, NotFoundError } from "@/lib/errors";
 import type { Actor } from "@/lib/roles";
-import type { AirframeInput } from "@/lib/validations/airframe";
+import type { AirframeInput, AirframeState } from "@/lib/validations/airframe";
 import { audit } from "./audit";
-import { db } from "./db";
+import { db, type Tx } from "./db";
 import { assertRole } from "./authorize";
 
 /** An airframe of the actor's team, or NotFoundError (also for another team's id). */
@@ -19,6 +19,15 @@ export async function airframeByName(actor: Actor, name: string) {
   return airframe;
 }
 
+/** The team's airframes in service (not retired), by name: for pickers on the upload and events screens. */
+export async function airframesInService(actor: Actor): Promise<{ id: string; name: string }[]> {
+  return db.airframe.findMany({
+    where: { teamId: actor.teamId, retired: false },
+    orderBy: { name: "asc" },
+    select: { id: true, name: true },
+  });
+}
+
 export async function createAirframe(actor: Actor, input: AirframeInput) {
   assertRole(actor, "tech");
   const existing = await db.airframe.findFirst({
@@ -32,26 +41,38 @@ export async function createAirframe(actor: Actor, input: AirframeInput) {
   });
 }
 
-export async function setAirframeStatus(
+/** Ground an airframe or return it to service (its `state`, not its health `status`). */
+export async function setAirframeState(
   actor: Actor,
   airframeId: string,
-  status: "ready" | "grounded",
+  state: AirframeState,
   note: string,
 ) {
   assertRole(actor, "tech");
   const a = await airframeOfTeam(actor, airframeId);
   return db.$transaction(async (tx) => {
-    const updated = await tx.airframe.update({ where: { id: a.id }, data: { status } });
-    await audit(
-      tx,
-      actor,
-      status === "grounded" ? "ground" : "return to service",
-      "airframe",
-      a.id,
-      note,
-    );
-    return updated;
+    await settleAirframe(tx, actor, a.id, {
+      state,
+      action: state === "grounded" ? "ground" : "return to service",
+      detail: note,
+    });
+    return { ...a, state };
   });
+}
+
+/**
+ * The end of every write about one airframe, inside its transaction: the airframe's new state when
+ * the write changes it (a crash grounds, an inspection returns to service) and the audit entry.
+ */
+export async function settleAirframe(
+  tx: Tx,
+  actor: Actor,
+  airframeId: string,
+  change: { state: AirframeState | null; action: string; detail: string },
+): Promise<void> {
+  if (change.state)
+    await tx.airframe.update({ where: { id: airframeId }, data: { state: change.state } });
+  await audit(tx, actor, change.action, "airframe", airframeId, change.detail);
 }
 
 export async function setAirframeRetired(actor: Actor, airframeId: string, retired: boolean) {

@@ -1,4 +1,5 @@
 import "server-only";
+import { config } from "@/lib/config";
 import type { NextAuthOptions } from "next-auth";
 import Credentials from "next-auth/providers/credentials";
 import { signInSchema } from "@/lib/validations/auth";
@@ -37,7 +38,7 @@ function clientAddress(headers: Record<string, unknown> | undefined): string {
 export const authOptions: NextAuthOptions = {
   session: { strategy: "jwt", maxAge: SESSION_ABSOLUTE_MS / 1000 },
   pages: { signIn: "/signin" },
-  secret: process.env.NEXTAUTH_SECRET,
+  secret: config().authSecret,
   providers: [
     Credentials({
       name: "email and password",

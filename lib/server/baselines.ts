@@ -1,5 +1,4 @@
 import "server-only";
-import type { LogAnalysis } from "@/lib/analysis/types";
 import { InputError } from "@/lib/errors";
 import { buildBaseline, type Baseline } from "@/lib/health/baseline";
 import type { Actor } from "@/lib/roles";
@@ -8,6 +7,7 @@ import { storeAssessment } from "./assessments";
 import { audit } from "./audit";
 import { db } from "./db";
 import { assertRole } from "./authorize";
+import { decodeAnalysis, decodeBaseline } from "./stored";
 
 /**
  * Sets an airframe's baseline from chosen known-good logs: the old one is kept but made
@@ -28,13 +28,16 @@ export async function setBaseline(
   });
   if (logs.length !== new Set(logIds).size)
     throw new InputError("Every baseline log must be a log of this airframe.", "logIds");
-  const notReady = logs.filter((l) => l.status !== "analysed" || !l.analysis);
+  const ready = logs.flatMap((l) =>
+    l.status === "analysed" && l.analysis ? [{ ...l, analysis: l.analysis }] : [],
+  );
+  const notReady = logs.filter((l) => !ready.some((r) => r.id === l.id));
   if (notReady.length > 0)
     throw new InputError(
       `Wait for the analysis of ${notReady.map((l) => l.fileName).join(", ")} to finish.`,
       "logIds",
     );
-  const analyses = logs.map((l) => JSON.parse(l.analysis?.json ?? "{}") as LogAnalysis);
+  const analyses = ready.map((l) => decodeAnalysis(l.analysis.json));
   const baseline = buildBaseline(analyses);
   const newest = logs.reduce((t, l) => (l.flownAt > t ? l.flownAt : t), new Date(0));
   return db.$transaction(async (tx) => {
@@ -59,13 +62,7 @@ export async function setBaseline(
     });
     for (const l of later) {
       if (l.analysis)
-        await storeAssessment(
-          tx,
-          l.id,
-          JSON.parse(l.analysis.json) as LogAnalysis,
-          created.id,
-          baseline,
-        );
+        await storeAssessment(tx, l.id, decodeAnalysis(l.analysis.json), created.id, baseline);
     }
     await audit(
       tx,
@@ -79,9 +76,7 @@ export async function setBaseline(
   });
 }
 
-export async function activeBaseline(
-  airframeId: string,
-): Promise<{
+export async function activeBaseline(airframeId: string): Promise<{
   id: string;
   baseline: Baseline;
   createdAt: Date;
@@ -97,7 +92,7 @@ export async function activeBaseline(
   return b
     ? {
         id: b.id,
-        baseline: JSON.parse(b.json) as Baseline,
+        baseline: decodeBaseline(b.json),
         createdAt: b.createdAt,
         reason: b.reason,
         setByName: b.setByName,

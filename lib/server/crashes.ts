@@ -3,10 +3,15 @@ import { NotFoundError } from "@/lib/errors";
 import type { Actor } from "@/lib/roles";
 import type { CrashInput } from "@/lib/validations/crash";
 import type { InspectionInput } from "@/lib/validations/inspection";
-import { airframeOfTeam } from "./airframes";
-import { audit } from "./audit";
+import { airframeOfTeam, settleAirframe } from "./airframes";
 import { db } from "./db";
 import { assertRole } from "./authorize";
+import { encodeCrashPositions } from "./stored";
+
+/** The team, airframe and time every record of something that happened to an airframe carries. */
+function onAirframe(actor: Actor, airframeId: string, at: Date) {
+  return { teamId: actor.teamId, airframeId, at };
+}
 
 /** Logs a crash (pilots may). A hard crash or a destroyed airframe grounds it, as does the box. */
 export async function logCrash(actor: Actor, input: CrashInput) {
@@ -20,26 +25,19 @@ export async function logCrash(actor: Actor, input: CrashInput) {
   return db.$transaction(async (tx) => {
     const crash = await tx.crash.create({
       data: {
-        teamId: actor.teamId,
-        airframeId: airframe.id,
-        at: input.at,
+        ...onAirframe(actor, airframe.id, input.at),
         heatId: input.heatId,
         severity: input.severity,
-        positions: JSON.stringify(input.positions),
+        positions: encodeCrashPositions(input.positions),
         note: input.note,
         loggedById: actor.userId ?? "token",
       },
     });
-    if (ground)
-      await tx.airframe.update({ where: { id: airframe.id }, data: { status: "grounded" } });
-    await audit(
-      tx,
-      actor,
-      "log crash",
-      "airframe",
-      airframe.id,
-      `${input.severity}${input.positions.length ? ` (${input.positions.join(", ")})` : ""}${ground ? ", grounded" : ""}`,
-    );
+    await settleAirframe(tx, actor, airframe.id, {
+      state: ground ? "grounded" : null,
+      action: "log crash",
+      detail: `${input.severity}${input.positions.length ? ` (${input.positions.join(", ")})` : ""}${ground ? ", grounded" : ""}`,
+    });
     return crash;
   });
 }
@@ -51,9 +49,7 @@ export async function recordInspection(actor: Actor, input: InspectionInput) {
   return db.$transaction(async (tx) => {
     const inspection = await tx.inspection.create({
       data: {
-        teamId: actor.teamId,
-        airframeId: airframe.id,
-        at: input.at,
+        ...onAirframe(actor, airframe.id, input.at),
         findings: input.findings,
         checklist: JSON.stringify(input.checklist),
         signedOffById: actor.userId ?? "token",
@@ -61,16 +57,11 @@ export async function recordInspection(actor: Actor, input: InspectionInput) {
         returnedToService: input.returnToService,
       },
     });
-    if (input.returnToService)
-      await tx.airframe.update({ where: { id: airframe.id }, data: { status: "ready" } });
-    await audit(
-      tx,
-      actor,
-      "inspect",
-      "airframe",
-      airframe.id,
-      input.returnToService ? "returned to service" : "still grounded",
-    );
+    await settleAirframe(tx, actor, airframe.id, {
+      state: input.returnToService ? "ready" : null,
+      action: "inspect",
+      detail: input.returnToService ? "returned to service" : "still grounded",
+    });
     return inspection;
   });
 }

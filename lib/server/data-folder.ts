@@ -1,6 +1,7 @@
 import "server-only";
 import { chmod, mkdir, readdir, rm, stat } from "node:fs/promises";
 import { isAbsolute, join, relative, resolve, sep } from "node:path";
+import { config } from "@/lib/config";
 
 /**
  * The data folder: the SQLite file, the uploaded originals (`uploads/<team>/<sha256>.csv`) and the
@@ -15,7 +16,7 @@ export const PRIVATE_FILE_MODE = 0o600;
 export const INCOMING_PREFIX = "incoming-";
 
 export function dataDir(): string {
-  return resolve(process.env.HEATCHECK_DATA_DIR ?? join(process.cwd(), "data"));
+  return config().dataDir;
 }
 
 export function uploadsDir(): string {
@@ -24,8 +25,7 @@ export function uploadsDir(): string {
 
 /** The SQLite file named by DATABASE_URL (`file:<path>`), or undefined for another kind of URL. */
 export function databaseFile(): string | undefined {
-  const url = process.env.DATABASE_URL ?? "file:./data/heatcheck.db";
-  const m = /^file:(.+)$/.exec(url);
+  const m = /^file:(.+)$/.exec(config().databaseUrl);
   return m?.[1] ? resolve(m[1].replace(/\?.*$/, "")) : undefined;
 }
 

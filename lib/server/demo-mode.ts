@@ -1,4 +1,5 @@
 import "server-only";
+import { config } from "@/lib/config";
 import { DEMO_ACCOUNTS } from "@/lib/demo/accounts";
 import { db } from "./db";
 
@@ -10,7 +11,7 @@ const DEMO_EMAILS = DEMO_ACCOUNTS.map((a) => a.email);
 
 /** Demo mode is on unless HEATCHECK_DEMO=0 (a shared server): it seeds and shows demo sign-ins. */
 export function demoMode(): boolean {
-  return process.env.HEATCHECK_DEMO !== "0";
+  return config().demo;
 }
 
 export async function demoAccountsExist(): Promise<boolean> {

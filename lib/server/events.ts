@@ -18,6 +18,16 @@ export async function listEvents(actor: Actor) {
   });
 }
 
+/** The latest heats an airframe is entered in (newest first, with their event): the crash form's choices. */
+export async function heatsOfAirframe(actor: Actor, airframeId: string, take = 10) {
+  return db.heat.findMany({
+    where: { teamId: actor.teamId, entries: { some: { airframeId } } },
+    include: { event: true },
+    orderBy: { startsAt: "desc" },
+    take,
+  });
+}
+
 export async function createEvent(
   actor: Actor,
   input: { name: string; venue: string; startsAt: Date },

@@ -1,7 +1,5 @@
 import "server-only";
 import { DEFAULT_ANALYSIS, throttleBandLabel } from "@/lib/analysis/settings";
-import type { LogAnalysis } from "@/lib/analysis/types";
-import type { Baseline } from "@/lib/health/baseline";
 import {
   buildFleetReference,
   judgeAgainstFleet,
@@ -12,9 +10,9 @@ import {
   type FleetNote,
   type FleetReference,
 } from "@/lib/health/fleet-reference";
-import type { Status } from "@/lib/health/thresholds";
 import type { Actor } from "@/lib/roles";
 import { db } from "./db";
+import { decodeAnalysis, decodeBaseline, decodeStatus } from "./stored";
 
 /** One row per airframe for the Fleet table: health, score trend, last flight, flights since baseline. */
 export async function fleetTable(actor: Actor) {
@@ -43,7 +41,7 @@ export async function fleetTable(actor: Actor) {
       ? a.logs.flatMap((l) =>
           l.assessments
             .filter((x) => x.baselineId === baseline.id)
-            .map((x) => ({ score: x.score, status: x.status as Status })),
+            .map((x) => ({ score: x.score, status: decodeStatus(x.status) })),
         )
       : [];
     const since = baseline ? Math.max(...baseline.logs.map((l) => l.log.flownAt.getTime())) : null;
@@ -52,7 +50,7 @@ export async function fleetTable(actor: Actor) {
       id: a.id,
       name: a.name,
       frameDesign: a.frameDesign,
-      state: a.status,
+      state: a.state,
       retired: a.retired,
       status: latest?.status ?? null,
       score: latest?.score ?? null,
@@ -107,7 +105,7 @@ export async function fleetPlacement(actor: Actor): Promise<FleetPlacement> {
   const sources = await placementSources(actor);
   const fingerprint = sources
     .map((r) =>
-      [r.id, r.name, r.frameDesign, r.status, r.baselines[0]?.id ?? "", r.logs[0]?.id ?? ""].join(
+      [r.id, r.name, r.frameDesign, r.state, r.baselines[0]?.id ?? "", r.logs[0]?.id ?? ""].join(
         "|",
       ),
     )
@@ -134,7 +132,7 @@ function placementSources(actor: Actor) {
       id: true,
       name: true,
       frameDesign: true,
-      status: true,
+      state: true,
       baselines: {
         where: { active: true },
         orderBy: { createdAt: "desc" },
@@ -169,13 +167,11 @@ async function computePlacement(
     const bJson = baselineJson.get(a.baselines[0]?.id ?? "");
     const logId = a.logs[0]?.id ?? null;
     const aJson = logId ? analysisJson.get(logId) : undefined;
-    const fromBaseline = bJson
-      ? memberFromBaseline(a.id, a.name, JSON.parse(bJson) as Baseline)
-      : null;
-    if (fromBaseline && a.status !== "grounded")
+    const fromBaseline = bJson ? memberFromBaseline(a.id, a.name, decodeBaseline(bJson)) : null;
+    if (fromBaseline && a.state !== "grounded")
       members.set(a.frameDesign, [...(members.get(a.frameDesign) ?? []), fromBaseline]);
     const fromLog =
-      !fromBaseline && aJson ? memberFromLog(a.id, a.name, JSON.parse(aJson) as LogAnalysis) : null;
+      !fromBaseline && aJson ? memberFromLog(a.id, a.name, decodeAnalysis(aJson)) : null;
     return { airframe: a, fromBaseline, fromLog, logId };
   });
   const placements = subjects.map(({ airframe, fromBaseline, fromLog, logId }) => {

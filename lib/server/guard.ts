@@ -1,6 +1,7 @@
 import "server-only";
 import { getServerSession } from "next-auth";
 import { cookies, headers } from "next/headers";
+import { config } from "@/lib/config";
 import { ForbiddenError, UnauthenticatedError } from "@/lib/errors";
 import { isRole, type Actor, type Role } from "@/lib/roles";
 import { authOptions } from "./auth-options";
@@ -21,7 +22,7 @@ export { assertRole, hashToken };
  * The active-team cookie follows the session cookie's rules: behind HTTPS (NEXTAUTH_URL starts
  * with https://) it is Secure and named with the __Secure- prefix, as next-auth names its own.
  */
-export const SECURE_COOKIES = (process.env.NEXTAUTH_URL ?? "").startsWith("https://");
+export const SECURE_COOKIES = (config().configuredPublicUrl ?? "").startsWith("https://");
 export const TEAM_COOKIE = SECURE_COOKIES ? "__Secure-hc-team" : "hc-team";
 export const TEAM_COOKIE_OPTIONS = {
   httpOnly: true,
@@ -72,7 +73,7 @@ export function assertSameOrigin(h: Headers): void {
   } catch {
     throw refuse();
   }
-  const configured = process.env.NEXTAUTH_URL;
+  const configured = config().configuredPublicUrl;
   if (configured) {
     try {
       if (new URL(configured).origin === originUrl.origin) return;

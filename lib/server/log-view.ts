@@ -1,15 +1,13 @@
 import "server-only";
 import type { LogAnalysis } from "@/lib/analysis/types";
-import type { Baseline } from "@/lib/health/baseline";
-import type { Finding, NotCompared } from "@/lib/health/compare";
 import { judgeAgainstFleet, memberFromLog, type FleetNote } from "@/lib/health/fleet-reference";
 import { motorPositionName } from "@/lib/health/motor-positions";
-import type { Status } from "@/lib/health/thresholds";
 import { NotFoundError } from "@/lib/errors";
 import { DEFAULT_ANALYSIS } from "@/lib/analysis/settings";
 import { AXES, type Axis } from "@/lib/logs/columns";
 import { toDb } from "@/lib/signal/bands";
 import type { Actor } from "@/lib/roles";
+import { decodeAnalysis, decodeAssessment, decodeBaseline } from "./stored";
 import { db } from "./db";
 import { BAND_WORDS, fleetPlacement } from "./fleet";
 import { spectrumOverlay, type SpectrumPoint } from "./spectrum-view";
@@ -37,9 +35,9 @@ export async function logView(actor: Actor, logId: string) {
     },
   });
   if (!log) throw new NotFoundError("That log");
-  const analysis = log.analysis ? (JSON.parse(log.analysis.json) as LogAnalysis) : null;
+  const analysis = log.analysis ? decodeAnalysis(log.analysis.json) : null;
   const judged = log.assessments.find((a) => a.baseline.active) ?? log.assessments[0] ?? null;
-  const baseline = judged ? (JSON.parse(judged.baseline.json) as Baseline) : undefined;
+  const baseline = judged ? decodeBaseline(judged.baseline.json) : undefined;
   const spectra = {} as Record<Axis, SpectrumPoint[]>;
   for (const axis of AXES)
     spectra[axis] = analysis ? spectrumOverlay(analysis, axis, baseline) : [];
@@ -74,10 +72,7 @@ export async function logView(actor: Actor, logId: string) {
     analysis,
     assessment: judged
       ? {
-          score: judged.score,
-          status: judged.status as Status,
-          findings: JSON.parse(judged.findings) as Finding[],
-          notCompared: JSON.parse(judged.notCompared) as NotCompared[],
+          ...decodeAssessment(judged),
           baseline: {
             active: judged.baseline.active,
             createdAt: judged.baseline.createdAt,

@@ -2,7 +2,7 @@ import "server-only";
 import { ConflictError, InputError, NotFoundError } from "@/lib/errors";
 import type { Actor } from "@/lib/roles";
 import { STANDARD_POSITIONS } from "@/lib/validations/airframe";
-import type { PartInput, SwapInput } from "@/lib/validations/part";
+import { PART_KINDS, type PartInput, type SwapInput } from "@/lib/validations/part";
 import { airframeOfTeam } from "./airframes";
 import { audit } from "./audit";
 import { db } from "./db";
@@ -219,6 +219,33 @@ export async function stockSummary(actor: Actor, lowAt = 2) {
     groups.set(key, g);
   }
   return [...groups.values()].map((g) => ({ ...g, low: g.stock < lowAt && g.installed > 0 }));
+}
+
+/** Parts in stock (ready to fit), by kind and model: the swap form's choices. */
+export async function partsInStock(actor: Actor) {
+  return db.part.findMany({
+    where: { teamId: actor.teamId, status: "stock" },
+    orderBy: [{ kind: "asc" }, { model: "asc" }],
+  });
+}
+
+/**
+ * The Parts screen's list: every part of one kind (or all kinds; an unknown kind is ignored), those
+ * fitted to an airframe only when asked, each with the airframe it is on now.
+ */
+export async function listParts(actor: Actor, filter: { kind?: string; withFitted: boolean }) {
+  const kind = PART_KINDS.find((k) => k === filter.kind);
+  return db.part.findMany({
+    where: {
+      teamId: actor.teamId,
+      ...(kind ? { kind } : {}),
+      ...(filter.withFitted ? {} : { status: { not: "installed" } }),
+    },
+    orderBy: [{ kind: "asc" }, { model: "asc" }, { label: "asc" }],
+    include: {
+      installations: { where: { toAt: null }, include: { airframe: { select: { name: true } } } },
+    },
+  });
 }
 
 /** Every installation of a part, newest first: its history across airframes. */

@@ -1,12 +1,11 @@
 import "server-only";
-import type { Finding } from "@/lib/health/compare";
 import { rankQueue, type AirframeFacts, type QueueEntry } from "@/lib/health/queue-rank";
 import { repairsSince, staleBaselineReason } from "@/lib/health/repair-effects";
-import type { Status } from "@/lib/health/thresholds";
 import type { Actor } from "@/lib/roles";
 import { db } from "./db";
 import { fleetPlacement } from "./fleet";
 import { lifeOfParts } from "./parts";
+import { decodeCrashPositions, decodeFindings, decodeStatus } from "./stored";
 
 /** The next heat of the team that has not started more than an hour ago, with its airframes. */
 export async function nextHeat(actor: Actor) {
@@ -140,12 +139,12 @@ async function rankTeam(actor: Actor): Promise<Ranked> {
     facts.push({
       id: a.id,
       name: a.name,
-      state: a.status,
+      state: a.state,
       latest: latestAssessment
         ? {
-            status: latestAssessment.status as Status,
+            status: decodeStatus(latestAssessment.status),
             score: latestAssessment.score,
-            findings: JSON.parse(latestAssessment.findings) as Finding[],
+            findings: decodeFindings(latestAssessment.findings),
             flownAt: latestAssessment.log.flownAt,
           }
         : null,
@@ -157,7 +156,7 @@ async function rankTeam(actor: Actor): Promise<Ranked> {
         .map((c) => ({
           at: c.at,
           severity: c.severity,
-          positions: JSON.parse(c.positions) as string[],
+          positions: decodeCrashPositions(c.positions),
         })),
       partsPastLife,
       noLogSince: lastWork && lastWork.at > lastLog ? lastWork : null,

@@ -1,14 +1,14 @@
 import "server-only";
 import { readdir, rm } from "node:fs/promises";
 import { join } from "node:path";
+import { config } from "@/lib/config";
 import { resumePendingAnalyses } from "./analysis-jobs";
 import { prepareDataFolder, storedPathOf, uploadsDir } from "./data-folder";
 import { db } from "./db";
 
 /** Seconds the server may take to stop after SIGTERM or SIGINT before it exits regardless. */
 export function shutdownGraceSeconds(): number {
-  const v = Number(process.env.HEATCHECK_SHUTDOWN_S);
-  return Number.isFinite(v) && v > 0 ? v : 10;
+  return config().shutdownGraceS;
 }
 
 /**

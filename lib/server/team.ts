@@ -9,6 +9,12 @@ import { db, type Tx } from "./db";
 import { endUserSessions } from "./sessions";
 import { assertRole, hashToken } from "./authorize";
 
+/** The acting team's name, for the navigation bar. */
+export async function teamName(actor: Actor): Promise<string> {
+  const team = await db.team.findUnique({ where: { id: actor.teamId }, select: { name: true } });
+  return team?.name ?? "";
+}
+
 export async function listMembers(actor: Actor) {
   assertRole(actor, "owner");
   return db.membership.findMany({

@@ -1,9 +1,9 @@
 import "server-only";
-import type { LogAnalysis } from "@/lib/analysis/types";
 import type { Baseline } from "@/lib/health/baseline";
 import { modeKey, trendPoint } from "@/lib/health/trends";
 import { DEFAULT_THRESHOLDS } from "@/lib/health/thresholds";
 import { db } from "./db";
+import { decodeAnalysis } from "./stored";
 
 /** The trend charts read at most this many of the newest logs (each analysis is parsed). */
 const MAX_LOGS = 30;
@@ -47,10 +47,10 @@ export async function trendView(
   ]);
   const modes = baseline.baseline.modes.map(modeKey);
   const rows: TrendRow[] = logs
-    .filter((l) => l.analysis)
+    .flatMap((l) => (l.analysis ? [{ ...l, analysis: l.analysis }] : []))
     .reverse()
     .map((l) => {
-      const p = trendPoint(JSON.parse(l.analysis?.json ?? "{}") as LogAnalysis, baseline.baseline);
+      const p = trendPoint(decodeAnalysis(l.analysis.json), baseline.baseline);
       const row: TrendRow = { logId: l.id, fileName: l.fileName, t: l.flownAt.getTime() };
       for (const m of modes) row[`mode:${m}`] = p.modeShiftPct[m] ?? null;
       for (const [axis, v] of Object.entries(p.bandRiseDb)) row[`band:${axis}`] = v;

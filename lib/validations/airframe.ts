@@ -2,7 +2,9 @@ import { z } from "zod";
 import { motorPositionName } from "@/lib/health/motor-positions";
 import { nameField, optionalText } from "./common";
 
-export const AIRFRAME_STATUSES = ["ready", "grounded"] as const;
+/** An airframe's state: may it fly (`ready`) or not (`grounded`). Its health is an assessment's status. */
+export const AIRFRAME_STATES = ["ready", "grounded"] as const;
+export type AirframeState = (typeof AIRFRAME_STATES)[number];
 
 export const airframeSchema = z.object({
   name: nameField("airframe name", 40),
@@ -12,9 +14,9 @@ export const airframeSchema = z.object({
 });
 export type AirframeInput = z.infer<typeof airframeSchema>;
 
-export const airframeStatusSchema = z.object({
+export const airframeStateSchema = z.object({
   airframeId: z.string().min(1),
-  status: z.enum(AIRFRAME_STATUSES, { message: "Choose ready or grounded." }),
+  state: z.enum(AIRFRAME_STATES, { message: "Choose ready or grounded." }),
   note: optionalText(500),
 });
 

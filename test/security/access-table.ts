@@ -72,7 +72,7 @@ export const ROUTES: Record<string, AccessRule> = {
 /** Server actions by exported name. */
 export const ACTIONS: Record<string, AccessRule> = {
   createAirframeAction: { minimum: "tech", token: false, what: "add an airframe" },
-  setAirframeStatusAction: { minimum: "tech", token: false, what: "ground / return to service" },
+  setAirframeStateAction: { minimum: "tech", token: false, what: "ground / return to service" },
   retireAirframeAction: { minimum: "tech", token: false, what: "retire an airframe" },
   logCrashAction: { minimum: "pilot", token: false, what: "log a crash" },
   swapPartAction: { minimum: "tech", token: false, what: "swap a part" },

@@ -188,10 +188,7 @@ describe("access matrix: every page, route handler and server action of the buil
       ["removeMemberAction", { membershipId: pilotMembership.id }],
       ["changeRoleAction", { membershipId: pilotMembership.id, role: "viewer" }],
       ["revokeTokenAction", { tokenId: token.id }],
-      [
-        "setAirframeStatusAction",
-        { airframeId: f.alpha.airframeId, status: "grounded", note: "x" },
-      ],
+      ["setAirframeStateAction", { airframeId: f.alpha.airframeId, state: "grounded", note: "x" }],
       ["setPartStatusAction", { partId: f.alpha.partId, status: "scrapped" }],
       ["switchTeamAction", { teamId: f.alpha.teamId }],
     ];
@@ -208,7 +205,7 @@ describe("access matrix: every page, route handler and server action of the buil
       (await f.services.db.apiToken.findUnique({ where: { id: token.id } }))?.revokedAt,
     ).toBeNull();
     expect(
-      (await f.services.db.airframe.findUnique({ where: { id: f.alpha.airframeId } }))?.status,
+      (await f.services.db.airframe.findUnique({ where: { id: f.alpha.airframeId } }))?.state,
     ).toBe("ready");
     expect((await f.services.db.part.findUnique({ where: { id: f.alpha.partId } }))?.status).toBe(
       "stock",

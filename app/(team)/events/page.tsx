@@ -1,7 +1,7 @@
 import { ActionForm } from "@/app/_components/action-form";
 import { TextField } from "@/app/_components/fields";
 import { roleAtLeast } from "@/lib/roles";
-import { db } from "@/lib/server/db";
+import { airframesInService } from "@/lib/server/airframes";
 import { listEvents } from "@/lib/server/events";
 import { requireMember } from "@/lib/server/guard";
 import { createEventAction, createHeatAction, setHeatEntriesAction } from "../actions";
@@ -11,11 +11,7 @@ export const dynamic = "force-dynamic";
 
 export default async function EventsPage() {
   const actor = await requireMember("viewer");
-  const events = await listEvents(actor);
-  const airframes = await db.airframe.findMany({
-    where: { teamId: actor.teamId, retired: false },
-    orderBy: { name: "asc" },
-  });
+  const [events, airframes] = await Promise.all([listEvents(actor), airframesInService(actor)]);
   const canTech = roleAtLeast(actor.role, "tech");
   return (
     <>

@@ -2,10 +2,9 @@ import Link from "next/link";
 import { ActionForm } from "@/app/_components/action-form";
 import { SelectField, TextField } from "@/app/_components/fields";
 import { roleAtLeast } from "@/lib/roles";
-import { db } from "@/lib/server/db";
 import { requireMember } from "@/lib/server/guard";
 import { orNotFound } from "@/lib/server/pages";
-import { partHistory, stockSummary } from "@/lib/server/parts";
+import { listParts, partHistory, stockSummary } from "@/lib/server/parts";
 import { PART_KINDS } from "@/lib/validations/part";
 import { addPartsAction, setPartStatusAction } from "../actions";
 import { DAY } from "@/app/_components/dates";
@@ -30,17 +29,7 @@ export default async function PartsPage({
   const summary = await stockSummary(actor);
   const history = partId ? await orNotFound(partHistory(actor, partId)) : null;
   const canTech = roleAtLeast(actor.role, "tech");
-  const parts = await db.part.findMany({
-    where: {
-      teamId: actor.teamId,
-      ...(kind && (PART_KINDS as readonly string[]).includes(kind) ? { kind } : {}),
-      ...(withFitted ? {} : { status: { not: "installed" } }),
-    },
-    orderBy: [{ kind: "asc" }, { model: "asc" }, { label: "asc" }],
-    include: {
-      installations: { where: { toAt: null }, include: { airframe: { select: { name: true } } } },
-    },
-  });
+  const parts = await listParts(actor, { kind, withFitted });
   return (
     <>
       <h1>Parts</h1>

@@ -1,6 +1,6 @@
 import { Caution } from "@/app/_components/caution";
 import { roleAtLeast } from "@/lib/roles";
-import { db } from "@/lib/server/db";
+import { airframesInService } from "@/lib/server/airframes";
 import { requireMember } from "@/lib/server/guard";
 import { listProfiles } from "@/lib/server/team";
 import { Uploader } from "./uploader";
@@ -9,12 +9,10 @@ export const dynamic = "force-dynamic";
 
 export default async function UploadPage() {
   const actor = await requireMember("viewer");
-  const airframes = await db.airframe.findMany({
-    where: { teamId: actor.teamId, retired: false },
-    orderBy: { name: "asc" },
-    select: { id: true, name: true },
-  });
-  const profiles = await listProfiles(actor);
+  const [airframes, profiles] = await Promise.all([
+    airframesInService(actor),
+    listProfiles(actor),
+  ]);
   return (
     <>
       <h1>Upload logs</h1>

@@ -1,18 +1,18 @@
 import Link from "next/link";
 import { FindingsCard } from "@/app/_components/findings-table";
 import { SpectraGrid, ThrottleMapCard } from "@/app/_components/spectra-grid";
-import { StatusBadge } from "@/app/_components/status-badge";
 import { AXES, type Axis } from "@/lib/logs/columns";
 import { roleAtLeast } from "@/lib/roles";
 import { airframeView } from "@/lib/server/airframe-view";
-import { db } from "@/lib/server/db";
+import { heatsOfAirframe } from "@/lib/server/events";
 import { requireMember } from "@/lib/server/guard";
 import { orNotFound } from "@/lib/server/pages";
+import { partsInStock } from "@/lib/server/parts";
 import { trendView } from "@/lib/server/trend-view";
 import { LogsTable } from "./_components/logs-table";
 import { TrendCharts } from "./_components/trend-charts";
 import { WorkForms } from "./_components/work-forms";
-import { WHEN } from "@/app/_components/dates";
+import { AirframeHeader, HistoryCard, InstalledPartsCard } from "./cards";
 
 export const dynamic = "force-dynamic";
 
@@ -28,71 +28,21 @@ export default async function AirframePage({
   const wanted = (await searchParams).axis;
   const heatAxis: Axis = AXES.find((a) => a === wanted) ?? "pitch";
   const view = await orNotFound(airframeView(actor, id));
-  const trends = await trendView(view.airframe.id, actor.teamId, view.baseline);
   const { airframe, latest, analysis, baseline } = view;
   const canPilot = roleAtLeast(actor.role, "pilot");
   const canTech = roleAtLeast(actor.role, "tech");
-  const stock = canTech
-    ? await db.part.findMany({
-        where: { teamId: actor.teamId, status: "stock" },
-        orderBy: [{ kind: "asc" }, { model: "asc" }],
-      })
-    : [];
-  const heats = canPilot
-    ? await db.heat.findMany({
-        where: { teamId: actor.teamId, entries: { some: { airframeId: airframe.id } } },
-        include: { event: true },
-        orderBy: { startsAt: "desc" },
-        take: 10,
-      })
-    : [];
-  const analysed = view.logs.filter((l) => l.log.status === "analysed");
-  const status = latest?.assessment?.status ?? "ok";
+  const [trends, stock, heats] = await Promise.all([
+    trendView(airframe.id, actor.teamId, baseline),
+    canTech ? partsInStock(actor) : [],
+    canPilot ? heatsOfAirframe(actor, airframe.id) : [],
+  ]);
 
   return (
     <>
       <p className="small">
         <Link href="/fleet">← Fleet</Link>
       </p>
-      <div className="row" style={{ alignItems: "center" }}>
-        <div>
-          <h1 style={{ marginBottom: 0 }}>{airframe.name}</h1>
-          <div className="muted">
-            {airframe.frameDesign}
-            {airframe.serial ? ` · serial ${airframe.serial}` : ""} ·{" "}
-            {airframe.status === "grounded" ? "GROUNDED" : "ready"}
-            {airframe.retired ? " · retired" : ""}
-          </div>
-          <div className="small">
-            History:{" "}
-            <a href={`/api/v1/airframes/${encodeURIComponent(airframe.name)}/history?format=csv`}>
-              CSV
-            </a>{" "}
-            ·{" "}
-            <a href={`/api/v1/airframes/${encodeURIComponent(airframe.name)}/history?format=json`}>
-              JSON
-            </a>
-          </div>
-        </div>
-        <div style={{ textAlign: "right" }}>
-          {latest?.assessment ? (
-            <StatusBadge status={status} />
-          ) : (
-            <span className="muted">no score yet</span>
-          )}
-          <div style={{ fontSize: "2rem", fontWeight: 800 }} data-testid="airframe-score">
-            {latest?.assessment?.score === null || !latest?.assessment
-              ? "–"
-              : Math.round(latest.assessment.score)}
-            <span className="muted small"> / 100</span>
-          </div>
-          <div className="muted small">
-            {baseline
-              ? `baseline of ${WHEN.format(baseline.createdAt)} · ${view.flightsSinceBaseline ?? 0} flight(s) since`
-              : "no baseline yet"}
-          </div>
-        </div>
-      </div>
+      <AirframeHeader view={view} />
 
       <FindingsCard
         title="Findings of the latest log"
@@ -139,63 +89,17 @@ export default async function AirframePage({
       <ThrottleMapCard analysis={analysis} axis={heatAxis} href={`/airframes/${airframe.id}`} />
 
       <WorkForms
-        airframe={{ id: airframe.id, status: airframe.status }}
+        airframe={{ id: airframe.id, state: airframe.state }}
         actorName={actor.name}
         canPilot={canPilot}
         canTech={canTech}
         stock={stock}
         heats={heats}
-        analysed={analysed}
+        analysed={view.logs.filter((l) => l.log.status === "analysed")}
       />
       <div className="grid two" style={{ marginTop: "1rem" }}>
-        <section className="card">
-          <h2 style={{ marginTop: 0 }}>Installed parts</h2>
-          <table data-testid="installed-parts">
-            <thead>
-              <tr>
-                <th>position</th>
-                <th>part</th>
-                <th>since</th>
-                <th className="num">life used</th>
-              </tr>
-            </thead>
-            <tbody>
-              {view.parts.map((p) => (
-                <tr key={p.id}>
-                  <td>{p.position}</td>
-                  <td>
-                    <Link href={`/parts?part=${p.partId}`}>
-                      {p.part.kind} · {p.part.model}
-                    </Link>{" "}
-                    <span className="muted small">{p.part.label}</span>
-                  </td>
-                  <td className="small">{WHEN.format(p.fromAt)}</td>
-                  <td className="num">
-                    {p.life.flights} flt · {p.life.minutes.toFixed(0)} min
-                    {p.life.fraction !== null ? (
-                      <strong style={{ color: p.life.fraction >= 1 ? "var(--ground)" : undefined }}>
-                        {" "}
-                        · {Math.round(p.life.fraction * 100)} %
-                      </strong>
-                    ) : null}
-                  </td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
-        </section>
-        <section className="card">
-          <h2 style={{ marginTop: 0 }}>History</h2>
-          <ul className="timeline" data-testid="timeline">
-            {view.timeline.slice(0, 40).map((t, i) => (
-              <li key={i}>
-                <span className="small muted">{WHEN.format(t.at)}</span>
-                <span className={`kind ${t.kind}`}>{t.kind}</span>
-                <span>{t.text}</span>
-              </li>
-            ))}
-          </ul>
-        </section>
+        <InstalledPartsCard parts={view.parts} />
+        <HistoryCard timeline={view.timeline} />
       </div>
 
       <LogsTable airframeId={airframe.id} logs={view.logs} canTech={canTech} />

@@ -1,25 +1,15 @@
 import Link from "next/link";
-import { notFound } from "next/navigation";
 import { WHEN } from "@/app/_components/dates";
 import { FindingsCard } from "@/app/_components/findings-table";
 import { SpectraGrid, ThrottleMapCard } from "@/app/_components/spectra-grid";
 import { StatusBadge } from "@/app/_components/status-badge";
-import { NotFoundError } from "@/lib/errors";
 import { AXES, type Axis } from "@/lib/logs/columns";
 import { requireMember } from "@/lib/server/guard";
 import { logView } from "@/lib/server/log-view";
+import { orNotFound } from "@/lib/server/pages";
 import { MotorOrdersChart } from "./_components/motor-orders-chart";
 
 export const dynamic = "force-dynamic";
-
-async function viewOrNotFound(...args: Parameters<typeof logView>) {
-  try {
-    return await logView(...args);
-  } catch (e) {
-    if (e instanceof NotFoundError) notFound();
-    throw e;
-  }
-}
 
 export default async function LogPage({
   params,
@@ -32,7 +22,7 @@ export default async function LogPage({
   const { id } = await params;
   const wanted = (await searchParams).axis;
   const axis: Axis = AXES.find((a) => a === wanted) ?? "pitch";
-  const view = await viewOrNotFound(actor, id);
+  const view = await orNotFound(logView(actor, id));
   const { log, airframe, analysis, assessment } = view;
   const metadata = Object.entries(analysis?.metadata ?? {});
   return (

@@ -7,14 +7,14 @@ import { INSPECTION_CHECKLIST } from "@/lib/validations/inspection";
 import {
   logCrashAction,
   recordInspectionAction,
-  setAirframeStatusAction,
+  setAirframeStateAction,
   setBaselineAction,
   swapPartAction,
 } from "../../../actions";
 import { WHEN } from "@/app/_components/dates";
 
 export interface WorkFormsProps {
-  airframe: { id: string; status: string };
+  airframe: { id: string; state: string };
   actorName: string;
   canPilot: boolean;
   canTech: boolean;
@@ -164,18 +164,18 @@ export function WorkForms({
         {canTech ? (
           <details className="action">
             <summary>
-              {airframe.status === "grounded" ? "Return to service" : "Ground this airframe"}
+              {airframe.state === "grounded" ? "Return to service" : "Ground this airframe"}
             </summary>
             <ActionForm
-              action={setAirframeStatusAction}
-              submitLabel={airframe.status === "grounded" ? "Return to service" : "Ground it"}
-              danger={airframe.status !== "grounded"}
+              action={setAirframeStateAction}
+              submitLabel={airframe.state === "grounded" ? "Return to service" : "Ground it"}
+              danger={airframe.state !== "grounded"}
             >
               <input type="hidden" name="airframeId" value={airframe.id} />
               <input
                 type="hidden"
-                name="status"
-                value={airframe.status === "grounded" ? "ready" : "grounded"}
+                name="state"
+                value={airframe.state === "grounded" ? "ready" : "grounded"}
               />
               <TextField label="Note" name="note" />
             </ActionForm>
