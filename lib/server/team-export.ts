@@ -1,6 +1,7 @@
 import "server-only";
 import type { Writable } from "node:stream";
 import { TarWriter } from "@/lib/archive/tar";
+import { DECISION_AID_NOTE } from "@/lib/health/safety";
 import { storedFileOf } from "./data-folder";
 import { db } from "./db";
 
@@ -153,8 +154,7 @@ csv/<kind>.csv    the same records as tables (RFC 4180, UTF-8, CRLF); list-value
 analyses/<id>.json  the analysis result of log <id> (spectra, peaks, throttle bands, motor orders).
 originals/<id>.csv  the uploaded log <id>, byte for byte (logs[].fileName is its name when uploaded).
 
-Password hashes and API token hashes are not exported. The score in an assessment is a decision
-aid, not an airworthiness certificate.
+Password hashes and API token hashes are not exported. ${DECISION_AID_NOTE}
 `;
 
 /** Writes the archive (uncompressed tar) to `out`; returns what it holds. */
