@@ -29,6 +29,27 @@ export function inspectionRecord(i: {
   };
 }
 
+/** A log with its latest verdict (the newest assessment first in `assessments`). */
+export function logRecord(l: {
+  id: string;
+  fileName: string;
+  flownAt: Date;
+  status: string;
+  error: string | null;
+  assessments: { score: number | null; status: string }[];
+}) {
+  const a = l.assessments[0];
+  return {
+    id: l.id,
+    fileName: l.fileName,
+    flownAt: l.flownAt,
+    status: l.status,
+    error: l.error,
+    score: a?.score ?? null,
+    verdict: a ? decodeStatus(a.status) : null,
+  };
+}
+
 /**
  * An airframe's whole history for export: every crash, part fitted or removed, inspection,
  * baseline and log with its score and findings — what a technician takes to a spreadsheet when
@@ -78,15 +99,9 @@ export async function airframeHistory(actor: Actor, name: string) {
     logs: logs.map((l) => {
       const a = l.assessments[0];
       return {
-        id: l.id,
-        fileName: l.fileName,
-        flownAt: l.flownAt,
-        status: l.status,
-        error: l.error,
+        ...logRecord(l),
         sampleRateHz: l.sampleRateHz,
         durationS: l.durationS,
-        score: a?.score ?? null,
-        verdict: a ? decodeStatus(a.status) : null,
         findings: a ? decodeFindings(a.findings).map((f) => f.text) : [],
       };
     }),
