@@ -1,6 +1,7 @@
 import "server-only";
 import type { Actor } from "@/lib/roles";
 import { airframeByName } from "./airframes";
+import { csvField } from "./csv";
 import { db } from "./db";
 import { decodeCrashPositions, decodeFindings, decodeStatus } from "./stored";
 
@@ -109,12 +110,6 @@ export async function airframeHistory(actor: Actor, name: string) {
 }
 
 type History = Awaited<ReturnType<typeof airframeHistory>>;
-
-/** RFC 4180 field: quoted when it holds a comma, quote or line break; quotes doubled. */
-function csvField(v: unknown): string {
-  const s = v === null || v === undefined ? "" : v instanceof Date ? v.toISOString() : String(v);
-  return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
-}
 
 /** The history as one CSV table, one row per event in time order. */
 export function historyCsv(h: History): string {

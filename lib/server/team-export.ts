@@ -2,6 +2,7 @@ import "server-only";
 import type { Writable } from "node:stream";
 import { TarWriter } from "@/lib/archive/tar";
 import { DECISION_AID_NOTE } from "@/lib/health/safety";
+import { csvField } from "./csv";
 import { storedFileOf } from "./data-folder";
 import { db } from "./db";
 
@@ -25,19 +26,8 @@ type Row = Record<string, unknown>;
 /** RFC 4180: fields with a comma, quote or line break are quoted, quotes doubled. */
 export function toCsv(rows: readonly Row[], columns?: readonly string[]): string {
   const cols = columns ?? [...new Set(rows.flatMap((r) => Object.keys(r)))];
-  const cell = (v: unknown): string => {
-    const s =
-      v === null || v === undefined
-        ? ""
-        : v instanceof Date
-          ? v.toISOString()
-          : typeof v === "object"
-            ? JSON.stringify(v)
-            : String(v);
-    return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
-  };
   return (
-    [cols.join(","), ...rows.map((r) => cols.map((c) => cell(r[c])).join(","))].join("\r\n") +
+    [cols.join(","), ...rows.map((r) => cols.map((c) => csvField(r[c])).join(","))].join("\r\n") +
     "\r\n"
   );
 }
@@ -176,7 +166,7 @@ export async function writeTeamExport(
   for (const [kind, rows] of Object.entries(data)) {
     if (!Array.isArray(rows)) continue;
     records += rows.length;
-    await tar.bytes(`csv/${kind}.csv`, toCsv(rows as Row[]));
+    await tar.bytes(`csv/${kind}.csv`, toCsv(rows));
   }
   for (const l of data.logs) {
     const a = await db.analysis.findUnique({ where: { logId: l.id }, select: { json: true } });
