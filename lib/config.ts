@@ -19,49 +19,26 @@ function text() {
   return z.preprocess(unset, z.string().optional());
 }
 
-function positiveNumber(what: string) {
+/** A number that parses and meets `rule`; `what` is the sentence's "must be …". */
+type CoercedNumber = ReturnType<typeof z.coerce.number>;
+function numberWhere(what: string, rule: (n: CoercedNumber) => CoercedNumber) {
   return z.preprocess(
     unset,
-    z.coerce
-      .number({ message: what })
-      .positive({ message: what })
-      .finite({ message: what })
-      .optional(),
+    rule(z.coerce.number({ message: what }).finite({ message: what })).optional(),
   );
 }
-
-function positiveInteger(what: string) {
-  return z.preprocess(
-    unset,
-    z.coerce
-      .number({ message: what })
-      .int({ message: what })
-      .positive({ message: what })
-      .optional(),
-  );
-}
-
-function nonNegative() {
+const positiveNumber = (what: string) => numberWhere(what, (n) => n.positive({ message: what }));
+const positiveInteger = (what: string) =>
+  numberWhere(what, (n) => n.int({ message: what }).positive({ message: what }));
+const nonNegative = () => {
   const what = "a number, 0 or more";
-  return z.preprocess(
-    unset,
-    z.coerce
-      .number({ message: what })
-      .min(0, { message: what })
-      .finite({ message: what })
-      .optional(),
-  );
-}
+  return numberWhere(what, (n) => n.min(0, { message: what }));
+};
+const PORT_RULE = "a TCP port, 1–65535";
 
 const environmentSchema = z.object({
-  PORT: z.preprocess(
-    unset,
-    z.coerce
-      .number({ message: "a TCP port, 1–65535" })
-      .int({ message: "a TCP port, 1–65535" })
-      .min(1, { message: "a TCP port, 1–65535" })
-      .max(65535, { message: "a TCP port, 1–65535" })
-      .optional(),
+  PORT: numberWhere(PORT_RULE, (n) =>
+    n.int({ message: PORT_RULE }).min(1, { message: PORT_RULE }).max(65535, { message: PORT_RULE }),
   ),
   HEATCHECK_HOST: text(),
   HEATCHECK_DATA_DIR: text(),

@@ -23,6 +23,15 @@ export abstract class DomainError extends Error {
   abstract readonly httpStatus: number;
 }
 
+/** The class body every domain error shares: its code, its one HTTP status and its name. */
+function domainError<C extends ErrorCode>(code: C, httpStatus: number, name: string) {
+  return class extends DomainError {
+    readonly code: C = code;
+    readonly httpStatus = httpStatus;
+    override readonly name = name;
+  };
+}
+
 /** Where in a log file a problem was found. Lines and columns are 1-based, as an editor shows them. */
 export interface LogLocation {
   line?: number;
@@ -31,13 +40,10 @@ export interface LogLocation {
 }
 
 /** A log file that cannot be read: the message names the line, column and what was expected. */
-export class LogFormatError extends DomainError {
-  readonly code = "bad-log" as const;
-  readonly httpStatus = 422;
+export class LogFormatError extends domainError("bad-log", 422, "LogFormatError") {
   readonly location: LogLocation;
   constructor(message: string, location: LogLocation = {}) {
     super(formatLocated(message, location));
-    this.name = "LogFormatError";
     this.location = location;
   }
 }
@@ -54,76 +60,53 @@ function formatLocated(message: string, at: LogLocation): string {
 }
 
 /** Input that fails validation (a form field, an option value, a column map). */
-export class InputError extends DomainError {
-  readonly code = "bad-input" as const;
-  readonly httpStatus = 400;
+export class InputError extends domainError("bad-input", 400, "InputError") {
   readonly field?: string;
   constructor(message: string, field?: string) {
     super(message);
-    this.name = "InputError";
     this.field = field;
   }
 }
 
 /** A command line that does not parse (CLI exit code 2). */
-export class UsageError extends DomainError {
-  readonly code = "bad-usage" as const;
-  readonly httpStatus = 400;
-  constructor(message: string) {
-    super(message);
-    this.name = "UsageError";
-  }
-}
+export class UsageError extends domainError("bad-usage", 400, "UsageError") {}
 
-export class NotFoundError extends DomainError {
-  readonly code = "not-found" as const;
-  readonly httpStatus = 404;
+/** An id or name that is unknown, or another team's (which is never told apart from unknown). */
+export class NotFoundError extends domainError("not-found", 404, "NotFoundError") {
   constructor(what: string) {
     super(`${what} was not found.`);
-    this.name = "NotFoundError";
   }
 }
 
-export class UnauthenticatedError extends DomainError {
-  readonly code = "unauthenticated" as const;
-  readonly httpStatus = 401;
+/** No session, an ended one, or no valid API token. */
+export class UnauthenticatedError extends domainError(
+  "unauthenticated",
+  401,
+  "UnauthenticatedError",
+) {
   constructor(message = "Sign in first.") {
     super(message);
-    this.name = "UnauthenticatedError";
   }
 }
 
-export class ForbiddenError extends DomainError {
-  readonly code = "forbidden" as const;
-  readonly httpStatus = 403;
+/** Signed in, but the role (or the team) does not allow it. */
+export class ForbiddenError extends domainError("forbidden", 403, "ForbiddenError") {
   constructor(message = "Your role in this team does not allow that.") {
     super(message);
-    this.name = "ForbiddenError";
   }
 }
 
 /** Something is larger than its limit (an upload, a file's lines). */
-export class LimitExceededError extends DomainError {
-  readonly code = "limit-exceeded" as const;
-  readonly httpStatus = 413;
-  override readonly name = "LimitExceededError";
-}
+export class LimitExceededError extends domainError("limit-exceeded", 413, "LimitExceededError") {}
 
 /** The change clashes with what is already recorded (a name in use, a part already fitted). */
-export class ConflictError extends DomainError {
-  readonly code = "conflict" as const;
-  readonly httpStatus = 409;
-  override readonly name = "ConflictError";
-}
+export class ConflictError extends domainError("conflict", 409, "ConflictError") {}
 
 /**
  * An environment variable that does not parse (lib/config.ts). The server cannot run as asked, so
  * it is the operator's to fix: `npm start` stops with this sentence before it starts anything.
  */
-export class ConfigError extends DomainError {
-  readonly code = "bad-config" as const;
-  readonly httpStatus = 500;
-  override readonly name = "ConfigError";
+export class ConfigError extends domainError("bad-config", 500, "ConfigError") {
   constructor(variable: string, value: string | undefined, expected: string) {
     super(`${variable} must be ${expected}; it is set to "${value ?? ""}".`);
   }
@@ -134,10 +117,7 @@ export class ConfigError extends DomainError {
  * a version newer than this code, a status that is not one. It is the server's fault, not the
  * user's: a 500 with a sentence that says what to redo.
  */
-export class StoredRecordError extends DomainError {
-  readonly code = "bad-record" as const;
-  readonly httpStatus = 500;
-  override readonly name = "StoredRecordError";
+export class StoredRecordError extends domainError("bad-record", 500, "StoredRecordError") {
   constructor(what: string) {
     super(
       `${what} could not be read (written by another version of heatcheck, or damaged); re-run the log's analysis or set the baseline again.`,
@@ -146,26 +126,28 @@ export class StoredRecordError extends DomainError {
 }
 
 /** Too many uploads or queued analyses at once; `retryAfterSeconds` goes out as Retry-After. */
-export class TooManyRequestsError extends DomainError {
-  readonly code = "too-many-requests" as const;
-  readonly httpStatus = 429;
+export class TooManyRequestsError extends domainError(
+  "too-many-requests",
+  429,
+  "TooManyRequestsError",
+) {
   readonly retryAfterSeconds: number;
   constructor(message: string, retryAfterSeconds: number) {
     super(message);
-    this.name = "TooManyRequestsError";
     this.retryAfterSeconds = retryAfterSeconds;
   }
 }
 
 /** The server's disk is full: nothing was kept (507 Insufficient Storage, RFC 4918). */
-export class InsufficientStorageError extends DomainError {
-  readonly code = "insufficient-storage" as const;
-  readonly httpStatus = 507;
+export class InsufficientStorageError extends domainError(
+  "insufficient-storage",
+  507,
+  "InsufficientStorageError",
+) {
   constructor(
     message = "The server's disk is full, so nothing was kept; free some space on the server and try again.",
   ) {
     super(message);
-    this.name = "InsufficientStorageError";
   }
 }
 

@@ -282,16 +282,25 @@ async function seedTeam(teamId: string): Promise<void> {
     note: "clipped the gate post on lap 2",
     ground: true,
   });
-  const spareArm = await db.part.findFirst({ where: { teamId: team.id, label: "spare-arm-1" } });
-  if (spareArm)
-    await swapPart(tech, {
-      airframeId: hv02,
-      position: "arm front-left",
-      newPartId: spareArm.id,
-      reason: "arm cracked at the motor mount in the gate-post crash",
-      removedStatus: "damaged",
-      at: new Date(autumn + 7 * HOUR),
-    });
+  /** A spare arm from stock fitted in place of a crash-damaged one. */
+  const fitSpareArm = async (label: string, position: string, reason: string, at: Date) => {
+    const spare = await db.part.findFirst({ where: { teamId: team.id, label } });
+    if (spare)
+      await swapPart(tech, {
+        airframeId: hv02,
+        position,
+        newPartId: spare.id,
+        reason,
+        removedStatus: "damaged",
+        at,
+      });
+  };
+  await fitSpareArm(
+    "spare-arm-1",
+    "arm front-left",
+    "arm cracked at the motor mount in the gate-post crash",
+    new Date(autumn + 7 * HOUR),
+  );
   await recordInspection(tech, {
     airframeId: hv02,
     at: new Date(autumn + 8 * HOUR),
@@ -412,18 +421,12 @@ async function seedTeam(teamId: string): Promise<void> {
     note: "clipped the flag pole, arm split at the motor mount",
     ground: false,
   });
-  const secondSpareArm = await db.part.findFirst({
-    where: { teamId: team.id, label: "spare-arm-2" },
-  });
-  if (secondSpareArm)
-    await swapPart(tech, {
-      airframeId: hv02,
-      position: "arm rear-right",
-      newPartId: secondSpareArm.id,
-      reason: "arm split in the heat 1 flag strike",
-      removedStatus: "damaged",
-      at: new Date(now - 2.3 * HOUR),
-    });
+  await fitSpareArm(
+    "spare-arm-2",
+    "arm rear-right",
+    "arm split in the heat 1 flag strike",
+    new Date(now - 2.3 * HOUR),
+  );
   await recordInspection(tech, {
     airframeId: hv02,
     at: new Date(now - 2.1 * HOUR),

@@ -1,6 +1,7 @@
 import "server-only";
 import type { Actor } from "@/lib/roles";
 import { airframeByName } from "./airframes";
+import { csvField } from "./csv";
 import { db } from "./db";
 import { decodeCrashPositions, decodeFindings, decodeStatus } from "./stored";
 
@@ -26,6 +27,27 @@ export function inspectionRecord(i: {
     signedOffBy: i.signedOffName,
     findings: i.findings,
     returnedToService: i.returnedToService,
+  };
+}
+
+/** A log with its latest verdict (the newest assessment first in `assessments`). */
+export function logRecord(l: {
+  id: string;
+  fileName: string;
+  flownAt: Date;
+  status: string;
+  error: string | null;
+  assessments: { score: number | null; status: string }[];
+}) {
+  const a = l.assessments[0];
+  return {
+    id: l.id,
+    fileName: l.fileName,
+    flownAt: l.flownAt,
+    status: l.status,
+    error: l.error,
+    score: a?.score ?? null,
+    verdict: a ? decodeStatus(a.status) : null,
   };
 }
 
@@ -78,15 +100,9 @@ export async function airframeHistory(actor: Actor, name: string) {
     logs: logs.map((l) => {
       const a = l.assessments[0];
       return {
-        id: l.id,
-        fileName: l.fileName,
-        flownAt: l.flownAt,
-        status: l.status,
-        error: l.error,
+        ...logRecord(l),
         sampleRateHz: l.sampleRateHz,
         durationS: l.durationS,
-        score: a?.score ?? null,
-        verdict: a ? decodeStatus(a.status) : null,
         findings: a ? decodeFindings(a.findings).map((f) => f.text) : [],
       };
     }),
@@ -94,12 +110,6 @@ export async function airframeHistory(actor: Actor, name: string) {
 }
 
 type History = Awaited<ReturnType<typeof airframeHistory>>;
-
-/** RFC 4180 field: quoted when it holds a comma, quote or line break; quotes doubled. */
-function csvField(v: unknown): string {
-  const s = v === null || v === undefined ? "" : v instanceof Date ? v.toISOString() : String(v);
-  return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
-}
 
 /** The history as one CSV table, one row per event in time order. */
 export function historyCsv(h: History): string {

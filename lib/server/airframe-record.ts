@@ -1,11 +1,10 @@
 import "server-only";
 import type { Actor } from "@/lib/roles";
-import { crashRecord, inspectionRecord } from "./airframe-history";
+import { crashRecord, inspectionRecord, logRecord } from "./airframe-history";
 import { airframeByName } from "./airframes";
 import { activeBaseline } from "./baselines";
 import { db } from "./db";
 import { installedParts } from "./parts";
-import { decodeStatus } from "./stored";
 
 /**
  * GET /api/v1/airframes/:name — the airframe's record: state, parts by position with life used,
@@ -51,17 +50,6 @@ export async function airframeRecord(actor: Actor, name: string) {
           logs: baseline.logIds.length,
         }
       : null,
-    logs: logs.map((l) => {
-      const a = l.assessments[0];
-      return {
-        id: l.id,
-        fileName: l.fileName,
-        flownAt: l.flownAt,
-        status: l.status,
-        error: l.error,
-        score: a?.score ?? null,
-        verdict: a ? decodeStatus(a.status) : null,
-      };
-    }),
+    logs: logs.map(logRecord),
   };
 }

@@ -1,7 +1,7 @@
 import "server-only";
 import { InputError } from "@/lib/errors";
 import { buildBaseline, type Baseline } from "@/lib/health/baseline";
-import type { Actor } from "@/lib/roles";
+import { actorRef, type Actor } from "@/lib/roles";
 import { airframeOfTeam } from "./airframes";
 import { storeAssessment } from "./assessments";
 import { audit } from "./audit";
@@ -49,7 +49,7 @@ export async function setBaseline(
       data: {
         teamId: actor.teamId,
         airframeId: airframe.id,
-        setById: actor.userId ?? "token",
+        setById: actorRef(actor),
         setByName: actor.name,
         reason,
         json: JSON.stringify(baseline),

@@ -1,6 +1,6 @@
 import "server-only";
 import { NotFoundError } from "@/lib/errors";
-import type { Actor } from "@/lib/roles";
+import { actorRef, type Actor } from "@/lib/roles";
 import type { CrashInput } from "@/lib/validations/crash";
 import type { InspectionInput } from "@/lib/validations/inspection";
 import { airframeOfTeam, settleAirframe } from "./airframes";
@@ -30,7 +30,7 @@ export async function logCrash(actor: Actor, input: CrashInput) {
         severity: input.severity,
         positions: encodeCrashPositions(input.positions),
         note: input.note,
-        loggedById: actor.userId ?? "token",
+        loggedById: actorRef(actor),
       },
     });
     await settleAirframe(tx, actor, airframe.id, {
@@ -52,7 +52,7 @@ export async function recordInspection(actor: Actor, input: InspectionInput) {
         ...onAirframe(actor, airframe.id, input.at),
         findings: input.findings,
         checklist: JSON.stringify(input.checklist),
-        signedOffById: actor.userId ?? "token",
+        signedOffById: actorRef(actor),
         signedOffName: actor.name,
         returnedToService: input.returnToService,
       },

@@ -117,11 +117,13 @@ export async function fleetPlacement(actor: Actor): Promise<FleetPlacement> {
   return value;
 }
 
-const placementCache = ((
-  globalThis as unknown as {
-    heatcheckFleetCache?: Map<string, { fingerprint: string; value: FleetPlacement }>;
-  }
-).heatcheckFleetCache ??= new Map());
+const globalForFleet = globalThis as unknown as {
+  heatcheckFleetCache?: Map<string, { fingerprint: string; value: FleetPlacement }>;
+};
+const placementCache = (globalForFleet.heatcheckFleetCache ??= new Map<
+  string,
+  { fingerprint: string; value: FleetPlacement }
+>());
 
 /** What the placement rests on, read cheaply: airframes, their state and design, active baseline, latest analysed log. */
 function placementSources(actor: Actor) {

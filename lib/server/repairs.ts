@@ -1,6 +1,6 @@
 import "server-only";
 import { repairsSince, type Repair } from "@/lib/health/repair-effects";
-import { db, type Tx } from "./db";
+import type { db, Tx } from "./db";
 
 /**
  * When a baseline's airframe was last in the state the baseline describes: the flight time of its

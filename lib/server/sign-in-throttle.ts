@@ -33,7 +33,7 @@ const MAX_KEYS = 50_000;
 const globalForThrottle = globalThis as unknown as {
   heatcheckSignInThrottle?: Map<string, Counter>;
 };
-const counters: Map<string, Counter> = (globalForThrottle.heatcheckSignInThrottle ??= new Map());
+const counters = (globalForThrottle.heatcheckSignInThrottle ??= new Map<string, Counter>());
 
 /** Milliseconds the key must still wait before its next attempt (0: it may try now). */
 export function waitMs(key: string, rule: ThrottleRule, now = Date.now()): number {

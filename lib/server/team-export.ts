@@ -1,6 +1,8 @@
 import "server-only";
 import type { Writable } from "node:stream";
 import { TarWriter } from "@/lib/archive/tar";
+import { DECISION_AID_NOTE } from "@/lib/health/safety";
+import { csvField } from "./csv";
 import { storedFileOf } from "./data-folder";
 import { db } from "./db";
 
@@ -24,19 +26,8 @@ type Row = Record<string, unknown>;
 /** RFC 4180: fields with a comma, quote or line break are quoted, quotes doubled. */
 export function toCsv(rows: readonly Row[], columns?: readonly string[]): string {
   const cols = columns ?? [...new Set(rows.flatMap((r) => Object.keys(r)))];
-  const cell = (v: unknown): string => {
-    const s =
-      v === null || v === undefined
-        ? ""
-        : v instanceof Date
-          ? v.toISOString()
-          : typeof v === "object"
-            ? JSON.stringify(v)
-            : String(v);
-    return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
-  };
   return (
-    [cols.join(","), ...rows.map((r) => cols.map((c) => cell(r[c])).join(","))].join("\r\n") +
+    [cols.join(","), ...rows.map((r) => cols.map((c) => csvField(r[c])).join(","))].join("\r\n") +
     "\r\n"
   );
 }
@@ -153,8 +144,7 @@ csv/<kind>.csv    the same records as tables (RFC 4180, UTF-8, CRLF); list-value
 analyses/<id>.json  the analysis result of log <id> (spectra, peaks, throttle bands, motor orders).
 originals/<id>.csv  the uploaded log <id>, byte for byte (logs[].fileName is its name when uploaded).
 
-Password hashes and API token hashes are not exported. The score in an assessment is a decision
-aid, not an airworthiness certificate.
+Password hashes and API token hashes are not exported. ${DECISION_AID_NOTE}
 `;
 
 /** Writes the archive (uncompressed tar) to `out`; returns what it holds. */
@@ -176,7 +166,7 @@ export async function writeTeamExport(
   for (const [kind, rows] of Object.entries(data)) {
     if (!Array.isArray(rows)) continue;
     records += rows.length;
-    await tar.bytes(`csv/${kind}.csv`, toCsv(rows as Row[]));
+    await tar.bytes(`csv/${kind}.csv`, toCsv(rows));
   }
   for (const l of data.logs) {
     const a = await db.analysis.findUnique({ where: { logId: l.id }, select: { json: true } });

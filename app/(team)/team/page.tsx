@@ -1,7 +1,7 @@
 import { ActionForm } from "@/app/_components/action-form";
 import { InvitationAnswer } from "@/app/_components/invitation-answer";
 import { SelectField, TextField } from "@/app/_components/fields";
-import { ROLES, roleAtLeast } from "@/lib/roles";
+import { ROLE_DESCRIPTIONS, ROLES, roleAtLeast } from "@/lib/roles";
 import { requireMember } from "@/lib/server/guard";
 import { myInvitations, myTeams } from "@/lib/server/account";
 import {
@@ -51,8 +51,7 @@ export default async function TeamPage() {
           <section className="card">
             <h2 style={{ marginTop: 0 }}>Members and roles</h2>
             <p className="muted small">
-              viewer: sees everything · pilot: also uploads logs and logs crashes · tech: also works
-              on airframes, parts, events and baselines · owner: also manages the team.
+              {ROLES.map((r) => `${r}: ${ROLE_DESCRIPTIONS[r]}`).join(" · ")}.
             </p>
             <table data-testid="members">
               <tbody>

@@ -2,10 +2,12 @@ import NextAuth from "next-auth";
 import { NextResponse } from "next/server";
 import { authOptions } from "@/lib/server/auth-options";
 
-const handler: (
+type Handler = (
   request: Request,
   context: { params: Promise<{ nextauth: string[] }> },
-) => Promise<Response> = NextAuth(authOptions);
+) => Promise<Response>;
+// next-auth v4 types its App Router handler loosely (any); this is the shape it is called with.
+const handler = NextAuth(authOptions) as Handler;
 
 /** next-auth's rule for a return address: http(s), or a path on this server. */
 function isHttpUrl(value: string): boolean {
