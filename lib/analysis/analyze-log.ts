@@ -19,10 +19,14 @@ export async function analyzeLog(
 }
 
 /** A byte source over an in-memory buffer, in chunks as a file stream would deliver them. */
-export async function* bytesSource(
-  bytes: Uint8Array,
-  chunkSize = 1 << 16,
-): AsyncGenerator<Uint8Array> {
-  for (let i = 0; i < bytes.length; i += chunkSize)
-    yield bytes.subarray(i, Math.min(bytes.length, i + chunkSize));
+export function bytesSource(bytes: Uint8Array, chunkSize = 1 << 16): AsyncIterable<Uint8Array> {
+  return {
+    async *[Symbol.asyncIterator]() {
+      for (let i = 0; i < bytes.length; i += chunkSize) {
+        // One turn of the event loop per chunk, as a stream would give.
+        await Promise.resolve();
+        yield bytes.subarray(i, Math.min(bytes.length, i + chunkSize));
+      }
+    },
+  };
 }

@@ -86,7 +86,8 @@ export async function analyzeLogInTwoThreads(
   const stats: PipelineStats = { bufferSets: 0, maxInFlight: 0, batches: 0 };
   let inFlight = 0;
   let wake: (() => void) | null = null;
-  let failure: Error | null = null;
+  // A holder, not a `let`: the worker's callbacks set it, and the checker cannot see that.
+  const failed: { error: Error | null } = { error: null };
   let resolveDone: (a: LogAnalysis) => void = () => undefined;
   let rejectDone: (e: Error) => void = () => undefined;
   const done = new Promise<LogAnalysis>((resolve, reject) => {
@@ -122,13 +123,13 @@ export async function analyzeLogInTwoThreads(
         } else if (m.type === "done") {
           resolveDone(m.analysis);
         } else {
-          failure = m.badInput ? new LogFormatError(m.message) : new Error(m.message);
-          rejectDone(failure);
+          failed.error = m.badInput ? new LogFormatError(m.message) : new Error(m.message);
+          rejectDone(failed.error);
           wake?.();
         }
       })
       .on("error", (e) => {
-        failure = e;
+        failed.error = e;
         rejectDone(e);
         wake?.();
       });
@@ -201,16 +202,16 @@ export async function analyzeLogInTwoThreads(
   async function* paced(): AsyncGenerator<Uint8Array> {
     for await (const chunk of source) {
       for (let at = 0; at < chunk.length; at += PIECE_BYTES) {
-        while (inFlight > MAX_IN_FLIGHT && !failure)
+        while (inFlight > MAX_IN_FLIGHT && !failed.error)
           await new Promise<void>((resolve) => (wake = resolve));
-        if (failure) return;
+        if (failed.error) return;
         yield chunk.subarray(at, Math.min(chunk.length, at + PIECE_BYTES));
       }
     }
   }
   try {
     const summary = await readLog(paced(), sink, options);
-    if (failure) throw failure;
+    if (failed.error) throw failed.error;
     send();
     post({ type: "finish", summary });
     return { analysis: await done, summary, stats };

@@ -253,7 +253,7 @@ export class DemoLogGenerator {
       }
       let bearingNoise = 0;
       if (this.bearing) {
-        const rpm = (out.rpm[this.bearingMotor] as Float64Array | undefined)?.[i] ?? 0;
+        const rpm = out.rpm[this.bearingMotor]?.[i] ?? 0;
         bearingNoise =
           this.bearing.step(gaussian(rand)) *
           this.bearingLevel *
@@ -263,7 +263,7 @@ export class DemoLogGenerator {
       }
       const airflow = model.excitation * (0.15 + thr) * densityScale;
       out.timeS[i] = t;
-      (out.throttle as Float64Array)[i] = thr;
+      out.throttle[i] = thr;
       for (let a = 0; a < 3; a++) {
         const axis = AXES[a] as Axis;
         const input = (vib[a] ?? 0) + airflow * gaussian(rand) + bearingNoise * (a === 2 ? 0.6 : 1);

@@ -220,7 +220,7 @@ function untrustedMotors(
     out.add(m.motor);
     const counts = m.maskedBlocks;
     const why = counts
-      ? (Object.entries(counts) as [string, number][])
+      ? Object.entries(counts)
           .filter(([, n]) => n > 0)
           .sort((a, b) => b[1] - a[1])
           .map(([r]) => MASK_WORDS[r] ?? r)

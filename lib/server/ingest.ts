@@ -172,7 +172,7 @@ async function findExisting(actor: Actor, hash: string): Promise<IngestResult | 
 // parallel uploads of the same bytes all end on the one record.
 const locks = ((
   globalThis as unknown as { heatcheckIngestLocks?: Map<string, Promise<unknown>> }
-).heatcheckIngestLocks ??= new Map());
+).heatcheckIngestLocks ??= new Map<string, Promise<unknown>>());
 
 async function oneAtATime<T>(key: string, run: () => Promise<T>): Promise<T> {
   const before = locks.get(key) ?? Promise.resolve();

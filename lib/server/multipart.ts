@@ -43,7 +43,7 @@ export function readMultipartFile<T>(
       if (settled) return;
       settled = true;
       if (ok) resolve(value as T);
-      else reject(value);
+      else reject(value instanceof Error ? value : new Error(String(value)));
     };
     let bb: busboy.Busboy;
     try {

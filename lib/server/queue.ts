@@ -29,11 +29,14 @@ const QUEUE_MAX_AGE_MS = 10_000;
 // the event loop, so recomputing it per request starved uploads under 50 readers. A team's ranking
 // is computed once per change of the database (SQLite's change counter of this connection, and
 // data_version for commits by another process such as a seed) and shared by concurrent readers.
+interface CachedRanking {
+  version: string;
+  at: number;
+  ranked: Promise<Ranked>;
+}
 const cache = ((
-  globalThis as unknown as {
-    heatcheckQueueCache?: Map<string, { version: string; at: number; ranked: Promise<Ranked> }>;
-  }
-).heatcheckQueueCache ??= new Map());
+  globalThis as unknown as { heatcheckQueueCache?: Map<string, CachedRanking> }
+).heatcheckQueueCache ??= new Map<string, CachedRanking>());
 
 async function databaseVersion(): Promise<string> {
   const [row] = await db.$queryRaw<
@@ -59,8 +62,7 @@ export async function inspectionQueue(
   }
   const { entries, heat } = await hit.ranked;
   return {
-    entries:
-      options.onlyNextHeat && heat ? entries.filter((e: QueueEntry) => e.inNextHeat) : entries,
+    entries: options.onlyNextHeat && heat ? entries.filter((e) => e.inNextHeat) : entries,
     heat,
   };
 }

@@ -6,6 +6,6 @@ export function isDiskFull(e: unknown): boolean {
   const code = (e as NodeJS.ErrnoException).code;
   if (code === "ENOSPC" || code === "EDQUOT" || code === "SQLITE_FULL") return true;
   return /SQLITE_FULL|database or disk is full|ENOSPC|no space left on device/i.test(
-    `${e.message} ${String(e.cause ?? "")}`,
+    `${e.message} ${e.cause instanceof Error ? e.cause.message : typeof e.cause === "string" ? e.cause : ""}`,
   );
 }

@@ -8,7 +8,9 @@ import http from "node:http";
  * and Next then writes the socket's address. Installed once, from instrumentation.ts.
  */
 export function dropClientForwardedFor(): void {
+  // Unbound on purpose: it is called below with the server that emits as `this`.
   const emit: (this: unknown, event: string, ...args: unknown[]) => boolean =
+    // eslint-disable-next-line @typescript-eslint/unbound-method
     http.Server.prototype.emit;
   http.Server.prototype.emit = function (
     this: unknown,

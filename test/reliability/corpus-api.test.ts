@@ -59,7 +59,11 @@ it("every corpus case gets the reader's verdict from the API, and refused files 
       ...(c.map ? { mapText: c.map } : {}),
     };
     const r = await upload(app.url, c.bytes, { token, fileName: `${c.id}.csv`, fields });
-    const body = r.body.startsWith("{") ? r.json() : {};
+    const body = (r.body.startsWith("{") ? r.json() : {}) as {
+      logId?: unknown;
+      error?: unknown;
+      code?: unknown;
+    };
     const e = c.expect;
     if (e.outcome === "accepted") {
       accepted++;
@@ -68,7 +72,7 @@ it("every corpus case gets the reader's verdict from the API, and refused files 
       continue;
     }
     refused++;
-    const message = String(body.error ?? "");
+    const message = typeof body.error === "string" ? body.error : "";
     check(
       c,
       r.status === STATUS[e.code],

@@ -33,6 +33,8 @@ export async function* chunked(
   let at = 0;
   for (let i = 0; at < bytes.length; i++) {
     const n = Math.max(1, Math.floor(size(i)));
+    // One turn of the event loop per chunk, as a file stream would give.
+    await Promise.resolve();
     yield bytes.subarray(at, Math.min(bytes.length, at + n));
     at += n;
   }

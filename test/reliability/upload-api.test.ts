@@ -128,7 +128,7 @@ describe("good uploads", () => {
     expect(status.status).toBe("analysed");
   });
 
-  it("the original is stored private (0600) in private folders (0700), as is the database", async () => {
+  it("the original is stored private (0600) in private folders (0700), as is the database", () => {
     const db = join(app.dataDir, "heatcheck.db");
     expect(statSync(db).mode & 0o777).toBe(0o600);
     expect(statSync(app.dataDir).mode & 0o777).toBe(0o700);
@@ -169,16 +169,14 @@ describe("aborted and excess uploads", () => {
   it("a fifth upload at once from one token is refused with 429 and Retry-After; the others go through", async () => {
     const bytes = [41, 42, 43, 44, 45].map((s) => good(s));
     // Four slow uploads hold their slots (the body trickles in), the fifth arrives meanwhile.
-    const slow = bytes
-      .slice(0, 4)
-      .map((b) =>
-        upload(app.url, b, {
-          token,
-          fileName: "hv-05-slow.csv",
-          chunkBytes: 16 * 1024,
-          pauseMs: 100,
-        }),
-      );
+    const slow = bytes.slice(0, 4).map((b) =>
+      upload(app.url, b, {
+        token,
+        fileName: "hv-05-slow.csv",
+        chunkBytes: 16 * 1024,
+        pauseMs: 100,
+      }),
+    );
     // Each running upload has its temporary file: wait until all four are streaming.
     const deadline = Date.now() + 20_000;
     while (

@@ -89,7 +89,7 @@ describe("the head of a log from a byte stream", () => {
     let closed = false;
     const source: AsyncIterable<Uint8Array> = {
       [Symbol.asyncIterator]() {
-        const inner = bytesSource(bytes, 100);
+        const inner = bytesSource(bytes, 100)[Symbol.asyncIterator]();
         return {
           next: async () => {
             const r = await inner.next();

@@ -71,7 +71,7 @@ describe("the matrix's cases", () => {
 });
 
 describe("a small matrix run end to end (bounded: 1 airframe, 2 kHz, 16 s flights)", () => {
-  let results: CaseResult[] = [];
+  const results: CaseResult[] = [];
   beforeAll(async () => {
     const runner = new CaseRunner(SMALL);
     for (const job of matrixJobs(SMALL)) results.push(...(await runner.run(job)));

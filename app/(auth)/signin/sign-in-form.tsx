@@ -14,8 +14,8 @@ export function SignInForm() {
     setPending(true);
     setError("");
     const r = await signIn("credentials", {
-      email: String(form.get("email") ?? ""),
-      password: String(form.get("password") ?? ""),
+      email: fieldText(form, "email"),
+      password: fieldText(form, "password"),
       redirect: false,
     });
     setPending(false);
@@ -53,4 +53,10 @@ export function SignInForm() {
       </div>
     </form>
   );
+}
+
+/** A text field's value; a file input (never on this form) reads as empty. */
+function fieldText(form: FormData, name: string): string {
+  const v = form.get(name);
+  return typeof v === "string" ? v : "";
 }

@@ -9,10 +9,7 @@ export const dynamic = "force-dynamic";
 
 export default async function UploadPage() {
   const actor = await requireMember("viewer");
-  const [airframes, profiles] = await Promise.all([
-    airframesInService(actor),
-    listProfiles(actor),
-  ]);
+  const [airframes, profiles] = await Promise.all([airframesInService(actor), listProfiles(actor)]);
   return (
     <>
       <h1>Upload logs</h1>

@@ -73,8 +73,10 @@ function TrendChart({
           />
           <YAxis width={48} unit={unit} domain={["auto", "auto"]} />
           <Tooltip
-            labelFormatter={(_, payload) => String(payload?.[0]?.payload?.fileName ?? "")}
-            formatter={(v) => (v === null ? "no peak near it" : `${v} ${unit}`)}
+            labelFormatter={(_, payload) => pointFileName(payload?.[0]?.payload)}
+            formatter={(v) =>
+              v === null || v === undefined ? "no peak near it" : `${String(v)} ${unit}`
+            }
           />
           <Legend />
           {steps.map((s) => (
@@ -146,4 +148,13 @@ export function TrendCharts({ rows, modes, events, thresholds }: TrendChartsProp
       </div>
     </div>
   );
+}
+
+/** The log's file name of a hovered point (recharts types the payload as any). */
+function pointFileName(point: unknown): string {
+  if (typeof point === "object" && point !== null && "fileName" in point) {
+    const { fileName } = point;
+    return typeof fileName === "string" ? fileName : "";
+  }
+  return "";
 }

@@ -49,7 +49,7 @@ export function MotorOrdersChart({ motors }: MotorOrdersChartProps) {
           />
           <Tooltip
             formatter={(v) => `${Number(v).toFixed(1)} dB`}
-            labelFormatter={(t) => `${t} s`}
+            labelFormatter={(t) => `${Number(t).toFixed(2)} s`}
           />
           <Legend />
           {motors.map((m, i) => {
