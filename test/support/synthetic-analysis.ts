@@ -6,6 +6,7 @@ import type {
   ThrottleBandResult,
 } from "@/lib/analysis/types";
 import type { Axis } from "@/lib/logs/columns";
+import type { SpectralPeak } from "@/lib/signal/peaks";
 
 /**
  * Log analyses built in closed form, for testing the baseline and the comparison on their own
@@ -58,6 +59,17 @@ function perAxis<T>(f: (axis: Axis) => T): Record<Axis, T> {
   return { roll: f("roll"), pitch: f("pitch"), yaw: f("yaw") };
 }
 
+/** The peak the analyser would report for a bump (full width at half maximum 2.355 σ). */
+function peakOf(b: Bump, floorDb: number): SpectralPeak {
+  return {
+    freqHz: b.freqHz,
+    levelDb: floorDb + b.heightDb,
+    prominenceDb: b.heightDb,
+    widthHz: 2.355 * (b.widthHz ?? 4),
+    bin: Math.round(b.freqHz / BIN_HZ),
+  };
+}
+
 function bandAxis(
   spec: SyntheticSpec,
   axis: Axis,
@@ -84,15 +96,7 @@ function bandAxis(
       spec.bandOffset?.axis === axis && spec.bandOffset.loHz === band.loHz ? spec.bandOffset.db : 0;
     return 10 * Math.log10(power) + offset;
   });
-  const peaks = (spec.bumps ?? [])
-    .filter((b) => b.axis === axis)
-    .map((b) => ({
-      freqHz: b.freqHz,
-      levelDb: floor + b.heightDb,
-      prominenceDb: b.heightDb,
-      widthHz: 2.355 * (b.widthHz ?? 4),
-      bin: Math.round(b.freqHz / BIN_HZ),
-    }));
+  const peaks = (spec.bumps ?? []).filter((b) => b.axis === axis).map((b) => peakOf(b, floor));
   return { psdDb, bandDb, bandSpreadDb: bands.map(() => 1), floorDb: floor, peaks };
 }
 
@@ -160,11 +164,7 @@ export function syntheticAnalysis(spec: SyntheticSpec = {}): LogAnalysis {
       peaks: (spec.bumps ?? [])
         .filter((b) => b.axis === axis && (b.structural ?? true))
         .map((b) => ({
-          freqHz: b.freqHz,
-          levelDb: (spec.floorDb ?? -30) + b.heightDb,
-          prominenceDb: b.heightDb,
-          widthHz: 2.355 * (b.widthHz ?? 4),
-          bin: Math.round(b.freqHz / BIN_HZ),
+          ...peakOf(b, spec.floorDb ?? -30),
           kind: "structural" as const,
           seenInBands: Object.keys(flown).map(Number),
         })),
