@@ -101,6 +101,7 @@ export function compareWithBaseline(
   const findings: Finding[] = [...shifts, ...orders, ...floor];
   findings.push(...newPeaks({ ...ctx, found: [...findings] }));
   findings.push(...bandRises({ ...ctx, found: [...findings] }));
+  // Worst first; the sort is stable, so equal points keep the order above.
   findings.sort((a, b) => b.points - a.points);
 
   const taken = findings.reduce((s, f) => s + f.points, 0);

@@ -7,7 +7,7 @@ import type { DetectorContext } from "./context";
 import { graded, wholeOrderFreqs } from "./shared";
 
 /** Where a baseline mode is looked for: −30 % to +15 % of its frequency (a crack lowers a mode). */
-export const MODE_SEARCH = { below: 0.7, above: 1.15 };
+const MODE_SEARCH = { below: 0.7, above: 1.15 };
 /** A peak this close to the mode (fraction of its frequency) is the mode even on a motor order. */
 const ON_MODE_FRACTION = 0.03;
 /** A peak this close to a motor's whole order (fraction of the peak's frequency) is that order. */

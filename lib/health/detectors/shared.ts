@@ -1,6 +1,7 @@
 import type { ThrottleBandResult } from "../../analysis/types";
 import { median } from "../../signal/stats";
 import type { Baseline, BaselineThrottleBand } from "../baseline";
+import type { Finding } from "../findings";
 import { penaltyFor, stepOf, type HealthThresholds, type StepThresholds } from "../thresholds";
 
 /**
@@ -23,7 +24,11 @@ export function robustSigma(values: readonly number[]): number {
 }
 
 /** The step a magnitude reaches and the points it costs, or null below watch. */
-export function graded(magnitude: number, t: StepThresholds, h: HealthThresholds) {
+export function graded(
+  magnitude: number,
+  t: StepThresholds,
+  h: HealthThresholds,
+): Pick<Finding, "severity" | "points"> | null {
   const severity = stepOf(magnitude, t);
   return severity ? { severity, points: penaltyFor(magnitude, t, h) } : null;
 }
