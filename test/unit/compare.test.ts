@@ -123,6 +123,30 @@ describe("floor rise", () => {
   });
 });
 
+describe("what the detectors run before explains", () => {
+  const high: Bump = { axis: "pitch", freqHz: 700, heightDb: 12, structural: false };
+
+  it("a floor rise takes the new peaks above its corner", () => {
+    // Control: the same peak without the floor rise is new.
+    expect(only(assess({ bumps: [MODE, high] })).kind).toBe("new-peak");
+    const f = only(assess({ bumps: [MODE, high], riseAbove: { freqHz: 600, db: 8 } }));
+    expect(f.kind).toBe("floor-rise");
+  });
+
+  it("a floor rise with one motor's tones between its orders names that motor's bearing", () => {
+    const f = only(
+      assess({
+        orderDb: (m, o) => (m === 4 && (o === 2.5 || o === 3.5) ? 0 : -10),
+        riseAbove: { freqHz: 600, db: 8 },
+      }),
+    );
+    expect(f.kind).toBe("floor-rise");
+    expect(f.motor).toBe(4);
+    expect(f.order).toBe(2.5);
+    expect(f.text).toContain("typical of a worn bearing in that motor");
+  });
+});
+
 describe("new resonance", () => {
   it("a 12 dB peak where the baseline has none is a new peak of 12 dB at its frequency", () => {
     const f = only(
@@ -156,6 +180,13 @@ describe("motor orders", () => {
     const mean = (rotationHz(2, 3) + rotationHz(3, 3) + rotationHz(4, 3)) / 3;
     expect(f.freqHz).toBeCloseTo(mean, 1);
     expect(f.text.startsWith("motor 3 vibrates 10 dB more")).toBe(true);
+  });
+
+  it("with a tone between its orders too, it is a loose motor, not a prop", () => {
+    const f = only(assess({ orderDb: (m, o) => (m === 2 && (o === 1 || o === 1.5) ? 0 : -10) }));
+    expect(f.motor).toBe(2);
+    expect(f.cause).toBe("motor-mount");
+    expect(f.text).toContain("1.5×) as a loose part rattles");
   });
 
   it("names the motor's position when positions are given", () => {
