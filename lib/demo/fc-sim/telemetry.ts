@@ -44,7 +44,7 @@ export class EscTelemetry {
   private readonly delay: DelayLine;
   private readonly loopDt: number;
   /** The reading held since the last update, when the next one is due, and the next dropout. */
-  private readonly now = { held: 0, nextUpdateS: 0, dropout: 0 };
+  private readonly state = { held: 0, nextUpdateS: 0, dropout: 0 };
 
   constructor(
     private readonly spec: TelemetrySpec,
@@ -57,18 +57,19 @@ export class EscTelemetry {
 
   /** Feeds the motor's true rpm for loop sample n (time n/loopRate) and returns the logged reading. */
   step(trueRpm: number): number {
-    const now = this.now;
+    const state = this.state;
     const t = this.delay.pushed * this.loopDt;
     // Before the first reading has travelled the delay, the ESC reports the motor at rest.
     const old = this.delay.push(trueRpm);
-    if (t + 1e-12 >= now.nextUpdateS) {
+    // 1e-12 s: the running sum of 1/updateHz steps may round just past the sample it falls on.
+    if (t + 1e-12 >= state.nextUpdateS) {
       const noisy = old * (1 + this.spec.noiseFraction * gaussian(this.rand));
-      now.held = Math.max(0, Math.round(noisy / this.spec.stepRpm) * this.spec.stepRpm);
-      now.nextUpdateS += 1 / this.spec.updateHz;
+      state.held = Math.max(0, Math.round(noisy / this.spec.stepRpm) * this.spec.stepRpm);
+      state.nextUpdateS += 1 / this.spec.updateHz;
     }
     const drops = this.spec.dropouts;
-    while (now.dropout < drops.length && (drops[now.dropout]?.[1] ?? 0) <= t) now.dropout++;
-    const d = drops[now.dropout];
-    return d && t >= d[0] ? 0 : now.held;
+    while (state.dropout < drops.length && (drops[state.dropout]?.[1] ?? 0) <= t) state.dropout++;
+    const d = drops[state.dropout];
+    return d && t >= d[0] ? 0 : state.held;
   }
 }
