@@ -1,4 +1,4 @@
-import { AXES } from "../../logs/columns";
+import { AXES, type Axis } from "../../logs/columns";
 import { peaksAboveLocalMedian } from "../../signal/peaks";
 import { median, round } from "../../signal/stats";
 import { dbAt, MODE_TRACK_PROMINENCE_DB } from "../baseline";
@@ -30,78 +30,20 @@ const LOCAL_WINDOW = { fraction: 0.15, minBins: 3 };
  * above the corner lifts every peak up there: the floor rise says it once.
  */
 export function newPeaks(ctx: DetectorContext): Finding[] {
-  const { log, baseline, thresholds: h, axes, matched, maxHz } = ctx;
-  const shifts = ctx.found.filter((f) => f.kind === "mode-shift" || f.kind === "mode-lost");
-  const found: Finding[] = [];
+  const { log, baseline, thresholds: h, axes, maxHz } = ctx;
   const binHz = log.settings.binHz;
-  const first = Math.ceil(baseline.minFreqHz / binHz);
-  const last = Math.floor(maxHz / binHz);
-  if (last - first < MIN_SPAN_BINS) return [];
+  const bins = { first: Math.ceil(baseline.minFreqHz / binHz), last: Math.floor(maxHz / binHz) };
+  if (bins.last - bins.first < MIN_SPAN_BINS) return [];
+  const found: Finding[] = [];
   for (const axis of axes) {
-    const sum = new Float64Array(last + 1);
-    const wsum = new Float64Array(last + 1);
-    const var2 = new Float64Array(last + 1);
-    const logSum = new Float64Array(last + 1);
-    // Per band: the bins it judged and where it saw the watch step's excess (for the recurrence rule).
-    const judged = new Float64Array(last + 1);
-    const risen = new Float64Array(last + 1);
-    for (const m of matched) {
-      const orderFreqs = wholeOrderFreqs(m.log);
-      // Within a throttle band each order sweeps as rpm does, rpm ∝ √throttle (thrust ∝ rpm²):
-      // a half-width of (√hi − √lo)/(√hi + √lo) around its mean, and 2 % for the motors' spread.
-      const sweep =
-        (Math.sqrt(m.log.hi) - Math.sqrt(m.log.lo)) / (Math.sqrt(m.log.hi) + Math.sqrt(m.log.lo)) +
-        MOTOR_SPREAD_FRACTION;
-      const w = m.log.segments;
-      const chi =
-        DB_PER_UNIT_LOG ** 2 * (1 / Math.max(1, m.log.segments) + 1 / Math.max(1, m.base.segments));
-      const spread = m.base.axes[axis].psdLogSpreadDb;
-      for (let k = first; k <= last; k++) {
-        const f = k * binHz;
-        const level = m.log.axes[axis].psdDb[k] ?? Number.NaN;
-        logSum[k] = (logSum[k] ?? 0) + w * (Number.isFinite(level) ? level : 0);
-        if (orderFreqs.some((o) => Math.abs(o - f) <= sweep * o)) continue;
-        const base = dbAt(m.base.axes[axis].psdDb, baseline.binHz, f);
-        if (!Number.isFinite(level) || !Number.isFinite(base)) continue;
-        const s = spread ? dbAt(spread, baseline.binHz, f) : 0;
-        sum[k] = (sum[k] ?? 0) + w * (level - base);
-        judged[k] = (judged[k] ?? 0) + 1;
-        if (level - base >= h.levelDb.watch) risen[k] = (risen[k] ?? 0) + 1;
-        wsum[k] = (wsum[k] ?? 0) + w;
-        var2[k] = (var2[k] ?? 0) + w * w * (chi + (Number.isFinite(s) ? s * s : 0));
-      }
-    }
-    const total = matched.reduce((s, m) => s + m.log.segments, 0);
-    const excess = new Float64Array(last + 1).fill(Number.NaN);
-    const sigma = new Float64Array(last + 1).fill(Number.NaN);
-    const logDb = new Float64Array(last + 1);
-    for (let k = first; k <= last; k++) {
-      logDb[k] = (logSum[k] ?? 0) / Math.max(1, total);
-      const w = wsum[k] ?? 0;
-      // A bin that most bands could not judge (motor orders sweep over it) is left out.
-      if (w < MIN_JUDGED_SHARE * total) continue;
-      excess[k] = (sum[k] ?? 0) / w;
-      sigma[k] = Math.sqrt(var2[k] ?? 0) / w;
-    }
+    const x = excessOver(ctx, axis, bins);
+    const local = localExcess(x.excess, bins);
     // How this flight's spectrum wanders from the baseline's, bin to bin, around its own local
-    // level: the excess less its running median (a broadband rise is the floor's and the bands'
-    // finding), and the robust spread of that over the axis's bins. A new resonance is an
+    // level: the robust spread of the local excess over the axis's bins. A new resonance is an
     // outlier of it; the theoretical scatter alone underestimates a real flight's.
-    const local = new Float64Array(last + 1).fill(Number.NaN);
-    for (let k = first; k <= last; k++) {
-      const e = excess[k] ?? Number.NaN;
-      if (!Number.isFinite(e)) continue;
-      const half = Math.max(LOCAL_WINDOW.minBins, Math.round(LOCAL_WINDOW.fraction * k));
-      const around: number[] = [];
-      for (let j = Math.max(first, k - half); j <= Math.min(last, k + half); j++) {
-        const v = excess[j] ?? Number.NaN;
-        if (Number.isFinite(v)) around.push(v);
-      }
-      local[k] = e - median(around);
-    }
     const wander = robustSigma(Array.from(local));
     const tonal = peaksAboveLocalMedian(
-      logDb,
+      x.logDb,
       binHz,
       baseline.minFreqHz,
       maxHz,
@@ -112,13 +54,13 @@ export function newPeaks(ctx: DetectorContext): Finding[] {
       let best = Number.NaN;
       let at = p.bin;
       for (let k = p.bin - 1; k <= p.bin + 1; k++) {
-        const e = excess[k] ?? Number.NaN;
+        const e = x.excess[k] ?? Number.NaN;
         if (Number.isFinite(e) && !(e <= best)) {
           best = e;
           at = k;
         }
       }
-      const s = sigma[at] ?? Number.NaN;
+      const s = x.sigma[at] ?? Number.NaN;
       const above = local[at] ?? Number.NaN;
       if (
         !Number.isFinite(best) ||
@@ -129,16 +71,9 @@ export function newPeaks(ctx: DetectorContext): Finding[] {
         continue;
       // A resonance stays put across throttle: it must be up in at least half of the bands that
       // judged the bin (and two of them, when two or more did), not only on average.
-      const bands = judged[at] ?? 0;
-      if (!((risen[at] ?? 0) >= Math.max(Math.min(2, bands), Math.ceil(bands / 2)))) continue;
-      // A frame mode shows on every axis it couples into: a known peak or mode of any axis is
-      // not new on this one (it may still be a band rise).
-      const near = (f: number) => Math.abs(f - p.freqHz) <= h.samePeakFraction * p.freqHz;
-      const known =
-        AXES.some((x) => baseline.peaks[x].some(near)) ||
-        baseline.modes.some((m) => near(m.freqHz)) ||
-        shifts.some((x) => near(x.freqHz) || near(x.baselineFreqHz ?? 0));
-      if (known) continue;
+      const bands = x.judged[at] ?? 0;
+      if (!((x.risen[at] ?? 0) >= Math.max(Math.min(2, bands), Math.ceil(bands / 2)))) continue;
+      if (isKnown(ctx, p.freqHz)) continue;
       const grade = graded(best, h.levelDb, h);
       if (!grade) continue;
       found.push({
@@ -155,6 +90,109 @@ export function newPeaks(ctx: DetectorContext): Finding[] {
   const floorRise = ctx.found.some((f) => f.kind === "floor-rise");
   return keepStrongestPerFrequency(found, h.samePeakFraction).filter(
     (f) => !(floorRise && f.freqHz >= baseline.floorCornerHz),
+  );
+}
+
+interface BinRange {
+  first: number;
+  last: number;
+}
+
+/** One axis's excess over the baseline per bin, averaged over the compared bands. */
+interface Excess {
+  /** Segment-weighted mean of log − baseline, dB (NaN where most bands could not judge). */
+  excess: Float64Array;
+  /** Its expected standard deviation, dB. */
+  sigma: Float64Array;
+  /** The log's own band spectra, segment-weighted, dB. */
+  logDb: Float64Array;
+  /** Per bin: the bands that judged it, and those that saw the watch step's excess there. */
+  judged: Float64Array;
+  risen: Float64Array;
+}
+
+function excessOver(ctx: DetectorContext, axis: Axis, { first, last }: BinRange): Excess {
+  const { baseline, thresholds: h, matched } = ctx;
+  const binHz = ctx.log.settings.binHz;
+  const sum = new Float64Array(last + 1);
+  const wsum = new Float64Array(last + 1);
+  const var2 = new Float64Array(last + 1);
+  const logSum = new Float64Array(last + 1);
+  const judged = new Float64Array(last + 1);
+  const risen = new Float64Array(last + 1);
+  for (const m of matched) {
+    const orderFreqs = wholeOrderFreqs(m.log);
+    // Within a throttle band each order sweeps as rpm does, rpm ∝ √throttle (thrust ∝ rpm²):
+    // a half-width of (√hi − √lo)/(√hi + √lo) around its mean, and 2 % for the motors' spread.
+    const sweep =
+      (Math.sqrt(m.log.hi) - Math.sqrt(m.log.lo)) / (Math.sqrt(m.log.hi) + Math.sqrt(m.log.lo)) +
+      MOTOR_SPREAD_FRACTION;
+    const w = m.log.segments;
+    const chi =
+      DB_PER_UNIT_LOG ** 2 * (1 / Math.max(1, m.log.segments) + 1 / Math.max(1, m.base.segments));
+    const spread = m.base.axes[axis].psdLogSpreadDb;
+    for (let k = first; k <= last; k++) {
+      const f = k * binHz;
+      const level = m.log.axes[axis].psdDb[k] ?? Number.NaN;
+      logSum[k] = (logSum[k] ?? 0) + w * (Number.isFinite(level) ? level : 0);
+      if (orderFreqs.some((o) => Math.abs(o - f) <= sweep * o)) continue;
+      const base = dbAt(m.base.axes[axis].psdDb, baseline.binHz, f);
+      if (!Number.isFinite(level) || !Number.isFinite(base)) continue;
+      const s = spread ? dbAt(spread, baseline.binHz, f) : 0;
+      sum[k] = (sum[k] ?? 0) + w * (level - base);
+      judged[k] = (judged[k] ?? 0) + 1;
+      if (level - base >= h.levelDb.watch) risen[k] = (risen[k] ?? 0) + 1;
+      wsum[k] = (wsum[k] ?? 0) + w;
+      var2[k] = (var2[k] ?? 0) + w * w * (chi + (Number.isFinite(s) ? s * s : 0));
+    }
+  }
+  const total = matched.reduce((s, m) => s + m.log.segments, 0);
+  const excess = new Float64Array(last + 1).fill(Number.NaN);
+  const sigma = new Float64Array(last + 1).fill(Number.NaN);
+  const logDb = new Float64Array(last + 1);
+  for (let k = first; k <= last; k++) {
+    logDb[k] = (logSum[k] ?? 0) / Math.max(1, total);
+    const w = wsum[k] ?? 0;
+    // A bin that most bands could not judge (motor orders sweep over it) is left out.
+    if (w < MIN_JUDGED_SHARE * total) continue;
+    excess[k] = (sum[k] ?? 0) / w;
+    sigma[k] = Math.sqrt(var2[k] ?? 0) / w;
+  }
+  return { excess, sigma, logDb, judged, risen };
+}
+
+/** The excess less its running median: a broadband rise is the floor's and the bands' finding. */
+function localExcess(excess: Float64Array, { first, last }: BinRange): Float64Array {
+  const local = new Float64Array(last + 1).fill(Number.NaN);
+  for (let k = first; k <= last; k++) {
+    const e = excess[k] ?? Number.NaN;
+    if (!Number.isFinite(e)) continue;
+    const half = Math.max(LOCAL_WINDOW.minBins, Math.round(LOCAL_WINDOW.fraction * k));
+    const around: number[] = [];
+    for (let j = Math.max(first, k - half); j <= Math.min(last, k + half); j++) {
+      const v = excess[j] ?? Number.NaN;
+      if (Number.isFinite(v)) around.push(v);
+    }
+    local[k] = e - median(around);
+  }
+  return local;
+}
+
+/**
+ * A frame mode shows on every axis it couples into: a known peak or mode of any axis, or a mode
+ * that moved or was lost (found before), is not new on this one (it may still be a band rise).
+ */
+function isKnown(ctx: DetectorContext, freqHz: number): boolean {
+  const { baseline } = ctx;
+  const near = (f: number) => Math.abs(f - freqHz) <= ctx.thresholds.samePeakFraction * freqHz;
+  return (
+    AXES.some((x) => baseline.peaks[x].some(near)) ||
+    baseline.modes.some((m) => near(m.freqHz)) ||
+    ctx.found.some(
+      (x) =>
+        (x.kind === "mode-shift" || x.kind === "mode-lost") &&
+        (near(x.freqHz) || near(x.baselineFreqHz ?? 0)),
+    )
   );
 }
 
