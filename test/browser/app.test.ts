@@ -6,7 +6,7 @@ import { openSqlite } from "@/lib/archive/sqlite-file";
 import { demoCsv } from "@/lib/demo/demo-csv";
 import { startApp, type AppServer } from "../support/app-server";
 import { axeAtWidths, describeFindings, type AxeFinding } from "./axe";
-import { markActions, ringShown, tabThrough } from "./keyboard";
+import { markActions, ringShown, tabThrough, unringedActions } from "./keyboard";
 
 // The built app in Debian's chromium, driven by playwright-core, against the seeded demo team.
 // Screenshots of each main screen land in test/screenshots/ (git-ignored) for a person to look at.
@@ -562,12 +562,15 @@ describe("keyboard", () => {
 
 // Last, because it removes a member and breaks one stored row to reach the welcome and error screens.
 describe("accessibility: axe-core finds nothing on any screen, at 1366 and 390 px", () => {
-  it("every screen and every upload step", async () => {
+  it("every screen and every upload step, and every action on them shows a focus ring", async () => {
     const found: AxeFinding[] = [];
+    // And on each screen, every action draws its focus ring.
+    const unringed: string[] = [];
     const visit = async (page: Page, screen: string, url: string, ready?: string) => {
       await page.goto(url);
       if (ready) await page.waitForSelector(ready);
       found.push(...(await axeAtWidths(page, screen)));
+      unringed.push(...(await unringedActions(page)).map((a) => `${screen}: ${a}`));
     };
 
     const out = await browser.newPage();
@@ -636,5 +639,6 @@ describe("accessibility: axe-core finds nothing on any screen, at 1366 and 390 p
     await pilot.close();
 
     expect(describeFindings(found)).toBe("");
+    expect(unringed).toEqual([]);
   }, 180_000);
 });

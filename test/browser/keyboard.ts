@@ -73,3 +73,31 @@ export function ringShown(stop: TabStop): boolean {
   const [style, width] = stop.outline.split(" ");
   return stop.focusVisible && style !== "none" && Number.parseFloat(width ?? "0") >= 2;
 }
+
+/**
+ * Every visible action on the page that draws no focus ring when it has keyboard focus. One Tab
+ * press puts the page in keyboard mode; moving the focus from script then keeps `:focus-visible`
+ * (the HTML focus heuristics), so each element is checked without tabbing the whole page.
+ */
+export async function unringedActions(page: Page): Promise<string[]> {
+  await markActions(page);
+  await page.keyboard.press("Tab");
+  return page.evaluate(() => {
+    const missing: string[] = [];
+    for (const el of Array.from(document.querySelectorAll<HTMLElement>("[data-tab-index]"))) {
+      el.focus({ preventScroll: true });
+      if (document.activeElement !== el) continue;
+      const style = getComputedStyle(el);
+      const ringed =
+        el.matches(":focus-visible") &&
+        style.outlineStyle !== "none" &&
+        Number.parseFloat(style.outlineWidth) >= 2;
+      if (!ringed)
+        missing.push(
+          `${el.tagName.toLowerCase()} "${(el.getAttribute("aria-label") ?? el.textContent ?? "").trim().slice(0, 40)}"`,
+        );
+    }
+    if (document.activeElement instanceof HTMLElement) document.activeElement.blur();
+    return missing;
+  });
+}
