@@ -555,7 +555,9 @@ describe("keyboard", () => {
     await page.locator("[data-testid=crash-form] select[name=severity]").focus();
     await page.keyboard.press("Shift+Tab");
     await page.keyboard.press("Tab");
-    await shot(page, "crash-form-focus-phone");
+    await page
+      .locator("[data-testid=crash-form]")
+      .screenshot({ path: join(SHOTS, "crash-form-focus-phone.png") });
     await page.setViewportSize({ width: 1366, height: 900 });
   });
 });
@@ -612,6 +614,11 @@ describe("accessibility: axe-core finds nothing on any screen, at 1366 and 390 p
       timeout: 60_000,
     });
     found.push(...(await axeAtWidths(page, "upload: verdict")));
+    for (const width of [1366, 390]) {
+      await page.setViewportSize({ width, height: 900 });
+      await shot(page, `upload-verdict-${width}`);
+    }
+    await page.setViewportSize({ width: 1440, height: 900 });
 
     // The error screen: one stored analysis this version cannot read.
     const db = openSqlite(join(app.dataDir, "heatcheck.db"));
