@@ -14,7 +14,7 @@ export function UploadList({ uploads, airframes }: UploadListProps) {
   const count = uploads.importableCount;
   return (
     <section className="card space-above">
-      <table data-testid="upload-list">
+      <table className="upload-table" data-testid="upload-list">
         <thead>
           <tr>
             <th>file</th>
@@ -27,17 +27,17 @@ export function UploadList({ uploads, airframes }: UploadListProps) {
         <tbody>
           {uploads.items.map((i) => (
             <tr key={i.key} data-file={i.file.name} data-phase={i.phase}>
-              <td>
+              <td data-label="file">
                 {i.file.name}
                 <div className="muted small">{(i.file.size / 1e6).toFixed(1)} MB</div>
               </td>
-              <td>
+              <td data-label="airframe">
                 <AirframeChoiceCell item={i} airframes={airframes} uploads={uploads} />
               </td>
-              <td>
+              <td data-label="upload">
                 <ProgressBar fraction={i.uploadFraction} label={`upload of ${i.file.name}`} />
               </td>
-              <td>
+              <td data-label="analysis">
                 <ProgressBar
                   fraction={i.analysisFraction}
                   label={`analysis of ${i.file.name}`}
@@ -123,7 +123,11 @@ function ProgressBar({ fraction, label, analysis = false }: ProgressBarProps) {
 /** Step 6: the verdict, or where the file stands, or why it failed. */
 function Verdict({ item }: { item: UploadItem }) {
   return (
-    <td className={item.phase === "failed" ? "field-error" : undefined} data-testid="upload-result">
+    <td
+      className={item.phase === "failed" ? "field-error" : undefined}
+      data-testid="upload-result"
+      data-label="result"
+    >
       {item.phase === "done" ? (
         <strong>{item.message}</strong>
       ) : (
