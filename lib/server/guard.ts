@@ -1,6 +1,7 @@
 import "server-only";
 import { getServerSession } from "next-auth";
 import { cookies, headers } from "next/headers";
+import { cache } from "react";
 import { config } from "@/lib/config";
 import { ForbiddenError, UnauthenticatedError } from "@/lib/errors";
 import { isRole, type Actor, type Role } from "@/lib/roles";
@@ -49,11 +50,25 @@ async function openSession(): Promise<{ userId: string; sessionId: string }> {
 
 /** A signed-in member of the active team with at least `minimum` role. */
 export async function requireMember(minimum: Role = "viewer"): Promise<Actor> {
+  // A server action may end the session or switch the team before the page renders again in the
+  // same request, so it always reads afresh; a page render reads once for layout and page.
+  const actor = (await headers()).has("next-action") ? await readMember() : await memberOfRender();
+  assertRole(actor, minimum);
+  return actor;
+}
+
+async function readMember(): Promise<Actor> {
   const { userId, sessionId } = await openSession();
   const wanted = (await cookies()).get(TEAM_COOKIE)?.value;
-  const actor = await actorForUser(userId, wanted, minimum);
+  const actor = await actorForUser(userId, wanted, "viewer");
   return { ...actor, sessionId };
 }
+
+/**
+ * The member, read once per page render: the layout and the page both ask, and each read costs a
+ * session-token decryption and two queries on the event loop (React's `cache` is per request).
+ */
+const memberOfRender = cache(readMember);
 
 /**
  * Cross-site request forgery defence for writes made with the session cookie (OWASP ASVS 4.0
