@@ -12,10 +12,9 @@ import {
 import { spectralPeaks } from "../signal/peaks";
 import { round } from "../signal/stats";
 import {
+  PeriodogramAverage,
   SegmentPeriodogram,
   defaultNperseg,
-  medianAcross,
-  medianBias,
   resolveWelchOptions,
 } from "../signal/welch";
 import { classifyPeaks } from "./classify";
@@ -95,8 +94,7 @@ export class LogAnalyzer implements LogSink {
   private bufferStartS = 0;
   private timeS = 0;
   private segmentPsd: Float64Array[] = [];
-  private overallSum: Float64Array[] = [];
-  private stored: Float32Array[][] = [];
+  private overall: PeriodogramAverage[] = [];
   private segments = 0;
   private throttleBandCount = 1;
   private accumulators: BandAccumulator[] = [];
@@ -132,8 +130,7 @@ export class LogAnalyzer implements LogSink {
     // channels: 3 gyro axes and throttle
     this.buffers = Array.from({ length: 4 }, () => new Float64Array(this.nperseg));
     this.segmentPsd = AXES.map(() => new Float64Array(bins));
-    this.overallSum = AXES.map(() => new Float64Array(bins));
-    this.stored = AXES.map(() => []);
+    this.overall = AXES.map(() => new PeriodogramAverage(bins, this.settings.average, "float32"));
     this.signal = AXES.map(() => ({ min: Infinity, max: -Infinity, atMin: 0, atMax: 0 }));
     this.throttleBandCount = info.hasThrottle ? this.settings.throttleBands : 1;
     this.throttleSamples = new Float64Array(this.throttleBandCount);
@@ -272,14 +269,12 @@ export class LogAnalyzer implements LogSink {
     acc.throttleSum += thrMean;
     for (let a = 0; a < 3; a++) {
       const psd = this.segmentPsd[a] as Float64Array;
-      const overall = this.overallSum[a] as Float64Array;
       const bandSum = acc.psdSum[a] as Float64Array;
       for (let k = 0; k < bins; k++) {
         const v = psd[k] ?? 0;
-        overall[k] = (overall[k] ?? 0) + v;
         bandSum[k] = (bandSum[k] ?? 0) + v;
       }
-      if (this.settings.average === "median") this.stored[a]?.push(Float32Array.from(psd));
+      this.overall[a]?.add(psd);
       const dbSum = acc.dbSum[a] as Float64Array;
       const dbSq = acc.dbSqSum[a] as Float64Array;
       this.bandRanges.forEach((r, b) => {
@@ -309,18 +304,7 @@ export class LogAnalyzer implements LogSink {
     const bins = periodogram.bins;
     const fs = info.sampleRateHz;
     const corner = floorCorner(this.settings, this.maxFreqHz);
-    const psdOverall = this.overallSum.map((sum, a) => {
-      const out = new Float64Array(bins);
-      if (this.settings.average === "median") {
-        const spectra = (this.stored[a] ?? []).map((s) => Float64Array.from(s));
-        medianAcross(spectra, out);
-        const bias = medianBias(spectra.length);
-        for (let k = 0; k < bins; k++) out[k] = (out[k] ?? 0) / bias;
-      } else {
-        for (let k = 0; k < bins; k++) out[k] = (sum[k] ?? 0) / this.segments;
-      }
-      return out;
-    });
+    const psdOverall = this.overall.map((average) => average.result());
 
     const throttleBands: ThrottleBandResult[] = this.accumulators.map((acc, index) => {
       const lo = this.throttleBandCount === 1 ? 0 : index / this.throttleBandCount;
