@@ -25,9 +25,12 @@ import { makeWindow } from "../signal/windows";
  * telemetry moves, or changing faster than a motor can accelerate masks that motor's block.
  */
 
-/** Why a motor's block was not measured. */
-export type MaskReason = "zero" | "range" | "stuck" | "slew";
-export const MASK_REASONS: readonly MaskReason[] = ["zero", "range", "stuck", "slew"];
+/**
+ * Why a motor's block was not measured: rpm 0, outside the plausible range, stuck while the other
+ * motors' telemetry moves, changing faster than a motor can.
+ */
+export const MASK_REASONS = ["zero", "range", "stuck", "slew"] as const;
+export type MaskReason = (typeof MASK_REASONS)[number];
 
 export interface TelemetryLimits {
   /** Lowest and highest believable mechanical rpm of a spinning motor. */
