@@ -35,7 +35,11 @@ function track(
   );
   const n = Math.round(seconds * fs);
   const timeS = new Float64Array(n);
-  const g = [new Float64Array(n), new Float64Array(n), new Float64Array(n)];
+  const g: [Float64Array, Float64Array, Float64Array] = [
+    new Float64Array(n),
+    new Float64Array(n),
+    new Float64Array(n),
+  ];
   const rpm = Array.from({ length: motors }, () => new Float64Array(n));
   const angles = new Array<number>(motors).fill(0);
   for (let i = 0; i < n; i++) {
