@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { OrderBands } from "@/lib/analysis/order-bands";
-import { planAnalysis, throttleBandOf } from "@/lib/analysis/plan";
+import { planAnalysis, throttleBandOf, type AnalysisPlan } from "@/lib/analysis/plan";
 import { DEFAULT_ANALYSIS } from "@/lib/analysis/settings";
 import type { LogInfo, SampleBlock } from "@/lib/logs/read-log";
 
@@ -24,16 +24,17 @@ function infoOf(motors: number[], hasThrottle = true): LogInfo {
 /**
  * Generated log: every motor at 20 000 rpm (a slow sine on top, so no telemetry is stuck), a
  * 1× tone of amplitude 1 deg/s from motor 1 on roll, throttle `throttleOf(t)`; `rpmOf` may spoil
- * a motor's telemetry. Fed to `bands` in blocks of 4096 samples.
+ * a motor's telemetry. Two motors, `blocks` tracker blocks long, fed in blocks of 4096 samples.
  */
-function feed(
-  bands: OrderBands,
-  seconds: number,
-  motors: number,
-  throttleOf: (t: number) => number,
-  rpmOf: (m: number, t: number, good: number) => number = (_m, _t, good) => good,
-): void {
-  const n = Math.round(seconds * FS);
+function orderBands(
+  blocks: number,
+  throttle: number,
+  rpmOf: (m: number, t: number, good: number) => number,
+): { plan: AnalysisPlan; bands: OrderBands } {
+  const motors = 2;
+  const plan = planAnalysis(infoOf([1, 2]), DEFAULT_ANALYSIS);
+  const bands = new OrderBands(plan);
+  const n = blocks * BLOCK;
   const size = 4096;
   const make = () => new Float64Array(size);
   const block: SampleBlock = {
@@ -52,26 +53,21 @@ function feed(
       const good = 20000 + 2000 * Math.sin(2 * Math.PI * 0.5 * t);
       block.timeS[j] = t;
       block.gyro[0][j] = Math.cos(angle);
-      if (block.throttle) block.throttle[j] = throttleOf(t);
+      if (block.throttle) block.throttle[j] = throttle;
       block.rpm.forEach((r, m) => (r[j] = rpmOf(m, t, good)));
       angle += (2 * Math.PI * good) / 60 / FS;
     }
     block.length = len;
     bands.push(block);
   }
+  return { plan, bands };
 }
 
 describe("OrderBands: order-tracking blocks summed per throttle band and motor", () => {
   it("masked telemetry is counted per reason and per band, never measured; the share is of all blocks", () => {
-    const plan = planAnalysis(infoOf([1, 2]), DEFAULT_ANALYSIS);
-    const bands = new OrderBands(plan);
     // 16 blocks; motor 2 reads 0 during blocks 4 and 5 (t in [1.024, 1.536) s).
-    feed(
-      bands,
-      (16 * BLOCK) / FS,
-      2,
-      () => 0.3,
-      (m, t, good) => (m === 1 && t >= 1.024 && t < 1.536 ? 0 : good),
+    const { plan, bands } = orderBands(16, 0.3, (m, t, good) =>
+      m === 1 && t >= 1.024 && t < 1.536 ? 0 : good,
     );
     const [m1, m2] = bands.summaries();
     expect(m1?.maskedBlocks).toEqual({ zero: 0, range: 0, stuck: 0, slew: 0 });
@@ -99,16 +95,8 @@ describe("OrderBands: order-tracking blocks summed per throttle band and motor",
   });
 
   it("a 1× tone of 1 deg/s on motor 1 reads −3.01 dB (A²/2 = 0.5) at 1× roll; motor 2 far below", () => {
-    const plan = planAnalysis(infoOf([1, 2]), DEFAULT_ANALYSIS);
-    const bands = new OrderBands(plan);
     // Motor 2 spins 10 % faster: its 1× is 33 Hz from motor 1's.
-    feed(
-      bands,
-      (8 * BLOCK) / FS,
-      2,
-      () => 0.7,
-      (m, _t, good) => (m === 1 ? 1.1 * good : good),
-    );
+    const { plan, bands } = orderBands(8, 0.7, (m, _t, good) => (m === 1 ? 1.1 * good : good));
     const inBand = bands.bandMotors(throttleBandOf(0.7, plan.throttleBands));
     const one = (m: number) => inBand[m]?.orders.find((o) => o.order === 1);
     // 10·log10(0.5) = −3.0103 dB, within 0.05 dB (the exact coherent sum; computed order tracking).
