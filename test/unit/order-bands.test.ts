@@ -23,7 +23,7 @@ function infoOf(motors: number[], hasThrottle = true): LogInfo {
 
 /**
  * Generated log: every motor at 20 000 rpm (a slow sine on top, so no telemetry is stuck), a
- * 1× tone of amplitude 1 deg/s from motor 1 on roll, throttle `throttleOf(t)`; `rpmOf` may spoil
+ * 1× tone of amplitude 1 deg/s from motor 1 on roll, a steady `throttle`; `rpmOf` may spoil
  * a motor's telemetry. Two motors, `blocks` tracker blocks long, fed in blocks of 4096 samples.
  */
 function orderBands(
