@@ -2,24 +2,12 @@ import { describe, expect, it } from "vitest";
 import { OrderBands } from "@/lib/analysis/order-bands";
 import { planAnalysis, throttleBandOf, type AnalysisPlan } from "@/lib/analysis/plan";
 import { DEFAULT_ANALYSIS } from "@/lib/analysis/settings";
-import type { LogInfo, SampleBlock } from "@/lib/logs/read-log";
+import type { SampleBlock } from "@/lib/logs/read-log";
+import { logInfo } from "../support/log-info";
 
 const FS = 4000;
 /** The tracker's block: 0.256 s. */
 const BLOCK = 1024;
-
-function infoOf(motors: number[], hasThrottle = true): LogInfo {
-  return {
-    metadata: {},
-    headers: [],
-    map: [],
-    guesses: [],
-    sampleRateHz: FS,
-    hasThrottle,
-    motors,
-    hasSetpoint: false,
-  };
-}
 
 /**
  * Generated log: every motor at 20 000 rpm (a slow sine on top, so no telemetry is stuck), a
@@ -32,7 +20,7 @@ function orderBands(
   rpmOf: (m: number, t: number, good: number) => number,
 ): { plan: AnalysisPlan; bands: OrderBands } {
   const motors = 2;
-  const plan = planAnalysis(infoOf([1, 2]), DEFAULT_ANALYSIS);
+  const plan = planAnalysis(logInfo(FS, { motors: [1, 2] }), DEFAULT_ANALYSIS);
   const bands = new OrderBands(plan);
   const n = blocks * BLOCK;
   const size = 4096;
@@ -115,7 +103,9 @@ describe("OrderBands: order-tracking blocks summed per throttle band and motor",
       0, 0, 1, 7, 7, 7, 0,
     ]);
     expect(throttleBandOf(0.9, 1)).toBe(0);
-    expect(planAnalysis(infoOf([], false), DEFAULT_ANALYSIS).throttleBands).toBe(1);
+    expect(planAnalysis(logInfo(FS, { hasThrottle: false }), DEFAULT_ANALYSIS).throttleBands).toBe(
+      1,
+    );
   });
 });
 

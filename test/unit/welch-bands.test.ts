@@ -3,23 +3,11 @@ import { planAnalysis } from "@/lib/analysis/plan";
 import { DEFAULT_ANALYSIS, type AnalysisSettings } from "@/lib/analysis/settings";
 import { WelchBands } from "@/lib/analysis/welch-bands";
 import { mulberry32, gaussian } from "@/lib/demo/random";
-import type { LogInfo, SampleBlock } from "@/lib/logs/read-log";
+import type { SampleBlock } from "@/lib/logs/read-log";
+import { logInfo } from "../support/log-info";
 import { welch } from "@/lib/signal/welch";
 
 const FS = 1000;
-
-function infoOf(hasThrottle: boolean): LogInfo {
-  return {
-    metadata: {},
-    headers: [],
-    map: [],
-    guesses: [],
-    sampleRateHz: FS,
-    hasThrottle,
-    motors: [],
-    hasSetpoint: false,
-  };
-}
 
 /** Seeded noise plus a 120 Hz sine on every axis (generated test data). */
 function signal(n: number, seed: number): Float64Array {
@@ -48,7 +36,7 @@ function feed(bands: WelchBands, x: Float64Array, throttle: Float64Array, blockS
 }
 
 function bandsFor(settings: Partial<AnalysisSettings> = {}, hasThrottle = true) {
-  const plan = planAnalysis(infoOf(hasThrottle), { ...DEFAULT_ANALYSIS, ...settings });
+  const plan = planAnalysis(logInfo(FS, { hasThrottle }), { ...DEFAULT_ANALYSIS, ...settings });
   return { plan, bands: new WelchBands(plan) };
 }
 
