@@ -43,6 +43,10 @@ export async function proxy(request: NextRequest): Promise<NextResponse> {
   return response;
 }
 
+// Not the upload endpoint (POST /api/v1/logs, exactly): when the proxy runs, Next clones the request
+// body into memory for it and cuts the clone at 10 MB (experimental.proxyClientMaxBodySize), so a
+// larger log would reach the route truncated. The upload needs neither a nonce nor the sign-in
+// redirect; the route sets its own Cache-Control and next.config.ts adds the fixed headers.
 export const config = {
-  matcher: ["/((?!_next/static|_next/image|favicon.ico|icon.svg).*)"],
+  matcher: ["/((?!_next/static|_next/image|favicon.ico|icon.svg|api/v1/logs$).*)"],
 };

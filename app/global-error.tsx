@@ -1,5 +1,7 @@
 "use client";
 
+import "./globals.css";
+
 /** The last resort when even the layout failed: a plain sentence, never a blank page. */
 export default function GlobalError({
   reset,
@@ -10,9 +12,7 @@ export default function GlobalError({
   return (
     <html lang="en">
       <body>
-        <main
-          style={{ maxWidth: "40rem", margin: "3rem auto", fontFamily: "system-ui, sans-serif" }}
-        >
+        <main className="plain-page">
           <h1>heatcheck could not show this page</h1>
           <p>Something went wrong on the server; nothing was changed. Try again in a moment.</p>
           <button type="button" onClick={() => reset()}>

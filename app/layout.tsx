@@ -20,10 +20,10 @@ export default async function RootLayout({ children }: { children: ReactNode }) 
     <html lang="en">
       <body>
         {demo ? (
-          <div className="demo-banner" role="note" data-testid="demo-banner">
+          <section className="demo-banner" aria-label="demo server" data-testid="demo-banner">
             Demo server: the invented demo team&apos;s accounts exist and their passwords are
             published. Do not keep a real team&apos;s records here.
-          </div>
+          </section>
         ) : null}
         {children}
       </body>

@@ -134,14 +134,16 @@ async function main(): Promise<void> {
   );
 
   // The seed analyses its demo logs on the worker threads, so the worker comes before the seed.
-  const workerBundle = join(root, "generated", "worker", "analysis-worker.mjs");
-  if (stale(workerBundle, ["lib"])) {
+  const workerBundles = ["analysis-worker.mjs", "upload-check-worker.mjs"].map((f) =>
+    join(root, "generated", "worker", f),
+  );
+  if (workerBundles.some((bundle) => stale(bundle, ["lib"]))) {
     await step(
-      "analysis worker build",
+      "worker build",
       npx,
       ["tsx", "scripts/build-bundles.ts", "worker"],
       env,
-      "the analysis worker could not be built; run `npm install` again, then `npm start`.",
+      "the worker threads could not be built; run `npm install` again, then `npm start`.",
     );
   }
 

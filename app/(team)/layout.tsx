@@ -19,8 +19,14 @@ export default async function TeamLayout({ children }: { children: ReactNode }) 
   }
   return (
     <>
+      {/* The first Tab stop: past the navigation, straight to the screen. */}
+      <a className="skip-link" href="#screen">
+        Skip to the screen
+      </a>
       <Nav teamName={await teamName(actor)} userName={actor.name} role={actor.role} />
-      <main>{children}</main>
+      <main id="screen" tabIndex={-1}>
+        {children}
+      </main>
     </>
   );
 }

@@ -13,8 +13,8 @@ export interface FindingsCardProps {
 /** A log's findings against its baseline, worst first, with what was not compared and the caution. */
 export function FindingsCard({ title, assessment, notJudged, fileName }: FindingsCardProps) {
   return (
-    <section className="card" style={{ marginTop: "1rem" }}>
-      <h2 style={{ marginTop: 0 }}>{title}</h2>
+    <section className="card space-above">
+      <h2>{title}</h2>
       {!assessment ? (
         <p className="muted">{notJudged}</p>
       ) : assessment.findings.length === 0 ? (

@@ -24,7 +24,7 @@ export function SpectraGrid({ analysis, spectra, currentLabel }: SpectraGridProp
       <div className="grid three">
         {AXES.map((axis) => (
           <div className="card" key={axis}>
-            <h3 style={{ marginTop: 0 }}>{axis}</h3>
+            <h3>{axis}</h3>
             <SpectrumChart
               axis={axis}
               currentLabel={currentLabel}

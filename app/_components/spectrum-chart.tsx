@@ -29,7 +29,7 @@ export function SpectrumChart({
 }: SpectrumChartProps) {
   if (points.length === 0) return <p className="muted">No analysed log yet.</p>;
   return (
-    <div style={{ width: "100%", height: 260 }} data-testid={`spectrum-${axis}`}>
+    <div className="chart-box" data-testid={`spectrum-${axis}`}>
       <ResponsiveContainer>
         <LineChart data={points} margin={{ top: 8, right: 16, bottom: 18, left: 4 }}>
           <CartesianGrid stroke="#e4dfd4" />

@@ -48,7 +48,7 @@ export function ThrottleHeatmap({ rows, binHz, fromHz, toHz }: ThrottleHeatmapPr
     (_, i) => (i + 1) * spacing,
   ).filter((f) => f >= fromHz && f <= toHz);
   return (
-    <figure style={{ margin: 0 }}>
+    <figure className="chart">
       <svg
         viewBox={`0 0 ${width} ${height}`}
         width="100%"
@@ -93,14 +93,8 @@ export function ThrottleHeatmap({ rows, binHz, fromHz, toHz }: ThrottleHeatmapPr
       </svg>
       <figcaption className="heatmap-legend">
         throttle (rows) × frequency (linear); colour from {lo.toFixed(0)} dB
-        <span
-          style={{
-            display: "inline-block",
-            width: 120,
-            height: 10,
-            background: `linear-gradient(90deg, ${LEGEND})`,
-          }}
-        />
+        {/* The legend's gradient is the colour ramp itself (lib/view), so it stays inline. */}
+        <span className="legend-ramp" style={{ background: `linear-gradient(90deg, ${LEGEND})` }} />
         to {hi.toFixed(0)} dB
       </figcaption>
     </figure>

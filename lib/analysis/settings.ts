@@ -111,7 +111,10 @@ export function bandsBelow(edges: readonly number[], maxHz: number): FrequencyBa
 }
 
 /** The corner above which the floor is measured for a log whose usable range ends at maxHz. */
-export function floorCorner(settings: AnalysisSettings, maxHz: number): number {
+export function floorCorner(
+  settings: Pick<AnalysisSettings, "floorCornerHz">,
+  maxHz: number,
+): number {
   return Math.min(settings.floorCornerHz, 0.6 * maxHz);
 }
 

@@ -3,18 +3,34 @@
 import { createReadStream, statSync } from "node:fs";
 import { isDomainError } from "../errors";
 import { parseColumnMap } from "../logs/columns";
+import type { Baseline } from "../health/baseline";
+import { compareWithBaseline, type Assessment } from "../health/compare";
+import { MOTOR_POSITIONS } from "../health/motor-positions";
 import { analyzeLog } from "./analyze-log";
+import type { LogAnalysis } from "./types";
 
 export interface AnalysisJob {
   jobId: string;
   path: string;
   mapText?: string | null;
   maxBytes: number;
+  /** The airframe's active baseline as stored, to compare the result with here rather than on
+   * the server's event loop; absent when the airframe has none. */
+  baseline?: { id: string; json: string };
+}
+
+/** What a finished job reports beside the stored JSON, so the server need not parse it. */
+export interface AnalysisOutcome {
+  analysisJson: string;
+  sampleRateHz: number;
+  durationS: number;
+  /** The comparison with `job.baseline`, made from the analysis as stored (5 digits). */
+  compared?: { baselineId: string; assessment: Assessment };
 }
 
 export type WorkerMessage =
   | { type: "progress"; jobId: string; fraction: number }
-  | { type: "done"; jobId: string; analysisJson: string }
+  | ({ type: "done"; jobId: string } & AnalysisOutcome)
   | { type: "failed"; jobId: string; message: string; badInput: boolean };
 
 async function* withProgress(
@@ -41,10 +57,25 @@ export async function runJob(job: AnalysisJob, post: (m: WorkerMessage) => void)
       withProgress(job.path, (fraction) => post({ type: "progress", jobId: job.jobId, fraction })),
       { map, maxBytes: job.maxBytes },
     );
+    const analysisJson = JSON.stringify(analysis, compactNumbers);
     post({
       type: "done",
       jobId: job.jobId,
-      analysisJson: JSON.stringify(analysis, compactNumbers),
+      analysisJson,
+      sampleRateHz: analysis.sampleRateHz,
+      durationS: analysis.durationS,
+      ...(job.baseline
+        ? {
+            compared: {
+              baselineId: job.baseline.id,
+              assessment: compareWithBaseline(
+                JSON.parse(analysisJson) as LogAnalysis,
+                JSON.parse(job.baseline.json) as Baseline,
+                { motorPositions: MOTOR_POSITIONS },
+              ),
+            },
+          }
+        : {}),
     });
   } catch (e) {
     post({

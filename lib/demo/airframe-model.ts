@@ -1,5 +1,6 @@
 import { MOTOR_POSITIONS } from "../health/motor-positions";
 import type { Axis } from "../logs/columns";
+import { perAxis } from "./per-axis";
 
 /**
  * The invented "house frame" of the demo: a 5-inch-class X frame whose numbers were made up for
@@ -40,63 +41,36 @@ export interface AirframeModel {
   sensorNoise: number;
 }
 
+/** The house frame's modes: name, coupling (roll, pitch, yaw), frequency Hz, Q, gain. */
+const HOUSE_MODES: [string, Record<Axis, number>, number, number, number][] = [
+  ["roll bending", perAxis(1, 0.12, 0.05), 174, 14, 5],
+  ["pitch bending", perAxis(0.1, 1, 0.05), 236, 16, 6],
+  ["arm torsion", perAxis(0.08, 0.08, 1), 312, 12, 4],
+  ["second bending", perAxis(0.7, 0.7, 0.1), 455, 10, 2.5],
+];
+
+/** The house frame's motors: number, coupling (roll, pitch, yaw), 1× imbalance deg/s. */
+const HOUSE_MOTORS: [number, Record<Axis, number>, number][] = [
+  [1, perAxis(0.72, 0.68, 0.3), 2.4],
+  [2, perAxis(0.66, 0.74, 0.28), 2.8],
+  [3, perAxis(0.7, 0.7, 0.32), 2.2],
+  [4, perAxis(0.75, 0.65, 0.3), 2.6],
+];
+
 export const HOUSE_FRAME: AirframeModel = {
-  modes: [
-    {
-      name: "roll bending",
-      coupling: { roll: 1, pitch: 0.12, yaw: 0.05 },
-      freqHz: 174,
-      q: 14,
-      gain: 5,
-    },
-    {
-      name: "pitch bending",
-      coupling: { roll: 0.1, pitch: 1, yaw: 0.05 },
-      freqHz: 236,
-      q: 16,
-      gain: 6,
-    },
-    {
-      name: "arm torsion",
-      coupling: { roll: 0.08, pitch: 0.08, yaw: 1 },
-      freqHz: 312,
-      q: 12,
-      gain: 4,
-    },
-    {
-      name: "second bending",
-      coupling: { roll: 0.7, pitch: 0.7, yaw: 0.1 },
-      freqHz: 455,
-      q: 10,
-      gain: 2.5,
-    },
-  ],
-  motors: [
-    {
-      motor: 1,
-      position: MOTOR_POSITIONS[1] ?? "",
-      coupling: { roll: 0.72, pitch: 0.68, yaw: 0.3 },
-      imbalance: 2.4,
-    },
-    {
-      motor: 2,
-      position: MOTOR_POSITIONS[2] ?? "",
-      coupling: { roll: 0.66, pitch: 0.74, yaw: 0.28 },
-      imbalance: 2.8,
-    },
-    {
-      motor: 3,
-      position: MOTOR_POSITIONS[3] ?? "",
-      coupling: { roll: 0.7, pitch: 0.7, yaw: 0.32 },
-      imbalance: 2.2,
-    },
-    {
-      motor: 4,
-      position: MOTOR_POSITIONS[4] ?? "",
-      coupling: { roll: 0.75, pitch: 0.65, yaw: 0.3 },
-      imbalance: 2.6,
-    },
-  ],
+  modes: HOUSE_MODES.map(([name, coupling, freqHz, q, gain]) => ({
+    name,
+    coupling,
+    freqHz,
+    q,
+    gain,
+  })),
+  motors: HOUSE_MOTORS.map(([motor, coupling, imbalance]) => ({
+    motor,
+    position: MOTOR_POSITIONS[motor] ?? "",
+    coupling,
+    imbalance,
+  })),
   maxRpm: 36000,
   blades: 3,
   order2: 1.0,

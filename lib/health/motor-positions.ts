@@ -13,6 +13,11 @@ export const MOTOR_POSITIONS: Readonly<Record<number, string>> = {
 
 /** "motor 3 (rear-right)": the position name a motor has on an airframe. */
 export function motorPositionName(motor: number): string {
-  const where = MOTOR_POSITIONS[motor];
+  return motorNamed(motor, MOTOR_POSITIONS);
+}
+
+/** "motor 3 (rear-right)" with the given position names, "motor 3" when it has none. */
+export function motorNamed(motor: number, positions: Readonly<Record<number, string>>): string {
+  const where = positions[motor];
   return where ? `motor ${motor} (${where})` : `motor ${motor}`;
 }

@@ -10,14 +10,12 @@
  * 6 / 12 / 23 % less stiffness (f ∝ √(k/m)). These defaults were checked on the demo scenarios.
  */
 
-export type Status = "ok" | "watch" | "inspect" | "ground";
-export const STATUS_ORDER: readonly Status[] = ["ok", "watch", "inspect", "ground"];
+/** Health, from best to worst. */
+export const STATUS_ORDER = ["ok", "watch", "inspect", "ground"] as const;
+export type Status = (typeof STATUS_ORDER)[number];
 
-export interface StepThresholds {
-  watch: number;
-  inspect: number;
-  ground: number;
-}
+/** The magnitude at which a finding reaches each step above ok (its unit is the threshold's). */
+export type StepThresholds = Record<Exclude<Status, "ok">, number>;
 
 export interface HealthThresholds {
   /** Level rise above the matched baseline, dB: band-rise, new-peak, motor-order, floor-rise. */

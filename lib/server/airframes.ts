@@ -2,7 +2,7 @@ import "server-only";
 import { ConflictError, NotFoundError } from "@/lib/errors";
 import type { Actor } from "@/lib/roles";
 import type { AirframeInput, AirframeState } from "@/lib/validations/airframe";
-import { audit } from "./audit";
+import { audit, writeAudited } from "./audit";
 import { db, type Tx } from "./db";
 import { assertRole } from "./authorize";
 
@@ -34,11 +34,8 @@ export async function createAirframe(actor: Actor, input: AirframeInput) {
     where: { teamId: actor.teamId, name: input.name },
   });
   if (existing) throw new ConflictError(`There is already an airframe named "${input.name}".`);
-  return db.$transaction(async (tx) => {
-    const a = await tx.airframe.create({ data: { ...input, teamId: actor.teamId } });
-    await audit(tx, actor, "create", "airframe", a.id, a.name);
-    return a;
-  });
+  const create = (tx: Tx) => tx.airframe.create({ data: { ...input, teamId: actor.teamId } });
+  return writeAudited(actor, ["create", "airframe"], create, (a) => a.name);
 }
 
 /** Ground an airframe or return it to service (its `state`, not its health `status`). */
@@ -78,9 +75,6 @@ export async function settleAirframe(
 export async function setAirframeRetired(actor: Actor, airframeId: string, retired: boolean) {
   assertRole(actor, "tech");
   const a = await airframeOfTeam(actor, airframeId);
-  return db.$transaction(async (tx) => {
-    const updated = await tx.airframe.update({ where: { id: a.id }, data: { retired } });
-    await audit(tx, actor, retired ? "retire" : "reinstate", "airframe", a.id, a.name);
-    return updated;
-  });
+  const update = (tx: Tx) => tx.airframe.update({ where: { id: a.id }, data: { retired } });
+  return writeAudited(actor, [retired ? "retire" : "reinstate", "airframe"], update, (u) => u.name);
 }

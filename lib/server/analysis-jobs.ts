@@ -1,10 +1,13 @@
 import "server-only";
 import type { LogAnalysis } from "@/lib/analysis/types";
 import type { Baseline } from "@/lib/health/baseline";
+import type { AnalysisOutcome } from "@/lib/analysis/worker";
+import { compareWithBaseline } from "@/lib/health/compare";
+import { MOTOR_POSITIONS } from "@/lib/health/motor-positions";
 import { analysisPool } from "./analysis-pool";
 import { storeAssessment } from "./assessments";
 import { storedFileOf } from "./data-folder";
-import { db } from "./db";
+import { db, type Tx } from "./db";
 import { maxUploadBytes } from "./limits";
 import { isDiskFull } from "./storage-errors";
 
@@ -72,16 +75,18 @@ export async function analysesSettled(): Promise<void> {
 async function run(logId: string): Promise<void> {
   const log = await db.flightLog.findUnique({ where: { id: logId } });
   if (!log) return;
+  const baseline = log.airframeId ? await activeBaseline(db, log.airframeId) : null;
   const result = await analysisPool.run(
     {
       jobId: logId,
       path: storedFileOf(log.storedPath),
       mapText: log.mapText,
       maxBytes: maxUploadBytes(),
+      ...(baseline ? { baseline: { id: baseline.id, json: baseline.json } } : {}),
     },
     (f) => progress.set(logId, f),
   );
-  if (!result.ok || !result.analysisJson) {
+  if (!result.ok) {
     const error = result.badInput
       ? result.message
       : `analysis failed: ${result.message ?? "unknown error"}`;
@@ -91,9 +96,24 @@ async function run(logId: string): Promise<void> {
     if (!result.badInput) console.error(`analysis of log ${logId} failed`, result.message);
     return;
   }
-  const analysisJson = result.analysisJson;
-  const analysis = JSON.parse(analysisJson) as LogAnalysis;
-  await withRetries(logId, () => storeResult(logId, log.airframeId, analysisJson, analysis));
+  await withRetries(logId, () => storeResult(logId, log.airframeId, result));
+}
+
+/** The airframe's active baseline (the newest, should there be two). */
+function activeBaseline(tx: Tx, airframeId: string) {
+  return tx.baseline.findFirst({
+    where: { airframeId, active: true },
+    orderBy: { createdAt: "desc" },
+  });
+}
+
+/** The id alone: the stored JSON is large and needed only when the worker compared with another. */
+function activeBaselineId(tx: Tx, airframeId: string) {
+  return tx.baseline.findFirst({
+    where: { airframeId, active: true },
+    orderBy: { createdAt: "desc" },
+    select: { id: true },
+  });
 }
 
 /** Waits before each new try of a result write that failed (a full disk, a busy database). */
@@ -132,9 +152,9 @@ async function withRetries(logId: string, write: () => Promise<unknown>): Promis
 async function storeResult(
   logId: string,
   airframeId: string | null,
-  analysisJson: string,
-  analysis: LogAnalysis,
+  outcome: AnalysisOutcome,
 ): Promise<void> {
+  const { analysisJson } = outcome;
   await db.$transaction(async (tx) => {
     await tx.analysis.upsert({
       where: { logId },
@@ -146,24 +166,27 @@ async function storeResult(
       data: {
         status: "analysed",
         error: null,
-        sampleRateHz: analysis.sampleRateHz,
-        durationS: analysis.durationS,
+        sampleRateHz: outcome.sampleRateHz,
+        durationS: outcome.durationS,
       },
     });
-    if (airframeId) {
-      const baseline = await tx.baseline.findFirst({
-        where: { airframeId, active: true },
-        orderBy: { createdAt: "desc" },
-      });
-      if (baseline)
-        await storeAssessment(
-          tx,
-          logId,
-          analysis,
-          baseline.id,
-          JSON.parse(baseline.json) as Baseline,
-        );
+    if (!airframeId) return;
+    const active = await activeBaselineId(tx, airframeId);
+    if (!active) return;
+    if (outcome.compared?.baselineId === active.id) {
+      await storeAssessment(tx, logId, outcome.compared.assessment, active.id);
+      return;
     }
+    // The worker compared with the baseline that was active when the job started (or with none);
+    // another has been set meanwhile, so the comparison is made here with that one.
+    const baseline = await activeBaseline(tx, airframeId);
+    if (!baseline) return;
+    const compared = compareWithBaseline(
+      JSON.parse(analysisJson) as LogAnalysis,
+      JSON.parse(baseline.json) as Baseline,
+      { motorPositions: MOTOR_POSITIONS },
+    );
+    await storeAssessment(tx, logId, compared, baseline.id);
   });
 }
 

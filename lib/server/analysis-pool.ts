@@ -3,7 +3,12 @@ import { existsSync } from "node:fs";
 import { availableParallelism } from "node:os";
 import { join } from "node:path";
 import { Worker } from "node:worker_threads";
-import { runJob, type AnalysisJob, type WorkerMessage } from "@/lib/analysis/worker";
+import {
+  runJob,
+  type AnalysisJob,
+  type AnalysisOutcome,
+  type WorkerMessage,
+} from "@/lib/analysis/worker";
 
 /**
  * A pool of worker threads for log analysis, sized to the machine (one thread per core but one,
@@ -12,12 +17,8 @@ import { runJob, type AnalysisJob, type WorkerMessage } from "@/lib/analysis/wor
  * restart picks them up again (see analysis-jobs.ts).
  */
 
-export interface JobResult {
-  ok: boolean;
-  analysisJson?: string;
-  message?: string;
-  badInput?: boolean;
-}
+export type JobResult =
+  ({ ok: true } & AnalysisOutcome) | { ok: false; message: string; badInput: boolean };
 
 interface Pending {
   job: AnalysisJob;
@@ -74,11 +75,12 @@ class AnalysisPool {
       p.onProgress(m.fraction);
       return false;
     }
-    p.resolve(
-      m.type === "done"
-        ? { ok: true, analysisJson: m.analysisJson }
-        : { ok: false, message: m.message, badInput: m.badInput },
-    );
+    if (m.type === "done") {
+      const { type: _type, jobId: _jobId, ...outcome } = m;
+      p.resolve({ ok: true, ...outcome });
+    } else {
+      p.resolve({ ok: false, message: m.message, badInput: m.badInput });
+    }
     return true;
   }
 
@@ -112,7 +114,8 @@ class AnalysisPool {
   }
 }
 
-function poolSize(): number {
+/** Worker threads for analysis (HEATCHECK_WORKERS, default cores − 1); 0 means inline. */
+export function poolSize(): number {
   const configured = process.env.HEATCHECK_WORKERS;
   if (configured !== undefined && /^\d+$/.test(configured)) return Number(configured);
   return Math.max(1, availableParallelism() - 1);

@@ -1,6 +1,8 @@
 import "server-only";
 import { InputError } from "@/lib/errors";
 import { buildBaseline, type Baseline } from "@/lib/health/baseline";
+import { compareWithBaseline } from "@/lib/health/compare";
+import { MOTOR_POSITIONS } from "@/lib/health/motor-positions";
 import { actorRef, type Actor } from "@/lib/roles";
 import { airframeOfTeam } from "./airframes";
 import { storeAssessment } from "./assessments";
@@ -61,8 +63,11 @@ export async function setBaseline(
       include: { analysis: true },
     });
     for (const l of later) {
-      if (l.analysis)
-        await storeAssessment(tx, l.id, decodeAnalysis(l.analysis.json), created.id, baseline);
+      if (!l.analysis) continue;
+      const compared = compareWithBaseline(decodeAnalysis(l.analysis.json), baseline, {
+        motorPositions: MOTOR_POSITIONS,
+      });
+      await storeAssessment(tx, l.id, compared, created.id);
     }
     await audit(
       tx,

@@ -1,8 +1,8 @@
 import "server-only";
 import { InputError, NotFoundError } from "@/lib/errors";
 import type { Actor } from "@/lib/roles";
-import { audit } from "./audit";
-import { db } from "./db";
+import { audit, writeAudited } from "./audit";
+import { db, type Tx } from "./db";
 import { assertRole } from "./authorize";
 
 export async function listEvents(actor: Actor) {
@@ -33,11 +33,8 @@ export async function createEvent(
   input: { name: string; venue: string; startsAt: Date },
 ) {
   assertRole(actor, "tech");
-  return db.$transaction(async (tx) => {
-    const e = await tx.event.create({ data: { ...input, teamId: actor.teamId } });
-    await audit(tx, actor, "create event", "event", e.id, e.name);
-    return e;
-  });
+  const create = (tx: Tx) => tx.event.create({ data: { ...input, teamId: actor.teamId } });
+  return writeAudited(actor, ["create event", "event"], create, (e) => e.name);
 }
 
 export async function createHeat(
@@ -47,11 +44,8 @@ export async function createHeat(
   assertRole(actor, "tech");
   const event = await db.event.findFirst({ where: { id: input.eventId, teamId: actor.teamId } });
   if (!event) throw new NotFoundError("That event");
-  return db.$transaction(async (tx) => {
-    const h = await tx.heat.create({ data: { ...input, teamId: actor.teamId } });
-    await audit(tx, actor, "create heat", "heat", h.id, `${event.name} ${h.name}`);
-    return h;
-  });
+  const create = (tx: Tx) => tx.heat.create({ data: { ...input, teamId: actor.teamId } });
+  return writeAudited(actor, ["create heat", "heat"], create, (h) => `${event.name} ${h.name}`);
 }
 
 /** Sets which airframes fly in a heat (replacing the previous list). */

@@ -2,7 +2,6 @@ import "server-only";
 import { createHash, randomUUID, type Hash } from "node:crypto";
 import { open, rename, rm, type FileHandle } from "node:fs/promises";
 import { join } from "node:path";
-import { DEFAULT_ANALYSIS } from "@/lib/analysis/settings";
 import {
   InputError,
   InsufficientStorageError,
@@ -10,9 +9,8 @@ import {
   LogFormatError,
 } from "@/lib/errors";
 import { parseColumnMap } from "@/lib/logs/columns";
-import { formatBytes, readLog, type LogSink, type ReadSummary } from "@/lib/logs/read-log";
+import { formatBytes, type ReadSummary } from "@/lib/logs/read-log";
 import { matchAirframe } from "@/lib/logs/sniff";
-import { defaultNperseg } from "@/lib/signal/welch";
 import type { Actor } from "@/lib/roles";
 import { enqueueAnalysis } from "./analysis-jobs";
 import { audit } from "./audit";
@@ -21,6 +19,7 @@ import { assertRole } from "./authorize";
 import { INCOMING_PREFIX, PRIVATE_FILE_MODE, ensurePrivateDir, storedPathOf } from "./data-folder";
 import { maxUploadBytes, uploadDir } from "./limits";
 import { isDiskFull } from "./storage-errors";
+import { checkUploadStream } from "./upload-checker";
 import { takeUploadSlot } from "./upload-slots";
 
 export interface IngestRequest {
@@ -68,18 +67,18 @@ export async function ingestLog(actor: Actor, req: IngestRequest): Promise<Inges
 
 async function ingest(actor: Actor, req: IngestRequest): Promise<IngestResult> {
   const mapText = req.mapText?.trim() || undefined;
-  const map = mapText ? parseColumnMap(mapText) : undefined;
+  // Parsed here first, so a bad map is refused (400, naming the key) before any byte is stored.
+  if (mapText) parseColumnMap(mapText);
   const teamDir = join(uploadDir(), actor.teamId);
   const tmp = join(teamDir, `${INCOMING_PREFIX}${randomUUID()}.part`);
   const limit = maxUploadBytes();
   const spool = await Spool.create(teamDir, tmp).catch(rethrowStorage);
   let stored: string | null = null;
   try {
-    const check = new UploadCheck();
     const bytes = spool.tee(req.body, limit);
     let summary: ReadSummary;
     try {
-      summary = await readLog(bytes, check, { map, maxBytes: limit });
+      summary = await checkUploadStream(bytes, { mapText, maxBytes: limit });
     } catch (e) {
       // The reader stopped early: end the tee too, so the request's stream is released (and can
       // be drained by the multipart reader) instead of staying attached to a suspended loop.
@@ -87,7 +86,6 @@ async function ingest(actor: Actor, req: IngestRequest): Promise<IngestResult> {
       throw spool.failure ?? e;
     }
     await spool.close().catch(rethrowStorage);
-    check.requireOneSegment(summary);
     const hash = spool.digest();
     const flownAt = parseFlownAt(summary.info.metadata.flown_at);
     const existing = await findExisting(actor, hash);
@@ -261,34 +259,6 @@ class Spool {
       await this.fh.close().catch(() => undefined);
     }
     await rm(this.path, { force: true }).catch(() => undefined);
-  }
-}
-
-/**
- * What the analysis needs beyond a readable file, checked at upload: at least one analysis
- * segment in one stretch without a gap (the analyser's default segment length at this rate).
- */
-class UploadCheck implements LogSink {
-  private rate = 0;
-  private run = 0;
-  private longest = 0;
-  begin(info: { sampleRateHz: number }): void {
-    this.rate = info.sampleRateHz;
-  }
-  block(block: { length: number }): void {
-    this.run += block.length;
-    if (this.run > this.longest) this.longest = this.run;
-  }
-  gap(): void {
-    this.run = 0;
-  }
-  requireOneSegment(summary: ReadSummary): void {
-    const nperseg = DEFAULT_ANALYSIS.nperseg ?? defaultNperseg(this.rate);
-    if (this.longest >= nperseg) return;
-    const stretch = summary.gaps.length > 0 ? " in one stretch without a gap" : "";
-    throw new LogFormatError(
-      `the log has ${summary.samples} samples at ${Math.round(this.rate)} Hz; one analysis segment needs ${nperseg} samples (${(nperseg / this.rate).toFixed(2)} s)${stretch}`,
-    );
   }
 }
 

@@ -2,8 +2,11 @@ import { mkdirSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { chromium, type Browser, type BrowserContext, type Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { openSqlite } from "@/lib/archive/sqlite-file";
 import { demoCsv } from "@/lib/demo/demo-csv";
 import { startApp, type AppServer } from "../support/app-server";
+import { axeAtWidths, describeFindings, type AxeFinding } from "./axe";
+import { markActions, ringShown, tabThrough, unringedActions } from "./keyboard";
 
 // The built app in Debian's chromium, driven by playwright-core, against the seeded demo team.
 // Screenshots of each main screen land in test/screenshots/ (git-ignored) for a person to look at.
@@ -47,6 +50,25 @@ async function airframeUrl(page: Page, name: string): Promise<string> {
     .first()
     .getAttribute("href");
   return `${app.url}${href ?? ""}`;
+}
+
+// The same flight written the way another logger might (ms, rad/s, throttle in percent): an
+// upload of it needs a column map.
+function foreignLog(seed: number): string {
+  const rows = demoCsv(
+    { seed, durationS: 12, sampleRateHz: 2000, airframeSeed: 7 },
+    { airframe: "HV-08" },
+  )
+    .trim()
+    .split("\n")
+    .filter((l) => !l.startsWith("#"))
+    .slice(1)
+    .map((l) => {
+      const [t, r, p, y, thr] = l.split(",").map(Number);
+      const rad = (v: number | undefined) => (((v ?? 0) * Math.PI) / 180).toFixed(6);
+      return `${((t ?? 0) / 1000).toFixed(3)},${rad(r)},${rad(p)},${rad(y)},${((thr ?? 0) * 100).toFixed(2)}`;
+    });
+  return ["Time (ms),Gyro X (rad/s),Gyro Y (rad/s),Gyro Z (rad/s),Thr %", ...rows].join("\n");
 }
 
 beforeAll(async () => {
@@ -171,7 +193,7 @@ describe("the crew at work (owner)", () => {
     await page.setViewportSize({ width: 1440, height: 900 });
   });
 
-  it("screenshots of the queue, an airframe with trends, the fleet's design view and a log at 390, 1024 and 1366 px", async () => {
+  it("screenshots of the queue, an airframe with trends, the fleet's design view, a log, upload and parts at 390, 1024 and 1366 px", async () => {
     const airframe = await airframeUrl(page, "HV-03");
     await page.goto(airframe);
     const logHref = await page.locator("a:has-text('Open the latest log')").getAttribute("href");
@@ -180,6 +202,8 @@ describe("the crew at work (owner)", () => {
       airframe,
       fleet: `${app.url}/fleet`,
       log: `${app.url}${logHref ?? ""}`,
+      upload: `${app.url}/upload`,
+      parts: `${app.url}/parts`,
     };
     for (const width of [390, 1024, 1366]) {
       await page.setViewportSize({ width, height: 900 });
@@ -254,26 +278,8 @@ describe("the crew at work (owner)", () => {
   });
 
   it("a log with foreign headers gets a proposed column map, saved as an import profile", async () => {
-    // Same flight, written the way another logger might: ms, rad/s, throttle in percent.
-    const lines = demoCsv(
-      { seed: 904, durationS: 12, sampleRateHz: 2000, airframeSeed: 7 },
-      { airframe: "HV-08" },
-    )
-      .trim()
-      .split("\n");
-    const rows = lines
-      .filter((l) => !l.startsWith("#"))
-      .slice(1)
-      .map((l) => {
-        const [t, r, p, y, thr] = l.split(",").map(Number);
-        const rad = (v: number | undefined) => (((v ?? 0) * Math.PI) / 180).toFixed(6);
-        return `${((t ?? 0) / 1000).toFixed(3)},${rad(r)},${rad(p)},${rad(y)},${((thr ?? 0) * 100).toFixed(2)}`;
-      });
     const file = join(app.dataDir, "HV-08 other logger.csv");
-    writeFileSync(
-      file,
-      ["Time (ms),Gyro X (rad/s),Gyro Y (rad/s),Gyro Z (rad/s),Thr %", ...rows].join("\n"),
-    );
+    writeFileSync(file, foreignLog(904));
     await page.goto(`${app.url}/upload`);
     await page.setInputFiles("[data-testid=file-input]", [file]);
     await page.waitForSelector("[data-testid=map-step]");
@@ -507,4 +513,139 @@ describe("a viewer", () => {
       .toMatch(/Password changed/);
     await context.close();
   });
+});
+
+describe("keyboard", () => {
+  let page: Page;
+  let context: BrowserContext;
+  beforeAll(async () => {
+    ({ context, page } = await signedIn("tech@heatcheck.test", "pitwall-tech-2026", 1366));
+  });
+  afterAll(async () => context.close());
+
+  it("Tab reaches every action of the queue in order, each with a visible focus ring", async () => {
+    await page.goto(`${app.url}/`);
+    await page.waitForSelector("[data-testid=queue] > li");
+    const actions = await markActions(page);
+    // The nav, sign-out, the filter chips, print, and one link per airframe in the queue.
+    expect(actions.length).toBeGreaterThanOrEqual(6 + 1 + 2 + 9);
+    const stops = await tabThrough(page, actions.length - 1, actions.length + 5);
+    expect(stops.map((s) => s.index)).toEqual(actions.map((_, i) => i));
+    expect(stops.filter((s) => !ringShown(s))).toEqual([]);
+    // A person looks at the ring: focus on the first airframe's link.
+    await page.focus("[data-testid=queue] > li a");
+    await page.keyboard.press("Shift+Tab");
+    await page.keyboard.press("Tab");
+    await shot(page, "queue-focus");
+  });
+
+  it("the crash form opens and fills from the keyboard, each field ringed in turn", async () => {
+    await page.goto(await airframeUrl(page, "HV-02"));
+    await page.focus("[data-testid=crash-form] summary");
+    await page.keyboard.press("Enter");
+    expect(await page.locator("[data-testid=crash-form][open]").count()).toBe(1);
+    const actions = await markActions(page, "[data-testid=crash-form]");
+    // The summary, severity, the damage checkboxes, the note and the submit button at least.
+    expect(actions.length).toBeGreaterThanOrEqual(5);
+    expect(actions.at(-1)).toMatch(/crash/i);
+    const stops = await tabThrough(page, actions.length - 1, actions.length + 20);
+    expect(stops.map((s) => s.index)).toEqual(actions.map((_, i) => i).slice(1));
+    expect(stops.filter((s) => !ringShown(s))).toEqual([]);
+    await page.setViewportSize({ width: 390, height: 844 });
+    await page.locator("[data-testid=crash-form] select[name=severity]").focus();
+    await page.keyboard.press("Shift+Tab");
+    await page.keyboard.press("Tab");
+    await page
+      .locator("[data-testid=crash-form]")
+      .screenshot({ path: join(SHOTS, "crash-form-focus-phone.png") });
+    await page.setViewportSize({ width: 1366, height: 900 });
+  });
+});
+
+// Last, because it removes a member and breaks one stored row to reach the welcome and error screens.
+describe("accessibility: axe-core finds nothing on any screen, at 1366 and 390 px", () => {
+  it("every screen and every upload step, and every action on them shows a focus ring", async () => {
+    const found: AxeFinding[] = [];
+    // And on each screen, every action draws its focus ring.
+    const unringed: string[] = [];
+    const visit = async (page: Page, screen: string, url: string, ready?: string) => {
+      await page.goto(url);
+      if (ready) await page.waitForSelector(ready);
+      found.push(...(await axeAtWidths(page, screen)));
+      unringed.push(...(await unringedActions(page)).map((a) => `${screen}: ${a}`));
+    };
+
+    const out = await browser.newPage();
+    await visit(out, "sign-in", `${app.url}/signin`);
+    await visit(out, "not-found (signed out)", `${app.url}/no-such-screen`);
+    await out.close();
+
+    const { context, page } = await signedIn("owner@heatcheck.test", "pitwall-owner-2026");
+    await visit(page, "queue", `${app.url}/`, "[data-testid=queue] > li");
+    await visit(page, "fleet", `${app.url}/fleet`, "[data-testid=sparkline]");
+    const airframe = await airframeUrl(page, "HV-03");
+    await visit(page, "airframe", airframe, "[data-testid=trend-modes] svg path.recharts-curve");
+    const logHref = await page.locator("a:has-text('Open the latest log')").getAttribute("href");
+    await visit(
+      page,
+      "log",
+      `${app.url}${logHref ?? ""}`,
+      "[data-testid=motor-orders] svg path.recharts-curve",
+    );
+    await visit(page, "parts", `${app.url}/parts`);
+    await visit(page, "events", `${app.url}/events`);
+    await visit(page, "team", `${app.url}/team`);
+    await visit(page, "not-found (team)", `${app.url}/logs/not-a-log-id`);
+    await visit(page, "not-found (signed in)", `${app.url}/no-such-screen`);
+
+    // The upload steps: choose files, the column map, progress, the verdict.
+    await visit(page, "upload: choose files", `${app.url}/upload`);
+    const file = join(app.dataDir, "HV-08 axe logger.csv");
+    writeFileSync(file, foreignLog(906));
+    await page.setInputFiles("[data-testid=file-input]", [file]);
+    await page.waitForSelector("[data-testid=map-table]");
+    found.push(...(await axeAtWidths(page, "upload: column map")));
+    await page.click("[data-testid=import-all]");
+    await page.waitForSelector(
+      '[data-testid=upload-list] tr:is([data-phase="uploading"], [data-phase="analysing"], [data-phase="done"])',
+    );
+    found.push(...(await axeAtWidths(page, "upload: progress")));
+    await page.waitForSelector('[data-testid=upload-list] tr[data-phase="done"]', {
+      timeout: 60_000,
+    });
+    found.push(...(await axeAtWidths(page, "upload: verdict")));
+    for (const width of [1366, 390]) {
+      await page.setViewportSize({ width, height: 900 });
+      await shot(page, `upload-verdict-${width}`);
+    }
+    await page.setViewportSize({ width: 1440, height: 900 });
+
+    // The error screen: one stored analysis this version cannot read.
+    const db = openSqlite(join(app.dataDir, "heatcheck.db"));
+    const broken = db
+      .prepare(
+        "SELECT l.id AS id FROM FlightLog l JOIN Analysis a ON a.logId = l.id JOIN Airframe f ON f.id = l.airframeId WHERE f.name = 'HV-08' LIMIT 1",
+      )
+      .get();
+    db.prepare("UPDATE Analysis SET json = '{' WHERE logId = ?").run(broken?.id);
+    // The welcome screen: a person whose only membership has ended.
+    db.prepare(
+      "DELETE FROM Membership WHERE userId = (SELECT id FROM User WHERE email = 'pilot@heatcheck.test')",
+    ).run();
+    db.close();
+    await visit(page, "error", `${app.url}/logs/${String(broken?.id)}`, "[role=alert]");
+    await context.close();
+
+    const pilot = await browser.newPage();
+    await pilot.goto(`${app.url}/signin`);
+    await pilot.fill("input[name=email]", "pilot@heatcheck.test");
+    await pilot.fill("input[name=password]", "pitwall-pilot-2026");
+    await pilot.click("button[type=submit]");
+    await pilot.waitForURL(/\/welcome$/);
+    found.push(...(await axeAtWidths(pilot, "welcome (no team)")));
+    await pilot.close();
+
+    expect(describeFindings(found)).toBe("");
+    expect(unringed).toEqual([]);
+  }, 180_000);
 });

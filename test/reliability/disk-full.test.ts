@@ -112,11 +112,7 @@ afterAll(async () => {
 });
 
 describe.skipIf(!root)("disk full", () => {
-  // Skipped on the merged tree, where it fails every time: the upload's request stream ends with
-  // busboy's "Unexpected end of form" after about 10 MB have been written, before any write hits
-  // ENOSPC, so the answer is 422 instead of 507 (nothing is kept either way). Why the body ends
-  // there is not found yet; issue 11 stays open for it.
-  it.skip("an upload that does not fit: 507 with a sentence, the partial file removed, nothing recorded", async () => {
+  it("an upload that does not fit: 507 with a sentence, the partial file removed, nothing recorded", async () => {
     const before = logCount(app.dataDir);
     fill(6e6);
     const bytes = Buffer.from(

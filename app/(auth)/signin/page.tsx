@@ -15,7 +15,7 @@ export default async function SignInPage() {
         <SignInForm />
         {demo ? (
           <div className="demo-accounts">
-            <h3>Demo team</h3>
+            <h2>Demo team</h2>
             <p>
               {DEMO_ACCOUNTS.map((a) => (
                 <span key={a.email}>

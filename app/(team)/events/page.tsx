@@ -20,8 +20,8 @@ export default async function EventsPage() {
         Times in UTC. The inspection queue can show just the airframes of the next heat.
       </p>
       {events.map((e) => (
-        <section className="card" key={e.id} style={{ marginBottom: "1rem" }} data-testid="event">
-          <h2 style={{ marginTop: 0 }}>
+        <section className="card space-below" key={e.id} data-testid="event">
+          <h2>
             {e.name}{" "}
             <span className="muted small">
               {e.venue} · {WHEN.format(e.startsAt)}
@@ -45,7 +45,7 @@ export default async function EventsPage() {
                       <span className="muted">none yet</span>
                     )}
                     {canTech ? (
-                      <details className="action" style={{ marginTop: "0.4rem" }}>
+                      <details className="action space-above-xs">
                         <summary>Assign airframes</summary>
                         <ActionForm action={setHeatEntriesAction} submitLabel="Save heat">
                           <input type="hidden" name="heatId" value={h.id} />
@@ -71,7 +71,7 @@ export default async function EventsPage() {
             </tbody>
           </table>
           {canTech ? (
-            <details className="action" style={{ marginTop: "0.6rem" }}>
+            <details className="action space-above-sm">
               <summary>Add a heat</summary>
               <ActionForm action={createHeatAction} submitLabel="Add heat" className="row">
                 <input type="hidden" name="eventId" value={e.id} />

@@ -60,13 +60,8 @@ export default async function FleetPage() {
         </table>
       </div>
       {designs.map((d) => (
-        <section
-          className="card"
-          key={d.design}
-          style={{ marginTop: "1rem" }}
-          data-testid="design-view"
-        >
-          <h2 style={{ marginTop: 0 }}>{d.design}: the fleet as its own reference</h2>
+        <section className="card space-above" key={d.design} data-testid="design-view">
+          <h2>{d.design}: the fleet as its own reference</h2>
           <ModeStrips
             design={d.design}
             airframes={d.airframes}
@@ -91,7 +86,7 @@ export default async function FleetPage() {
         </section>
       ))}
       {roleAtLeast(actor.role, "tech") ? (
-        <details className="action" style={{ marginTop: "1rem" }}>
+        <details className="action space-above">
           <summary>Add an airframe</summary>
           <ActionForm action={createAirframeAction} submitLabel="Add airframe">
             <div className="row">

@@ -35,7 +35,7 @@ export default async function PartsPage({
       <h1>Parts</h1>
       {history ? (
         <section className="card" data-testid="part-history">
-          <h2 style={{ marginTop: 0 }}>
+          <h2>
             {history.part.kind} · {history.part.model} {history.part.label}
           </h2>
           <p className="muted">
@@ -76,8 +76,9 @@ export default async function PartsPage({
         </section>
       ) : null}
 
-      <h2>Stock by kind and model</h2>
-      <div className="card">
+      <h2 id="stock-heading">Stock by kind and model</h2>
+      {/* Focusable, so a keyboard can scroll it where the table is wider than a phone. */}
+      <div className="card" role="region" aria-labelledby="stock-heading" tabIndex={0}>
         <table data-testid="stock">
           <thead>
             <tr>
@@ -87,7 +88,9 @@ export default async function PartsPage({
               <th className="num">fitted</th>
               <th className="num">damaged</th>
               <th className="num">scrapped</th>
-              <th />
+              <th>
+                <span className="visually-hidden">stock warning</span>
+              </th>
             </tr>
           </thead>
           <tbody>
@@ -101,9 +104,7 @@ export default async function PartsPage({
                 <td className="num">{g.scrapped}</td>
                 <td>
                   {g.low ? (
-                    <strong style={{ color: "var(--inspect)" }}>
-                      low stock: fewer than 2 spares
-                    </strong>
+                    <strong className="low-stock">low stock: fewer than 2 spares</strong>
                   ) : null}
                 </td>
               </tr>
@@ -113,7 +114,7 @@ export default async function PartsPage({
       </div>
 
       {canTech ? (
-        <details className="action" style={{ marginTop: "1rem" }}>
+        <details className="action space-above">
           <summary>Add parts to stock</summary>
           <ActionForm action={addPartsAction} submitLabel="Add to stock">
             <div className="row">
@@ -161,7 +162,9 @@ export default async function PartsPage({
               <th>part</th>
               <th>status</th>
               <th>where</th>
-              <th />
+              <th>
+                <span className="visually-hidden">change status</span>
+              </th>
             </tr>
           </thead>
           <tbody>
@@ -183,7 +186,11 @@ export default async function PartsPage({
                   {canTech && p.status !== "installed" ? (
                     <ActionForm action={setPartStatusAction} submitLabel="Set" compact>
                       <input type="hidden" name="partId" value={p.id} />
-                      <select name="status" defaultValue={p.status}>
+                      <select
+                        name="status"
+                        defaultValue={p.status}
+                        aria-label={`status of ${p.kind} ${p.model} ${p.label}`}
+                      >
                         <option>stock</option>
                         <option>damaged</option>
                         <option>scrapped</option>

@@ -49,7 +49,7 @@ export default async function TeamPage() {
       {isOwner ? (
         <div className="grid two">
           <section className="card">
-            <h2 style={{ marginTop: 0 }}>Members and roles</h2>
+            <h2>Members and roles</h2>
             <p className="muted small">
               {ROLES.map((r) => `${r}: ${ROLE_DESCRIPTIONS[r]}`).join(" · ")}.
             </p>
@@ -128,7 +128,7 @@ export default async function TeamPage() {
             </details>
           </section>
           <section className="card">
-            <h2 style={{ marginTop: 0 }}>API tokens for scripted uploads</h2>
+            <h2>API tokens for scripted uploads</h2>
             <p className="muted small">
               A token belongs to the team: it may upload logs and read the queue and the airframes.
               Only a hash is stored. When its creator stops being an owner it pauses until another
@@ -178,9 +178,9 @@ export default async function TeamPage() {
           </section>
         </div>
       ) : null}
-      <div className="grid two" style={{ marginTop: "1rem" }}>
+      <div className="grid two space-above">
         <section className="card" data-testid="account">
-          <h2 style={{ marginTop: 0 }}>Your account</h2>
+          <h2>Your account</h2>
           {invitations.map((i) => (
             <div key={i.id} className="row" data-testid="invitation">
               <span>
@@ -202,7 +202,7 @@ export default async function TeamPage() {
               />
             </ActionForm>
           ) : null}
-          <details className="action" style={{ marginTop: "0.6rem" }}>
+          <details className="action space-above-sm">
             <summary>Change your password</summary>
             <ActionForm action={changePasswordAction} submitLabel="Change password">
               <TextField
@@ -229,7 +229,7 @@ export default async function TeamPage() {
           </details>
         </section>
         <section className="card">
-          <h2 style={{ marginTop: 0 }}>Import profiles</h2>
+          <h2>Import profiles</h2>
           {profiles.length === 0 ? (
             <p className="muted">
               None yet: the upload screen saves one when you map a logger&apos;s columns.
@@ -244,7 +244,7 @@ export default async function TeamPage() {
           </ul>
         </section>
         <section className="card">
-          <h2 style={{ marginTop: 0 }}>Recent changes</h2>
+          <h2>Recent changes</h2>
           <ul className="timeline">
             {audit.map((a) => (
               <li key={a.id}>

@@ -3,7 +3,7 @@ import { roleAtLeast } from "@/lib/roles";
 import { airframesInService } from "@/lib/server/airframes";
 import { requireMember } from "@/lib/server/guard";
 import { listProfiles } from "@/lib/server/team";
-import { Uploader } from "./uploader";
+import { Uploader } from "./_components/uploader";
 
 export const dynamic = "force-dynamic";
 

@@ -1,4 +1,5 @@
 import type { Axis } from "../../logs/columns";
+import { perAxis } from "../per-axis";
 import { mulberry32, type Random } from "../random";
 import type { TelemetrySpec } from "./telemetry";
 
@@ -102,115 +103,53 @@ export function bearingDefectOrders(balls: number, rho: number): [number, number
   return [(balls / 2) * (1 - rho), (balls / 2) * (1 + rho)];
 }
 
-const DESIGN_MODES: ModeSpec[] = [
-  {
-    name: "roll bending",
-    naturalHz: 168,
-    dampingRatio: 0.03,
-    shape: { roll: 1, pitch: 0.15, yaw: 0.05 },
-    gain: 5,
-    primary: true,
-  },
-  {
-    name: "pitch bending",
-    naturalHz: 224,
-    dampingRatio: 0.028,
-    shape: { roll: 0.1, pitch: 1, yaw: 0.05 },
-    gain: 6,
-    primary: true,
-  },
-  {
-    name: "arm torsion",
-    naturalHz: 296,
-    dampingRatio: 0.035,
-    shape: { roll: 0.08, pitch: 0.1, yaw: 1 },
-    gain: 4,
-    primary: true,
-  },
-  {
-    name: "diagonal bending",
-    naturalHz: 352,
-    dampingRatio: 0.04,
-    shape: { roll: 0.65, pitch: 0.6, yaw: 0.1 },
-    gain: 3,
-    primary: true,
-  },
-  {
-    name: "second bending",
-    naturalHz: 438,
-    dampingRatio: 0.045,
-    shape: { roll: 0.7, pitch: 0.5, yaw: 0.15 },
-    gain: 2.5,
-    primary: false,
-  },
-  {
-    name: "second torsion",
-    naturalHz: 612,
-    dampingRatio: 0.05,
-    shape: { roll: 0.1, pitch: 0.1, yaw: 0.8 },
-    gain: 2,
-    primary: false,
-  },
+/**
+ * The design's modes: name, natural frequency Hz, damping ratio, shape (roll, pitch, yaw), gain,
+ * primary.
+ */
+const DESIGN_MODE_ROWS: [string, number, number, Record<Axis, number>, number, boolean][] = [
+  ["roll bending", 168, 0.03, perAxis(1, 0.15, 0.05), 5, true],
+  ["pitch bending", 224, 0.028, perAxis(0.1, 1, 0.05), 6, true],
+  ["arm torsion", 296, 0.035, perAxis(0.08, 0.1, 1), 4, true],
+  ["diagonal bending", 352, 0.04, perAxis(0.65, 0.6, 0.1), 3, true],
+  ["second bending", 438, 0.045, perAxis(0.7, 0.5, 0.15), 2.5, false],
+  ["second torsion", 612, 0.05, perAxis(0.1, 0.1, 0.8), 2, false],
 ];
 
-const DESIGN_MOTORS: Omit<MotorSpec, "kvFactor">[] = [
-  {
-    motor: 1,
-    coupling: { roll: 0.72, pitch: 0.68, yaw: 0.3 },
-    mix: { roll: -1, pitch: 1, yaw: -1 },
-    order1: 2.4,
-    order2: 1.0,
-    bladePass: 1.6,
-    order4: 0.3,
-    bearingNoise: 0.6,
-    bearingTone: 0.12,
-    halfOrders: 0,
-    amDepth: 0,
-    amHz: 0,
-  },
-  {
-    motor: 2,
-    coupling: { roll: 0.66, pitch: 0.74, yaw: 0.28 },
-    mix: { roll: -1, pitch: -1, yaw: 1 },
-    order1: 2.8,
-    order2: 1.0,
-    bladePass: 1.6,
-    order4: 0.3,
-    bearingNoise: 0.6,
-    bearingTone: 0.12,
-    halfOrders: 0,
-    amDepth: 0,
-    amHz: 0,
-  },
-  {
-    motor: 3,
-    coupling: { roll: 0.7, pitch: 0.7, yaw: 0.32 },
-    mix: { roll: 1, pitch: 1, yaw: 1 },
-    order1: 2.2,
-    order2: 1.0,
-    bladePass: 1.6,
-    order4: 0.3,
-    bearingNoise: 0.6,
-    bearingTone: 0.12,
-    halfOrders: 0,
-    amDepth: 0,
-    amHz: 0,
-  },
-  {
-    motor: 4,
-    coupling: { roll: 0.75, pitch: 0.65, yaw: 0.3 },
-    mix: { roll: 1, pitch: -1, yaw: -1 },
-    order1: 2.6,
-    order2: 1.0,
-    bladePass: 1.6,
-    order4: 0.3,
-    bearingNoise: 0.6,
-    bearingTone: 0.12,
-    halfOrders: 0,
-    amDepth: 0,
-    amHz: 0,
-  },
+const DESIGN_MODES: ModeSpec[] = DESIGN_MODE_ROWS.map(
+  ([name, naturalHz, dampingRatio, shape, gain, primary]) => ({
+    name,
+    naturalHz,
+    dampingRatio,
+    shape,
+    gain,
+    primary,
+  }),
+);
+
+/** The design's motors: number, coupling (roll, pitch, yaw), mixer signs, 1× amplitude. */
+const DESIGN_MOTOR_ROWS: [number, Record<Axis, number>, Record<Axis, number>, number][] = [
+  [1, perAxis(0.72, 0.68, 0.3), perAxis(-1, 1, -1), 2.4],
+  [2, perAxis(0.66, 0.74, 0.28), perAxis(-1, -1, 1), 2.8],
+  [3, perAxis(0.7, 0.7, 0.32), perAxis(1, 1, 1), 2.2],
+  [4, perAxis(0.75, 0.65, 0.3), perAxis(1, -1, -1), 2.6],
 ];
+
+/** What every motor of the design shares: its other orders, a healthy bearing, no looseness. */
+const DESIGN_MOTOR_COMMON = {
+  order2: 1.0,
+  bladePass: 1.6,
+  order4: 0.3,
+  bearingNoise: 0.6,
+  bearingTone: 0.12,
+  halfOrders: 0,
+  amDepth: 0,
+  amHz: 0,
+};
+
+const DESIGN_MOTORS: Omit<MotorSpec, "kvFactor">[] = DESIGN_MOTOR_ROWS.map(
+  ([motor, coupling, mix, order1]) => ({ motor, coupling, mix, order1, ...DESIGN_MOTOR_COMMON }),
+);
 
 const HEADER_STYLES: HeaderStyle[] = ["canonical", "foreign-a", "foreign-b"];
 

@@ -17,32 +17,31 @@ interface Layout {
   rpmUnit: "rpm" | "hz";
 }
 
-const LAYOUTS: Record<HeaderStyle, Layout> = {
-  canonical: {
-    time: { header: "time_us", unit: "us" },
-    gyro: ["gyro_roll", "gyro_pitch", "gyro_yaw"],
-    gyroUnit: "deg/s",
-    throttle: { header: "throttle", unit: "fraction" },
-    rpm: (m) => `rpm_${m}`,
-    rpmUnit: "rpm",
-  },
-  "foreign-a": {
-    time: { header: "clock_ms", unit: "ms" },
-    gyro: ["rot_a", "rot_b", "rot_c"],
-    gyroUnit: "rad/s",
-    throttle: { header: "lever_pct", unit: "percent" },
-    rpm: (m) => `spin${m}_hz`,
-    rpmUnit: "hz",
-  },
-  "foreign-b": {
-    time: { header: "elapsed s", unit: "s" },
-    gyro: ["turn rate 1", "turn rate 2", "turn rate 3"],
-    gyroUnit: "rad/s",
-    throttle: { header: "pulse", unit: "pulse-us" },
-    rpm: (m) => `esc ${m} speed`,
-    rpmUnit: "rpm",
-  },
+// The layouts, one table per quantity (each row: canonical, foreign-a, foreign-b).
+const TIME: Record<HeaderStyle, Layout["time"]> = {
+  canonical: { header: "time_us", unit: "us" },
+  "foreign-a": { header: "clock_ms", unit: "ms" },
+  "foreign-b": { header: "elapsed s", unit: "s" },
 };
+const GYRO: Record<HeaderStyle, Pick<Layout, "gyro" | "gyroUnit">> = {
+  canonical: { gyro: ["gyro_roll", "gyro_pitch", "gyro_yaw"], gyroUnit: "deg/s" },
+  "foreign-a": { gyro: ["rot_a", "rot_b", "rot_c"], gyroUnit: "rad/s" },
+  "foreign-b": { gyro: ["turn rate 1", "turn rate 2", "turn rate 3"], gyroUnit: "rad/s" },
+};
+const THROTTLE: Record<HeaderStyle, Layout["throttle"]> = {
+  canonical: { header: "throttle", unit: "fraction" },
+  "foreign-a": { header: "lever_pct", unit: "percent" },
+  "foreign-b": { header: "pulse", unit: "pulse-us" },
+};
+const RPM: Record<HeaderStyle, Pick<Layout, "rpm" | "rpmUnit">> = {
+  canonical: { rpm: (m) => `rpm_${m}`, rpmUnit: "rpm" },
+  "foreign-a": { rpm: (m) => `spin${m}_hz`, rpmUnit: "hz" },
+  "foreign-b": { rpm: (m) => `esc ${m} speed`, rpmUnit: "rpm" },
+};
+
+function layoutOf(style: HeaderStyle): Layout {
+  return { time: TIME[style], ...GYRO[style], throttle: THROTTLE[style], ...RPM[style] };
+}
 
 export interface CsvMeta {
   airframe: string;
@@ -60,7 +59,7 @@ export interface WrittenLog {
 /** The map string for a layout, in the README's syntax. */
 export function columnMapFor(style: HeaderStyle, motors: readonly number[]): string | undefined {
   if (style === "canonical") return undefined;
-  const l = LAYOUTS[style];
+  const l = layoutOf(style);
   const keys = ["roll", "pitch", "yaw"];
   return [
     `time=${l.time.header}|${l.time.unit}`,
@@ -87,7 +86,7 @@ export function fixed(v: number, digits: number): string {
 }
 
 export function writeLogCsv(log: LoggedLog, style: HeaderStyle, meta: CsvMeta): WrittenLog {
-  const l = LAYOUTS[style];
+  const l = layoutOf(style);
   const head = [
     `# airframe: ${meta.airframe}`,
     `# flown_at: ${meta.flownAt}`,

@@ -79,6 +79,17 @@ function mainAxes(shape: Record<Axis, number>): Axis[] {
   return AXES.filter((a) => shape[a] >= 0.5 * max);
 }
 
+/** A loose part's own resonance, added to the frame's modes (never one a crack may take). */
+function rockingMode(
+  name: string,
+  naturalHz: number,
+  dampingRatio: number,
+  shape: Record<Axis, number>,
+  gain: number,
+): ModeSpec {
+  return { name, naturalHz, dampingRatio, shape, gain, primary: false };
+}
+
 function healthyTruth(): CaseTruth {
   return { kind: "healthy", severity: 0, description: "no damage", axes: [], freqsHz: [] };
 }
@@ -89,9 +100,24 @@ export function applyDamage(
   damage: DamageSpec | null,
 ): { airframe: SimAirframe; truth: CaseTruth } {
   const a = cloneAirframe(airframe);
-  if (!damage) return { airframe: a, truth: healthyTruth() };
+  const where = damage ? damageTo(a, damage) : null;
+  // The kind and severity are the spec's; where the damage went and how it shows, the case's own.
+  return {
+    airframe: a,
+    truth:
+      damage && where ? { kind: damage.kind, severity: damage.severity, ...where } : healthyTruth(),
+  };
+}
+
+type DamageWhere = Omit<CaseTruth, "kind" | "severity">;
+
+function onMotor(description: string, motor: number): DamageWhere {
+  return { description, axes: [], freqsHz: [], motor };
+}
+
+/** Applies the damage to `a` in place; null when there is nothing to damage (no motor). */
+function damageTo(a: SimAirframe, damage: DamageSpec): DamageWhere | null {
   const s = damage.severity - 1;
-  const sev = damage.severity;
   const rand = mulberry32(0xd00d + 104729 * damage.seed);
   const motorIndex = Math.floor(rand() * a.motors.length);
   const motor = a.motors[motorIndex];
@@ -118,16 +144,10 @@ export function applyDamage(
       }
       cracked.naturalHz *= 1 - drop;
       cracked.dampingRatio *= damping;
-      const truthAxes = oneSide ? [oneSide] : axes;
       return {
-        airframe: a,
-        truth: {
-          kind: "crack",
-          severity: sev,
-          description: `crack: ${mode.name} ${Math.round(drop * 100)} % lower${oneSide ? ` on ${oneSide} only` : ""}, damping ×${damping}`,
-          axes: truthAxes,
-          freqsHz: [cracked.naturalHz],
-        },
+        description: `crack: ${mode.name} ${Math.round(drop * 100)} % lower${oneSide ? ` on ${oneSide} only` : ""}, damping ×${damping}`,
+        axes: oneSide ? [oneSide] : axes,
+        freqsHz: [cracked.naturalHz],
       };
     }
     case "loose-frame": {
@@ -139,31 +159,19 @@ export function applyDamage(
       }
       const primary = a.modes.filter((m) => m.primary);
       return {
-        airframe: a,
-        truth: {
-          kind: "loose-frame",
-          severity: sev,
-          description: `loose frame screws: every mode ${Math.round(drop * 100)} % lower, damping ×${damping}`,
-          axes: [...AXES],
-          freqsHz: primary.map((m) => m.naturalHz),
-        },
+        description: `loose frame screws: every mode ${Math.round(drop * 100)} % lower, damping ×${damping}`,
+        axes: [...AXES],
+        freqsHz: primary.map((m) => m.naturalHz),
       };
     }
     case "bent-prop": {
       if (!motor) break;
       motor.order1 *= PROP_1X[s] ?? 4;
       motor.order2 *= PROP_2X[s] ?? 1.7;
-      return {
-        airframe: a,
-        truth: {
-          kind: "bent-prop",
-          severity: sev,
-          description: `bent prop on motor ${motor.motor}: 1× ×${PROP_1X[s]}, 2× ×${PROP_2X[s]}`,
-          axes: [],
-          freqsHz: [],
-          motor: motor.motor,
-        },
-      };
+      return onMotor(
+        `bent prop on motor ${motor.motor}: 1× ×${PROP_1X[s]}, 2× ×${PROP_2X[s]}`,
+        motor.motor,
+      );
     }
     case "loose-motor": {
       if (!motor) break;
@@ -172,33 +180,19 @@ export function applyDamage(
       motor.halfOrders = (LOOSE_MOTOR_HALF[s] ?? 0.6) * motor.order2;
       motor.amDepth = LOOSE_MOTOR_AM[s] ?? 0.35;
       motor.amHz = 6 + 10 * rand();
-      return {
-        airframe: a,
-        truth: {
-          kind: "loose-motor",
-          severity: sev,
-          description: `loose screws on motor ${motor.motor}: 1× ×${LOOSE_MOTOR_1X[s]}, 2× ×${LOOSE_MOTOR_2X[s]}, half orders and ${motor.amHz.toFixed(1)} Hz sidebands`,
-          axes: [],
-          freqsHz: [],
-          motor: motor.motor,
-        },
-      };
+      return onMotor(
+        `loose screws on motor ${motor.motor}: 1× ×${LOOSE_MOTOR_1X[s]}, 2× ×${LOOSE_MOTOR_2X[s]}, half orders and ${motor.amHz.toFixed(1)} Hz sidebands`,
+        motor.motor,
+      );
     }
     case "bearing": {
       if (!motor) break;
       motor.bearingNoise *= BEARING_NOISE[s] ?? 6;
       motor.bearingTone *= BEARING_TONE[s] ?? 8;
-      return {
-        airframe: a,
-        truth: {
-          kind: "bearing",
-          severity: sev,
-          description: `worn bearing on motor ${motor.motor}: broadband ×${BEARING_NOISE[s]}, defect orders ${a.bearingOrders.map((o) => o.toFixed(2)).join("× and ")}× ×${BEARING_TONE[s]}`,
-          axes: [],
-          freqsHz: [],
-          motor: motor.motor,
-        },
-      };
+      return onMotor(
+        `worn bearing on motor ${motor.motor}: broadband ×${BEARING_NOISE[s]}, defect orders ${a.bearingOrders.map((o) => o.toFixed(2)).join("× and ")}× ×${BEARING_TONE[s]}`,
+        motor.motor,
+      );
     }
     case "loose-stack": {
       const [lo, hi] = pick(rand, STACK_WINDOWS);
@@ -206,23 +200,11 @@ export function applyDamage(
       const axis: Axis = rand() < 0.5 ? "roll" : "pitch";
       const shape = { roll: 0.5, pitch: 0.5, yaw: 0.08 };
       shape[axis] = 1;
-      a.modes.push({
-        name: "stack rocking",
-        naturalHz: freq,
-        dampingRatio: 0.05,
-        shape,
-        gain: STACK_GAIN[s] ?? 2.5,
-        primary: false,
-      });
+      a.modes.push(rockingMode("stack rocking", freq, 0.05, shape, STACK_GAIN[s] ?? 2.5));
       return {
-        airframe: a,
-        truth: {
-          kind: "loose-stack",
-          severity: sev,
-          description: `loose flight-controller stack: new resonance at ${freq.toFixed(0)} Hz, mostly ${axis}`,
-          axes: [axis],
-          freqsHz: [freq],
-        },
+        description: `loose flight-controller stack: new resonance at ${freq.toFixed(0)} Hz, mostly ${axis}`,
+        axes: [axis],
+        freqsHz: [freq],
       };
     }
     case "loose-mount": {
@@ -231,25 +213,13 @@ export function applyDamage(
       const shape = { roll: 0.2, pitch: 0.2, yaw: 0.2 };
       shape[axis] = 1;
       const what = rand() < 0.5 ? "camera" : "antenna";
-      a.modes.push({
-        name: `${what} rocking`,
-        naturalHz: freq,
-        dampingRatio: 0.07,
-        shape,
-        gain: MOUNT_GAIN[s] ?? 3,
-        primary: false,
-      });
+      a.modes.push(rockingMode(`${what} rocking`, freq, 0.07, shape, MOUNT_GAIN[s] ?? 3));
       return {
-        airframe: a,
-        truth: {
-          kind: "loose-mount",
-          severity: sev,
-          description: `loose ${what}: new resonance at ${freq.toFixed(0)} Hz, mostly ${axis}`,
-          axes: [axis],
-          freqsHz: [freq],
-        },
+        description: `loose ${what}: new resonance at ${freq.toFixed(0)} Hz, mostly ${axis}`,
+        axes: [axis],
+        freqsHz: [freq],
       };
     }
   }
-  return { airframe: a, truth: healthyTruth() };
+  return null;
 }

@@ -44,22 +44,32 @@ export interface BiquadCoefficients {
   a2: number;
 }
 
+/**
+ * The cookbook's shared terms at ω = 2πf/fs: cos ω, a0 = 1 + α with α = sin ω / 2Q, and the
+ * normalised feedback coefficients a1 = −2 cos ω / a0, a2 = (1 − α) / a0 (the same for the
+ * low-pass and the notch; only the numerators differ).
+ */
+function cookbookPoles(freqHz: number, q: number, sampleRateHz: number) {
+  const w = (2 * Math.PI * freqHz) / sampleRateHz;
+  const alpha = Math.sin(w) / (2 * q);
+  const c = Math.cos(w);
+  const a0 = 1 + alpha;
+  return { c, a0, a1: (-2 * c) / a0, a2: (1 - alpha) / a0 };
+}
+
 /** Cookbook low-pass; q = 1/√2 is a second-order Butterworth section (−3 dB at the corner). */
 export function lowPassCoefficients(
   cornerHz: number,
   q: number,
   sampleRateHz: number,
 ): BiquadCoefficients {
-  const w = (2 * Math.PI * cornerHz) / sampleRateHz;
-  const alpha = Math.sin(w) / (2 * q);
-  const c = Math.cos(w);
-  const a0 = 1 + alpha;
+  const { c, a0, a1, a2 } = cookbookPoles(cornerHz, q, sampleRateHz);
   return {
     b0: (1 - c) / 2 / a0,
     b1: (1 - c) / a0,
     b2: (1 - c) / 2 / a0,
-    a1: (-2 * c) / a0,
-    a2: (1 - alpha) / a0,
+    a1,
+    a2,
   };
 }
 
@@ -69,11 +79,8 @@ export function notchCoefficients(
   q: number,
   sampleRateHz: number,
 ): BiquadCoefficients {
-  const w = (2 * Math.PI * centreHz) / sampleRateHz;
-  const alpha = Math.sin(w) / (2 * q);
-  const c = Math.cos(w);
-  const a0 = 1 + alpha;
-  return { b0: 1 / a0, b1: (-2 * c) / a0, b2: 1 / a0, a1: (-2 * c) / a0, a2: (1 - alpha) / a0 };
+  const { c, a0, a1, a2 } = cookbookPoles(centreHz, q, sampleRateHz);
+  return { b0: 1 / a0, b1: (-2 * c) / a0, b2: 1 / a0, a1, a2 };
 }
 
 /** |H(e^{jω})|² of a biquad at f Hz, evaluated from its coefficients. */
@@ -136,9 +143,8 @@ export class BiquadBank {
  * z = exp(s·Δt); zeros at z = ±1 keep the band-pass shape; the gain is set to 1 at fn.
  */
 export class ModalResonator {
-  private readonly a1: number;
-  private readonly a2: number;
-  private readonly g: number;
+  /** Feedback coefficients and the gain that makes the response 1 at fn. */
+  private readonly c: { a1: number; a2: number; g: number };
   private x1 = 0;
   private x2 = 0;
   private y1 = 0;
@@ -149,19 +155,20 @@ export class ModalResonator {
     const wn = 2 * Math.PI * naturalHz;
     const r = Math.exp(-dampingRatio * wn * dt);
     const theta = wn * Math.sqrt(Math.max(0, 1 - dampingRatio * dampingRatio)) * dt;
-    this.a1 = -2 * r * Math.cos(theta);
-    this.a2 = r * r;
+    const a1 = -2 * r * Math.cos(theta);
+    const a2 = r * r;
     // Unit gain at fn: evaluate (1 − z⁻²)/(1 + a1 z⁻¹ + a2 z⁻²) there and divide it out.
     const w = wn * dt;
     const nr = 1 - Math.cos(2 * w);
     const ni = Math.sin(2 * w);
-    const dr = 1 + this.a1 * Math.cos(w) + this.a2 * Math.cos(2 * w);
-    const di = -(this.a1 * Math.sin(w) + this.a2 * Math.sin(2 * w));
-    this.g = Math.sqrt((dr * dr + di * di) / (nr * nr + ni * ni));
+    const dr = 1 + a1 * Math.cos(w) + a2 * Math.cos(2 * w);
+    const di = -(a1 * Math.sin(w) + a2 * Math.sin(2 * w));
+    this.c = { a1, a2, g: Math.sqrt((dr * dr + di * di) / (nr * nr + ni * ni)) };
   }
 
   step(x: number): number {
-    const y = this.g * (x - this.x2) - this.a1 * this.y1 - this.a2 * this.y2;
+    const { a1, a2, g } = this.c;
+    const y = g * (x - this.x2) - a1 * this.y1 - a2 * this.y2;
     this.x2 = this.x1;
     this.x1 = x;
     this.y2 = this.y1;

@@ -19,44 +19,57 @@ export interface TelemetrySpec {
   dropouts: readonly (readonly [number, number])[];
 }
 
-export class EscTelemetry {
-  private readonly spec: TelemetrySpec;
-  private readonly rand: Random;
+/** The last delay + 1 samples: what went in `delaySamples` pushes ago. */
+class DelayLine {
   private readonly history: Float64Array;
-  private readonly delaySamples: number;
-  private readonly loopDt: number;
-  private written = 0;
-  private nextUpdateS = 0;
-  private held = 0;
-  private dropout = 0;
+  /** Samples pushed so far. */
+  pushed = 0;
 
-  constructor(spec: TelemetrySpec, loopRateHz: number, rand: Random) {
-    this.spec = spec;
-    this.rand = rand;
+  constructor(private readonly delaySamples: number) {
+    this.history = new Float64Array(delaySamples + 1);
+  }
+
+  /** Stores x and returns the sample `delaySamples` before it (the first sample until then). */
+  push(x: number): number {
+    const n = this.pushed++;
+    const len = this.history.length;
+    this.history[n % len] = x;
+    return n >= this.delaySamples
+      ? (this.history[(n - this.delaySamples) % len] ?? 0)
+      : (this.history[0] ?? 0);
+  }
+}
+
+export class EscTelemetry {
+  private readonly delay: DelayLine;
+  private readonly loopDt: number;
+  /** The reading held since the last update, when the next one is due, and the next dropout. */
+  private readonly state = { held: 0, nextUpdateS: 0, dropout: 0 };
+
+  constructor(
+    private readonly spec: TelemetrySpec,
+    loopRateHz: number,
+    private readonly rand: Random,
+  ) {
     this.loopDt = 1 / loopRateHz;
-    this.delaySamples = Math.max(0, Math.round(spec.delayS * loopRateHz));
-    this.history = new Float64Array(this.delaySamples + 1);
+    this.delay = new DelayLine(Math.max(0, Math.round(spec.delayS * loopRateHz)));
   }
 
   /** Feeds the motor's true rpm for loop sample n (time n/loopRate) and returns the logged reading. */
   step(trueRpm: number): number {
-    const n = this.written++;
-    const len = this.history.length;
-    this.history[n % len] = trueRpm;
-    const t = n * this.loopDt;
-    if (t + 1e-12 >= this.nextUpdateS) {
-      // Before the first reading has travelled the delay, the ESC reports the motor at rest.
-      const old =
-        n >= this.delaySamples
-          ? (this.history[(n - this.delaySamples) % len] ?? 0)
-          : (this.history[0] ?? 0);
+    const state = this.state;
+    const t = this.delay.pushed * this.loopDt;
+    // Before the first reading has travelled the delay, the ESC reports the motor at rest.
+    const old = this.delay.push(trueRpm);
+    // 1e-12 s: the running sum of 1/updateHz steps may round just past the sample it falls on.
+    if (t + 1e-12 >= state.nextUpdateS) {
       const noisy = old * (1 + this.spec.noiseFraction * gaussian(this.rand));
-      this.held = Math.max(0, Math.round(noisy / this.spec.stepRpm) * this.spec.stepRpm);
-      this.nextUpdateS += 1 / this.spec.updateHz;
+      state.held = Math.max(0, Math.round(noisy / this.spec.stepRpm) * this.spec.stepRpm);
+      state.nextUpdateS += 1 / this.spec.updateHz;
     }
     const drops = this.spec.dropouts;
-    while (this.dropout < drops.length && (drops[this.dropout]?.[1] ?? 0) <= t) this.dropout++;
-    const d = drops[this.dropout];
-    return d && t >= d[0] ? 0 : this.held;
+    while (state.dropout < drops.length && (drops[state.dropout]?.[1] ?? 0) <= t) state.dropout++;
+    const d = drops[state.dropout];
+    return d && t >= d[0] ? 0 : state.held;
   }
 }

@@ -7,7 +7,7 @@ import type { DamageClass } from "../fc-sim/damage";
  * This is the one place that maps the engine's finding kinds onto the simulator's damage classes;
  * when the engine gains a kind, add it here (the `satisfies` below makes the type checker ask).
  *
- * The mapping follows the advice each finding's sentence gives (lib/health/compare.ts): a mode
+ * The mapping follows the advice each finding's sentence gives (`ADVICE` in lib/health/detectors/advice.ts): a mode
  * that dropped points to a crack, several modes that dropped together to loose frame screws; a
  * new resonance to something loose (the stack, or a camera or antenna: one finding kind for both,
  * so either class counts); a band's level up to loose screws (or, above 600 Hz, a bearing); a

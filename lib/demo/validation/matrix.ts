@@ -2,7 +2,7 @@ import { analyzeLog, bytesSource } from "../../analysis/analyze-log";
 import type { LogAnalysis } from "../../analysis/types";
 import { compareAnalyses } from "../../cli/compare-logs";
 import type { Assessment } from "../../health/compare";
-import type { Status } from "../../health/thresholds";
+import { STATUS_ORDER, type Status } from "../../health/thresholds";
 import { parseColumnMap } from "../../logs/columns";
 import { fleetAirframe, type HeaderStyle, type SimAirframe } from "../fc-sim/airframe";
 import { writeLogCsv } from "../fc-sim/csv";
@@ -553,6 +553,11 @@ function table(header: string[], rows: string[][]): string {
 const frac = (x: [number, number] | null) => (x ? `${x[0]}/${x[1]}` : "–");
 
 /** The confusion tables as plain text. */
+/** How many cases ended at each status, in the tables' column order. */
+function statusCells(statuses: Record<Status, number>): string[] {
+  return STATUS_ORDER.map((x) => String(statuses[x]));
+}
+
 export function formatSummary(s: MatrixSummary, options: MatrixOptions): string {
   const out: string[] = [];
   out.push(
@@ -562,14 +567,11 @@ export function formatSummary(s: MatrixSummary, options: MatrixOptions): string 
   out.push("healthy variants (a false alarm is inspect or ground)");
   out.push(
     table(
-      ["variant", "n", "ok", "watch", "inspect", "ground", "false alarms"],
+      ["variant", "n", ...STATUS_ORDER, "false alarms"],
       s.healthy.map((h) => [
         h.variant,
         String(h.n),
-        String(h.statuses.ok),
-        String(h.statuses.watch),
-        String(h.statuses.inspect),
-        String(h.statuses.ground),
+        ...statusCells(h.statuses),
         String(h.falseAlarms),
       ]),
     ),
@@ -584,10 +586,7 @@ export function formatSummary(s: MatrixSummary, options: MatrixOptions): string 
         "class",
         "sev",
         "n",
-        "ok",
-        "watch",
-        "inspect",
-        "ground",
+        ...STATUS_ORDER,
         "miss",
         "class ok",
         "axis ok",
@@ -599,10 +598,7 @@ export function formatSummary(s: MatrixSummary, options: MatrixOptions): string 
         d.kind,
         String(d.severity),
         String(d.n),
-        String(d.statuses.ok),
-        String(d.statuses.watch),
-        String(d.statuses.inspect),
-        String(d.statuses.ground),
+        ...statusCells(d.statuses),
         String(d.misses),
         `${d.classRight}/${d.n}`,
         frac(d.axisRight),

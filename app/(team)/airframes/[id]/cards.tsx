@@ -14,9 +14,9 @@ export function AirframeHeader({ view }: AirframeHeaderProps) {
   const { airframe, latest, baseline } = view;
   const status = latest?.assessment?.status ?? "ok";
   return (
-    <div className="row" style={{ alignItems: "center" }}>
+    <div className="row align-center">
       <div>
-        <h1 style={{ marginBottom: 0 }}>{airframe.name}</h1>
+        <h1 className="page-title">{airframe.name}</h1>
         <div className="muted">
           {airframe.frameDesign}
           {airframe.serial ? ` · serial ${airframe.serial}` : ""} ·{" "}
@@ -34,13 +34,13 @@ export function AirframeHeader({ view }: AirframeHeaderProps) {
           </a>
         </div>
       </div>
-      <div style={{ textAlign: "right" }}>
+      <div className="verdict">
         {latest?.assessment ? (
           <StatusBadge status={status} />
         ) : (
           <span className="muted">no score yet</span>
         )}
-        <div style={{ fontSize: "2rem", fontWeight: 800 }} data-testid="airframe-score">
+        <div className="big-score" data-testid="airframe-score">
           {latest?.assessment?.score === null || !latest?.assessment
             ? "–"
             : Math.round(latest.assessment.score)}
@@ -64,7 +64,7 @@ export interface InstalledPartsCardProps {
 export function InstalledPartsCard({ parts }: InstalledPartsCardProps) {
   return (
     <section className="card">
-      <h2 style={{ marginTop: 0 }}>Installed parts</h2>
+      <h2>Installed parts</h2>
       <table data-testid="installed-parts">
         <thead>
           <tr>
@@ -88,7 +88,7 @@ export function InstalledPartsCard({ parts }: InstalledPartsCardProps) {
               <td className="num">
                 {p.life.flights} flt · {p.life.minutes.toFixed(0)} min
                 {p.life.fraction !== null ? (
-                  <strong style={{ color: p.life.fraction >= 1 ? "var(--ground)" : undefined }}>
+                  <strong className={p.life.fraction >= 1 ? "worn-out" : undefined}>
                     {" "}
                     · {Math.round(p.life.fraction * 100)} %
                   </strong>
@@ -110,7 +110,7 @@ export interface HistoryCardProps {
 export function HistoryCard({ timeline }: HistoryCardProps) {
   return (
     <section className="card">
-      <h2 style={{ marginTop: 0 }}>History</h2>
+      <h2>History</h2>
       <ul className="timeline" data-testid="timeline">
         {timeline.slice(0, 40).map((t, i) => (
           <li key={i}>

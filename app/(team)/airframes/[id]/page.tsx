@@ -97,7 +97,7 @@ export default async function AirframePage({
         heats={heats}
         analysed={view.logs.filter((l) => l.log.status === "analysed")}
       />
-      <div className="grid two" style={{ marginTop: "1rem" }}>
+      <div className="grid two space-above">
         <InstalledPartsCard parts={view.parts} />
         <HistoryCard timeline={view.timeline} />
       </div>

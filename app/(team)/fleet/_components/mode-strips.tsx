@@ -22,7 +22,7 @@ export function ModeStrips({ design, airframes, enough, strips }: ModeStripsProp
     return <p className="muted">No mode is shared by enough baselines of {design} yet.</p>;
   const height = strips.length * ROW + 24;
   return (
-    <figure style={{ margin: 0, maxWidth: 860 }}>
+    <figure className="chart mode-strips">
       <svg
         viewBox={`0 0 ${WIDTH} ${height}`}
         width="100%"

@@ -34,22 +34,22 @@ export default async function LogPage({
           <Link href="/fleet">← Fleet</Link>
         )}
       </p>
-      <div className="row" style={{ alignItems: "center" }}>
+      <div className="row align-center">
         <div>
-          <h1 style={{ marginBottom: 0, overflowWrap: "anywhere" }}>{log.fileName}</h1>
+          <h1 className="page-title">{log.fileName}</h1>
           <div className="muted">
             {airframe ? `${airframe.name} · ` : "no airframe · "}flown {WHEN.format(log.flownAt)}{" "}
             UTC · {log.status}
             {log.error ? `: ${log.error}` : ""}
           </div>
         </div>
-        <div style={{ textAlign: "right" }}>
+        <div className="verdict">
           {assessment ? (
             <StatusBadge status={assessment.status} />
           ) : (
             <span className="muted">not judged</span>
           )}
-          <div style={{ fontSize: "2rem", fontWeight: 800 }} data-testid="log-score">
+          <div className="big-score" data-testid="log-score">
             {assessment?.score === null || !assessment ? "–" : Math.round(assessment.score)}
             <span className="muted small"> / 100</span>
           </div>
@@ -67,8 +67,8 @@ export default async function LogPage({
         notJudged="This log was not judged against a baseline: set one from known-good logs of this airframe."
       />
 
-      <section className="card" style={{ marginTop: "1rem" }} data-testid="fleet-view">
-        <h2 style={{ marginTop: 0 }}>Against the fleet</h2>
+      <section className="card space-above" data-testid="fleet-view">
+        <h2>Against the fleet</h2>
         {view.fleet.airframes === 0 ? (
           <p className="muted">
             Fewer than three sister airframes of this design have a baseline: not enough to place
@@ -96,11 +96,17 @@ export default async function LogPage({
       <h2>Throttle map</h2>
       <ThrottleMapCard analysis={analysis} axis={axis} href={`/logs/${log.id}`} />
 
-      <h2>Motor orders</h2>
+      <h2 id="orders-heading">Motor orders</h2>
       {view.orders && view.orders.motors.length > 0 ? (
-        <div className="card" style={{ overflowX: "auto", marginBottom: "1rem" }}>
+        <div
+          className="card scroll-x space-below"
+          role="region"
+          aria-labelledby="orders-heading"
+          // Focusable, so a keyboard can scroll it where the table is wider than the screen.
+          tabIndex={0}
+        >
           <table data-testid="order-table">
-            <caption className="muted small" style={{ textAlign: "left" }}>
+            <caption className="muted small">
               Each motor&apos;s order spectrum over the log: level on the loudest axis, dB re 1
               (deg/s)², power-averaged over the throttle bands flown. The loudest motor of each
               order is in bold.
@@ -152,9 +158,9 @@ export default async function LogPage({
         ) : null}
       </div>
 
-      <div className="grid two" style={{ marginTop: "1rem" }}>
+      <div className="grid two space-above">
         <section className="card">
-          <h2 style={{ marginTop: 0 }}>Metadata</h2>
+          <h2>Metadata</h2>
           {metadata.length === 0 ? (
             <p className="muted">The file had no metadata lines.</p>
           ) : (
@@ -163,7 +169,7 @@ export default async function LogPage({
                 {metadata.map(([k, v]) => (
                   <tr key={k}>
                     <th scope="row">{k}</th>
-                    <td style={{ overflowWrap: "anywhere" }}>{v}</td>
+                    <td className="wrap-anywhere">{v}</td>
                   </tr>
                 ))}
               </tbody>
@@ -171,7 +177,7 @@ export default async function LogPage({
           )}
         </section>
         <section className="card">
-          <h2 style={{ marginTop: 0 }}>How it was read</h2>
+          <h2>How it was read</h2>
           {analysis ? (
             <ul className="small">
               <li>
@@ -184,7 +190,7 @@ export default async function LogPage({
               </li>
               {log.mapText ? (
                 <li>
-                  column map: <code style={{ overflowWrap: "anywhere" }}>{log.mapText}</code>
+                  column map: <code className="wrap-anywhere">{log.mapText}</code>
                 </li>
               ) : null}
               {analysis.guesses.map((g) => (

@@ -83,9 +83,7 @@ export function ColumnMapTable({
   return (
     <div className="map-table">
       <table data-testid="map-table">
-        <caption className="muted small" style={{ textAlign: "left" }}>
-          Columns of {fileName}
-        </caption>
+        <caption className="muted small">Columns of {fileName}</caption>
         <thead>
           <tr>
             <th scope="col">field</th>

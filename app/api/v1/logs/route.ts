@@ -26,5 +26,7 @@ export async function POST(request: Request) {
   // A refused upload may have been answered before its whole body was read: close the connection
   // rather than let a client reuse a socket whose request the server did not finish reading.
   if (response.status >= 400) response.headers.set("Connection", "close");
+  // proxy.ts skips this route (so the body streams uncut), so the API's no-store is set here.
+  response.headers.set("Cache-Control", "no-store");
   return response;
 }

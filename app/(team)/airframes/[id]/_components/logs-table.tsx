@@ -25,8 +25,8 @@ export interface LogsTableProps {
 /** Every log of the airframe with its verdict; techs can re-run an analysis from the stored original. */
 export function LogsTable({ airframeId, canTech, logs }: LogsTableProps) {
   return (
-    <section className="card" style={{ marginTop: "1rem" }}>
-      <h2 style={{ marginTop: 0 }}>Logs</h2>
+    <section className="card space-above">
+      <h2>Logs</h2>
       <table data-testid="logs">
         <thead>
           <tr>
@@ -35,7 +35,9 @@ export function LogsTable({ airframeId, canTech, logs }: LogsTableProps) {
             <th>rate</th>
             <th>status</th>
             <th className="num">score</th>
-            <th />
+            <th>
+              <span className="visually-hidden">re-run</span>
+            </th>
           </tr>
         </thead>
         <tbody>

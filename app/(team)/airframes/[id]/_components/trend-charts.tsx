@@ -49,7 +49,7 @@ function TrendChart({
 }) {
   const router = useRouter();
   return (
-    <div style={{ width: "100%", height: 250 }} data-testid={testId}>
+    <div className="chart-box trend" data-testid={testId}>
       <ResponsiveContainer>
         <LineChart
           data={rows}
@@ -125,7 +125,7 @@ export function TrendCharts({ rows, modes, events, thresholds }: TrendChartsProp
   return (
     <div className="grid two">
       <div className="card">
-        <h3 style={{ marginTop: 0 }}>Mode frequency, % from the baseline</h3>
+        <h3>Mode frequency, % from the baseline</h3>
         <TrendChart
           rows={rows}
           series={modes.map((m) => ({ key: `mode:${m}`, name: m }))}
@@ -136,7 +136,7 @@ export function TrendCharts({ rows, modes, events, thresholds }: TrendChartsProp
         />
       </div>
       <div className="card">
-        <h3 style={{ marginTop: 0 }}>Largest band rise at matched throttle, dB</h3>
+        <h3>Largest band rise at matched throttle, dB</h3>
         <TrendChart
           rows={rows}
           series={["roll", "pitch", "yaw"].map((a) => ({ key: `band:${a}`, name: a }))}

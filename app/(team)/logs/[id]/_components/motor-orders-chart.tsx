@@ -32,7 +32,7 @@ export function MotorOrdersChart({ motors }: MotorOrdersChartProps) {
     return row;
   });
   return (
-    <div style={{ width: "100%", height: 260 }} data-testid="motor-orders">
+    <div className="chart-box" data-testid="motor-orders">
       <ResponsiveContainer>
         <LineChart data={data} margin={{ top: 8, right: 16, bottom: 18, left: 4 }}>
           <CartesianGrid stroke="#e4dfd4" />

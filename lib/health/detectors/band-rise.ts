@@ -1,0 +1,93 @@
+import type { Axis } from "../../logs/columns";
+import { round, weightedMean } from "../../signal/stats";
+import type { Finding } from "../findings";
+import { ADVICE } from "./advice";
+import type { DetectorContext } from "./context";
+import { atThrottle, graded } from "./shared";
+
+/** A resonance that moved or appeared lifts its skirts too: it explains bands within ±40 % of it. */
+const SKIRT = { below: 0.6, above: 1.4 };
+/**
+ * A band starting above this share of the floor corner is the floor's: a floor rise explains it,
+ * and its advice is the bearings' and props'.
+ */
+const HIGH_BAND_CORNER_SHARE = 0.9;
+/** Segment-to-segment spread of a band level assumed when the baseline has none, dB. */
+const DEFAULT_SEGMENT_SPREAD_DB = 1;
+
+/**
+ * An analysis band's level at matched throttle, log against baseline (interpolated to each log
+ * band's mean throttle), beyond minSigma of its expected scatter: the segments' spread over the
+ * log's and the baseline's segment counts, and the baseline logs' spread. Run last: a band that a
+ * more specific finding already explains is not reported.
+ */
+export function bandRises(ctx: DetectorContext): Finding[] {
+  const { log, baseline, thresholds: h, axes, matched, found: specific } = ctx;
+  const found: Finding[] = [];
+  const hasFloorRise = specific.some((f) => f.kind === "floor-rise");
+  const highFromHz = baseline.floorCornerHz * HIGH_BAND_CORNER_SHARE;
+  baseline.bands.forEach((band, b) => {
+    // A more specific finding inside the band already explains its rise.
+    const explained =
+      specific.some(
+        (f) =>
+          (f.kind === "mode-shift" || f.kind === "mode-lost" || f.kind === "new-peak") &&
+          band.hiHz > SKIRT.below * f.freqHz &&
+          band.loHz < SKIRT.above * f.freqHz,
+      ) ||
+      (hasFloorRise && band.loHz >= highFromHz) ||
+      specific.some(
+        (f) =>
+          f.kind === "motor-order" &&
+          matched.some((m) => {
+            const order =
+              m.log.motors
+                .find((x) => x.motor === f.motor)
+                ?.orders.find((o) => o.order === (f.order ?? 1))?.freqHz ?? 0;
+            return order >= band.loHz && order < band.hiHz;
+          }),
+      );
+    if (explained) return;
+    const i = log.bands.findIndex((x) => x.loHz === band.loHz && x.hiHz === band.hiHz);
+    if (i < 0) return;
+    let best: { axis: Axis; delta: number } | null = null;
+    for (const axis of axes) {
+      const deltas: number[] = [];
+      const weights: number[] = [];
+      let variance = 0;
+      for (const m of matched) {
+        const level = m.log.axes[axis].bandDb[i] ?? Number.NaN;
+        const expected = atThrottle(
+          baseline,
+          m.log.meanThrottle,
+          (x) => x.axes[axis].bandDb[b] ?? Number.NaN,
+        );
+        deltas.push(level - expected);
+        weights.push(m.log.segments);
+        const seg = m.base.axes[axis].segmentSpreadDb[b] ?? DEFAULT_SEGMENT_SPREAD_DB;
+        const logs = m.base.axes[axis].logSpreadDb[b] ?? 0;
+        variance +=
+          (seg * seg) / m.log.segments +
+          (seg * seg) / Math.max(1, m.base.segmentsPerLog) +
+          logs * logs;
+      }
+      const delta = weightedMean(deltas, weights);
+      const sigma = Math.sqrt(variance / Math.max(1, deltas.length));
+      if (!Number.isFinite(delta) || delta < h.minSigma * sigma) continue;
+      if (!best || delta > best.delta) best = { axis, delta };
+    }
+    if (!best) return;
+    const grade = graded(best.delta, h.levelDb, h);
+    if (!grade) return;
+    const advice = band.loHz >= highFromHz ? ADVICE.highBand : ADVICE.lowBand;
+    found.push({
+      axis: best.axis,
+      kind: "band-rise",
+      freqHz: round(Math.sqrt(band.loHz * band.hiHz), 0),
+      deltaDb: round(best.delta, 1),
+      ...grade,
+      text: `${best.axis} vibration between ${band.loHz} and ${band.hiHz} Hz is up ${best.delta.toFixed(0)} dB at matched throttle: ${advice}`,
+    });
+  });
+  return found;
+}

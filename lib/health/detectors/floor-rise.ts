@@ -1,0 +1,69 @@
+import { median, round, weightedMean } from "../../signal/stats";
+import type { Finding } from "../findings";
+import { motorNamed } from "../motor-positions";
+import { ADVICE } from "./advice";
+import type { DetectorContext } from "./context";
+import { betweenName } from "./order-evidence";
+import { graded } from "./shared";
+
+/** Median of a dB spectrum over [loHz, hiHz]: the noise floor there. */
+function floorOver(psdDb: readonly number[], binHz: number, loHz: number, hiHz: number): number {
+  const first = Math.ceil(loHz / binHz);
+  const last = Math.min(psdDb.length - 1, Math.floor(hiHz / binHz));
+  return median(psdDb.slice(first, last + 1));
+}
+
+/**
+ * Broadband noise above the floor corner, log against baseline over the same range (the
+ * baseline's corner, lowered like the analysis does for a log that cannot reach it, up to the top
+ * both can show), segment-weighted over the compared bands; the axis that rose most is reported,
+ * the others that reached the watch step are named.
+ */
+export function floorRises(ctx: DetectorContext): Finding[] {
+  const { log, baseline, thresholds: h, axes, matched, maxHz, cornerHz } = ctx;
+  if (cornerHz >= maxHz) return [];
+  const perAxis = axes
+    .map((axis) => {
+      const deltas = matched.map(
+        (m) =>
+          floorOver(m.log.axes[axis].psdDb, log.settings.binHz, cornerHz, maxHz) -
+          floorOver(m.base.axes[axis].psdDb, baseline.binHz, cornerHz, maxHz),
+      );
+      return {
+        axis,
+        delta: weightedMean(
+          deltas,
+          matched.map((m) => m.log.segments),
+        ),
+      };
+    })
+    .filter((x) => Number.isFinite(x.delta));
+  perAxis.sort((a, b) => b.delta - a.delta);
+  const top = perAxis[0];
+  if (!top) return [];
+  const grade = graded(top.delta, h.levelDb, h);
+  if (!grade) return [];
+  const others = perAxis
+    .slice(1)
+    .filter((x) => x.delta >= h.levelDb.watch)
+    .map((x) => x.axis);
+  const also = others.length > 0 ? ` (also ${others.join(" and ")})` : "";
+  const centre = Math.sqrt(cornerHz * maxHz);
+  // A worn bearing rings at its motor's non-integer orders: the motor whose half orders rose
+  // against its own baseline and the other motors is the one to check first.
+  const bearing = ctx.orders.bearing;
+  const named = bearing
+    ? `, with tones between the whole orders of ${motorNamed(bearing.motor, ctx.positions)} (${betweenName(bearing)} its rotation up ${bearing.ownDb.toFixed(0)} dB): ${ADVICE.bearingOfMotor}`
+    : `: ${ADVICE.bearingsOrProps}`;
+  return [
+    {
+      axis: top.axis,
+      kind: "floor-rise",
+      freqHz: round(centre, 0),
+      deltaDb: round(top.delta, 1),
+      ...(bearing ? { motor: bearing.motor, order: bearing.order } : {}),
+      ...grade,
+      text: `broadband noise above ${Math.round(cornerHz)} Hz is up ${top.delta.toFixed(0)} dB on ${top.axis}${also}${named}`,
+    },
+  ];
+}

@@ -1,0 +1,202 @@
+import type { Axis } from "../../logs/columns";
+import { median } from "../../signal/stats";
+import type { HealthThresholds } from "../thresholds";
+import type { DetectorContext } from "./context";
+import { atThrottle, DB_PER_UNIT_LOG, robustSigma } from "./shared";
+
+/** How one motor's order stands in this log: against its own baseline and against the other motors. */
+export interface OrderStanding {
+  motor: number;
+  order: number;
+  /** The sidebands of a whole order (tones 0.05–0.25 orders away) rather than the order itself. */
+  side: boolean;
+  axis: Axis;
+  /** Rise over the motor's own baseline at matched throttle, dB (segment-weighted over bands). */
+  ownDb: number;
+  /** ownDb less the median rise of the other motors at the same order and axis, dB. */
+  excessDb: number;
+  /** Standard deviation expected of ownDb on a healthy airframe, dB. */
+  sigmaDb: number;
+  /** The motor's rotation rate over the compared bands, Hz. */
+  rotationHz: number;
+}
+
+/** The motor orders of one comparison, judged once and read by the motor-order and floor detectors. */
+export interface OrderEvidence {
+  standings: readonly OrderStanding[];
+  /** The scatter a standing's rise over the other motors is judged by, dB. */
+  excessSigmaDb: (s: OrderStanding) => number;
+  /** The motor whose half orders (tones between its whole orders) rose most, if any stands out. */
+  bearing: OrderStanding | null;
+}
+
+/**
+ * An order is compared only below the top of the common range by this factor of its mean
+ * frequency: near the top some of a band's blocks measured it and others did not (or the
+ * baseline could), and the rpm spreads about its mean by some 10 %.
+ */
+const RPM_SPREAD_MARGIN = 1.1;
+
+/** The inputs the evidence is built from: the comparison without the detectors' own results. */
+export type OrderInputs = Pick<
+  DetectorContext,
+  "baseline" | "thresholds" | "axes" | "matched" | "maxHz"
+>;
+
+/** Every compared motor order, its scatter and the bearing motor; motors in `excluded` are skipped. */
+export function orderEvidence(ctx: OrderInputs, excluded: ReadonlySet<number>): OrderEvidence {
+  const standings = orderStandings(ctx, excluded);
+  const excessSigmaDb = excessSigma(standings);
+  return {
+    standings,
+    excessSigmaDb,
+    bearing: bearingMotor(standings, ctx.thresholds, excessSigmaDb),
+  };
+}
+
+function orderStandings(ctx: OrderInputs, excluded: ReadonlySet<number>): OrderStanding[] {
+  const { baseline, axes, matched, maxHz } = ctx;
+  const raw: Omit<OrderStanding, "excessDb">[] = [];
+  for (const motor of baseline.motors) {
+    if (excluded.has(motor)) continue;
+    const orderSet = new Set(
+      matched.flatMap(
+        (m) => m.log.motors.find((x) => x.motor === motor)?.orders.map((o) => o.order) ?? [],
+      ),
+    );
+    for (const order of orderSet)
+      for (const side of Number.isInteger(order) ? [false, true] : [false]) {
+        for (const axis of axes) {
+          let wSum = 0;
+          let dSum = 0;
+          let varSum = 0;
+          let fSum = 0;
+          for (const m of matched) {
+            const lm = m.log.motors.find((x) => x.motor === motor);
+            const lo = lm?.orders.find((o) => o.order === order);
+            const level = side ? lo?.sideDb?.[axis] : lo?.powerDb[axis];
+            if (!lm || !lo || level === undefined || !Number.isFinite(level) || !(lm.meanRpm > 0))
+              continue;
+            if (
+              (order * lm.meanRpm * RPM_SPREAD_MARGIN) / 60 > maxHz ||
+              (order * lm.meanRpm) / 60 < baseline.minFreqHz
+            )
+              continue;
+            const bm = m.base.motors.find((x) => x.motor === motor);
+            const bo =
+              bm?.orders?.find((o) => o.order === order) ??
+              (order === 1 && bm && !side
+                ? { db: bm.order1Db, logSpreadDb: bm.logSpreadDb, blocks: 0 }
+                : undefined);
+            const expected = atThrottle(baseline, m.log.meanThrottle, (b) => {
+              const x = b.motors.find((y) => y.motor === motor);
+              const o = x?.orders?.find((y) => y.order === order);
+              if (side) return o?.sideDb?.[axis] ?? Number.NaN;
+              return o ? o.db[axis] : order === 1 && x ? x.order1Db[axis] : Number.NaN;
+            });
+            if (!bo || !Number.isFinite(expected)) continue;
+            const nLog = Math.max(1, (lm.blocks ?? m.log.segments) - (lm.maskedBlocks ?? 0));
+            const nBase = Math.max(1, bo.blocks || m.base.segments);
+            const variance = DB_PER_UNIT_LOG ** 2 * (1 / nLog + 1 / nBase) + bo.logSpreadDb ** 2;
+            const w = m.log.segments;
+            wSum += w;
+            dSum += w * (level - expected);
+            varSum += w * w * variance;
+            fSum += w * (lm.meanRpm / 60);
+          }
+          if (wSum > 0)
+            raw.push({
+              motor,
+              order,
+              side,
+              axis,
+              ownDb: dSum / wSum,
+              sigmaDb: Math.sqrt(varSum) / wSum,
+              rotationHz: fSum / wSum,
+            });
+        }
+      }
+  }
+  return raw.map((r) => {
+    const others = raw
+      .filter(
+        (x) => x.motor !== r.motor && x.order === r.order && x.side === r.side && x.axis === r.axis,
+      )
+      .map((x) => x.ownDb);
+    return { ...r, excessDb: others.length > 0 ? r.ownDb - median(others) : Number.NaN };
+  });
+}
+
+/**
+ * Whether an order of a motor rose against both its own baseline and the other motors: by the
+ * level step, beyond the scatter a healthy airframe shows. The rise over its own baseline must
+ * exceed minSigma of its expected scatter (block counts and the baseline logs' spread); the rise
+ * over the other motors must exceed minSigma robust standard deviations (1.4826 × the median
+ * absolute deviation; Rousseeuw & Croux 1993) of that same difference over every motor, order
+ * and axis of this log — what healthy motors' orders wander by in this flight. Both must reach
+ * the watch step. The magnitude graded is the rise over its own baseline (a strong tone leaks a
+ * little into near-identical motors' orders, so the rise over the others understates it).
+ * NaN when it does not stand out.
+ */
+export function standsOut(
+  s: OrderStanding,
+  h: HealthThresholds,
+  excessSigmaDb: (s: OrderStanding) => number,
+): number {
+  if (
+    !Number.isFinite(s.excessDb) ||
+    !(s.ownDb >= h.minSigma * s.sigmaDb) ||
+    !(s.excessDb >= h.minSigma * excessSigmaDb(s))
+  )
+    return Number.NaN;
+  return Math.min(s.ownDb, s.excessDb) >= h.levelDb.watch ? s.ownDb : Number.NaN;
+}
+
+/**
+ * The scatter of the rises over the other motors, per order (and sidebands apart): the larger
+ * of that order's robust spread over the other motors' axes and the spread over every order. An
+ * order that the flight controller notches away is noise-like and wanders more than one that
+ * stands clear, so each is judged by its own kind.
+ */
+function excessSigma(standings: readonly OrderStanding[]): (s: OrderStanding) => number {
+  const all = robustSigma(standings.map((s) => s.excessDb));
+  const perKey = new Map<string, number>();
+  // The spread of the order is taken over the other motors only: the motor judged is not
+  // allowed to widen the yardstick it is judged by.
+  return (s) => {
+    const key = `${s.motor}/${s.order}/${s.side}`;
+    let sigma = perKey.get(key);
+    if (sigma === undefined) {
+      sigma = robustSigma(
+        standings
+          .filter((x) => x.motor !== s.motor && x.order === s.order && x.side === s.side)
+          .map((x) => x.excessDb),
+      );
+      perKey.set(key, sigma);
+    }
+    return Math.max(all, sigma);
+  };
+}
+
+/** The motor whose half orders (tones between its whole orders) rose most, against both references. */
+function bearingMotor(
+  standings: readonly OrderStanding[],
+  h: HealthThresholds,
+  excessSigmaDb: (s: OrderStanding) => number,
+): OrderStanding | null {
+  let best: { s: OrderStanding; magnitude: number } | null = null;
+  for (const s of standings) {
+    if (isWhole(s)) continue;
+    const magnitude = standsOut(s, h, excessSigmaDb);
+    if (Number.isFinite(magnitude) && (!best || magnitude > best.magnitude))
+      best = { s, magnitude };
+  }
+  return best?.s ?? null;
+}
+
+/** The order itself, at a whole multiple of the rotation (not its sidebands, not a half order). */
+export const isWhole = (s: OrderStanding) => Number.isInteger(s.order) && !s.side;
+
+/** "sidebands of 2×" or "1.5×": a tone between a motor's whole orders, for the sentences. */
+export const betweenName = (s: OrderStanding) =>
+  s.side ? `sidebands of ${s.order}×` : `${s.order}×`;

@@ -1,0 +1,246 @@
+import { describe, expect, it } from "vitest";
+import { buildBaseline, type Baseline } from "@/lib/health/baseline";
+import { compareWithBaseline, type Assessment, type Finding } from "@/lib/health/compare";
+import { MOTOR_POSITIONS } from "@/lib/health/motor-positions";
+import { DEFAULT_THRESHOLDS, penaltyFor } from "@/lib/health/thresholds";
+import {
+  rotationHz,
+  syntheticAnalysis,
+  type Bump,
+  type SyntheticSpec,
+} from "../support/synthetic-analysis";
+
+// Each detector of lib/health/detectors on a small constructed baseline and log
+// (test/support/synthetic-analysis.ts: flat spectra with Gaussian bumps, generated test cases).
+// The baseline is two identical healthy logs with one frame mode, roll at 300 Hz; each test
+// changes one thing in the log and checks that exactly that detector answers, with the size of
+// the change. Expected points come from the piecewise-linear penalty of lib/health/thresholds.ts.
+
+const MODE: Bump = { axis: "roll", freqHz: 300, heightDb: 15 };
+const baseline: Baseline = buildBaseline([
+  syntheticAnalysis({ bumps: [MODE] }),
+  syntheticAnalysis({ bumps: [MODE] }),
+]);
+
+function assess(spec: SyntheticSpec, positions?: Record<number, string>): Assessment {
+  return compareWithBaseline(syntheticAnalysis({ bumps: [MODE], ...spec }), baseline, {
+    motorPositions: positions,
+  });
+}
+
+function only(a: Assessment): Finding {
+  expect(a.findings, JSON.stringify(a.findings)).toHaveLength(1);
+  const f = a.findings[0];
+  if (!f) throw new Error("no finding");
+  return f;
+}
+
+const h = DEFAULT_THRESHOLDS;
+
+describe("an unchanged log", () => {
+  it("has no finding, scores 100, is ok and compares every flown band", () => {
+    const a = assess({});
+    expect(a.findings).toEqual([]);
+    expect(a.score).toBe(100);
+    expect(a.status).toBe("ok");
+    expect(a.notCompared).toEqual([]);
+    expect(a.comparedBands).toEqual(["25–38 %", "38–50 %", "50–63 %"]);
+  });
+});
+
+describe("mode shift and mode lost", () => {
+  // The mode's bins are 2 Hz apart: a peak refined by the quadratic vertex is within a quarter bin
+  // (0.5 Hz, 0.2 % at 285 Hz) for a symmetric bump; 0.3 percentage points is the stated tolerance.
+  it.each([4, 5, 8, 12])("a mode moved down by %i %% is reported as that drop", (x) => {
+    const f = only(assess({ bumps: [{ ...MODE, freqHz: 300 * (1 - x / 100) }] }));
+    expect(f.kind).toBe("mode-shift");
+    expect(f.axis).toBe("roll");
+    expect(f.baselineFreqHz).toBe(300);
+    expect(Math.abs((f.shiftPct ?? 0) + x)).toBeLessThan(0.3);
+    expect(Math.abs(f.freqHz - 300 * (1 - x / 100))).toBeLessThan(1);
+    // Graded on the drop itself (the baseline's own spread is 0 here).
+    expect(f.points).toBeCloseTo(penaltyFor(-(f.shiftPct ?? 0), h.modeShiftPct), 1);
+    // f ∝ √(k/m): a drop of x % is 1 − (1 − x)² less stiffness.
+    const loss = (1 - (1 - x / 100) ** 2) * 100;
+    expect(f.text).toContain(`about ${loss.toFixed(0)} % less stiffness`);
+  });
+
+  it("a mode that rose counts half and is never more than watch", () => {
+    // +6 % counts as 3 %: exactly the watch step, 10 points.
+    const f = only(assess({ bumps: [{ ...MODE, freqHz: 318 }] }));
+    expect(f.kind).toBe("mode-shift");
+    expect(f.shiftPct).toBeCloseTo(6, 1);
+    expect(f.severity).toBe("watch");
+    expect(f.points).toBe(h.penalty.watch);
+    const big = only(assess({ bumps: [{ ...MODE, freqHz: 336 }] }));
+    expect(big.severity).toBe("watch");
+    expect(big.points).toBeLessThanOrEqual(h.penalty.watch);
+  });
+
+  it("a mode that every baseline log had and the log does not show is lost, at the inspect step", () => {
+    const a = assess({ bumps: [] });
+    const f = only(a);
+    expect(f.kind).toBe("mode-lost");
+    expect(f.freqHz).toBe(300);
+    expect(f.severity).toBe("inspect");
+    expect(f.points).toBe(h.penalty.inspect);
+    // The search window of the sentence: −30 % to +15 %.
+    expect(f.text).toContain("no peak from 210 to 345 Hz");
+    expect(a.score).toBe(100 - h.penalty.inspect);
+  });
+
+  it("a mode expected in only one compared band is not called lost", () => {
+    const a = assess({ bumps: [], flown: { 2: 20 } });
+    expect(a.findings).toEqual([]);
+  });
+});
+
+describe("band rise", () => {
+  it("an analysis band 8 dB up at matched throttle is reported on its axis with 8 dB", () => {
+    const f = only(assess({ bandOffset: { axis: "pitch", loHz: 80, db: 8 } }));
+    expect(f.kind).toBe("band-rise");
+    expect(f.axis).toBe("pitch");
+    // Centre of 80–120 Hz on a log scale: √(80·120) = 98 Hz.
+    expect(f.freqHz).toBe(98);
+    expect(f.deltaDb).toBeCloseTo(8, 6);
+    expect(f.points).toBeCloseTo(penaltyFor(8, h.levelDb), 1);
+  });
+
+  it("a rise below the watch step is no finding", () => {
+    expect(assess({ bandOffset: { axis: "pitch", loHz: 80, db: 2.5 } }).findings).toEqual([]);
+  });
+});
+
+describe("floor rise", () => {
+  it("broadband noise 8 dB up above the corner is one floor rise, not band rises", () => {
+    const f = only(assess({ riseAbove: { freqHz: 600, db: 8 } }));
+    expect(f.kind).toBe("floor-rise");
+    expect(f.deltaDb).toBeCloseTo(8, 6);
+    // Centre of the floor's range, corner 600 Hz to the top 1800 Hz: √(600·1800).
+    expect(f.freqHz).toBe(Math.round(Math.sqrt(600 * 1800)));
+    expect(f.text).toContain("above 600 Hz is up 8 dB on roll (also pitch and yaw)");
+    expect(f.motor).toBeUndefined();
+  });
+});
+
+describe("what the detectors run before explains", () => {
+  const high: Bump = { axis: "pitch", freqHz: 700, heightDb: 12, structural: false };
+
+  it("a floor rise takes the new peaks above its corner", () => {
+    // Control: the same peak without the floor rise is new.
+    expect(only(assess({ bumps: [MODE, high] })).kind).toBe("new-peak");
+    const f = only(assess({ bumps: [MODE, high], riseAbove: { freqHz: 600, db: 8 } }));
+    expect(f.kind).toBe("floor-rise");
+  });
+
+  it("a floor rise with one motor's tones between its orders names that motor's bearing", () => {
+    const f = only(
+      assess({
+        orderDb: (m, o) => (m === 4 && (o === 2.5 || o === 3.5) ? 0 : -10),
+        riseAbove: { freqHz: 600, db: 8 },
+      }),
+    );
+    expect(f.kind).toBe("floor-rise");
+    expect(f.motor).toBe(4);
+    expect(f.order).toBe(2.5);
+    expect(f.text).toContain("typical of a worn bearing in that motor");
+  });
+});
+
+describe("new resonance", () => {
+  it("a 12 dB peak where the baseline has none is a new peak of 12 dB at its frequency", () => {
+    const f = only(
+      assess({ bumps: [MODE, { axis: "pitch", freqHz: 90, heightDb: 12, structural: false }] }),
+    );
+    expect(f.kind).toBe("new-peak");
+    expect(f.axis).toBe("pitch");
+    expect(f.freqHz).toBe(90);
+    expect(f.deltaDb).toBeCloseTo(12, 1);
+    expect(f.severity).toBe("ground");
+  });
+
+  it("a peak at a known baseline peak of another axis is not new", () => {
+    const a = assess({ bumps: [MODE, { axis: "yaw", freqHz: 300, heightDb: 12 }] });
+    expect(a.findings.filter((f) => f.kind === "new-peak")).toEqual([]);
+  });
+});
+
+describe("motor orders", () => {
+  const bent = (motor: number, order: number) => (motor === 3 && order === 1 ? 0 : -10);
+
+  it("one motor's 1× 10 dB up against its baseline and the other motors names that motor", () => {
+    const f = only(assess({ orderDb: bent }));
+    expect(f.kind).toBe("motor-order");
+    expect(f.motor).toBe(3);
+    expect(f.order).toBe(1);
+    expect(f.orders).toEqual([1]);
+    expect(f.cause).toBe("prop");
+    expect(f.deltaDb).toBeCloseTo(10, 6);
+    // Its rotation rate, segment-weighted over the compared bands (equal segments here).
+    const mean = (rotationHz(2, 3) + rotationHz(3, 3) + rotationHz(4, 3)) / 3;
+    expect(f.freqHz).toBeCloseTo(mean, 1);
+    expect(f.text.startsWith("motor 3 vibrates 10 dB more")).toBe(true);
+  });
+
+  it("with a tone between its orders too, it is a loose motor, not a prop", () => {
+    const f = only(assess({ orderDb: (m, o) => (m === 2 && (o === 1 || o === 1.5) ? 0 : -10) }));
+    expect(f.motor).toBe(2);
+    expect(f.cause).toBe("motor-mount");
+    expect(f.text).toContain("1.5×) as a loose part rattles");
+  });
+
+  it("names the motor's position when positions are given", () => {
+    const f = only(assess({ orderDb: bent }, MOTOR_POSITIONS));
+    expect(f.text.startsWith("motor 3 (rear-right) vibrates")).toBe(true);
+  });
+
+  it("every motor up by the same amount is no motor's fault", () => {
+    const a = assess({ orderDb: (_m, order) => (order === 1 ? 0 : -10) });
+    expect(a.findings.filter((f) => f.kind === "motor-order")).toEqual([]);
+  });
+});
+
+describe("what is not compared, and why", () => {
+  it("an axis without a usable signal in the log", () => {
+    const a = assess({ unusable: { yaw: "the signal is flat" } });
+    expect(a.notCompared).toEqual([
+      { what: "yaw axis", reason: "not usable in this log: the signal is flat" },
+    ]);
+  });
+
+  it("frequencies above what a slower log can show", () => {
+    const a = assess({ sampleRateHz: 2000 });
+    expect(a.notCompared).toEqual([
+      {
+        what: "above 900 Hz",
+        reason: "this log was recorded at 2000 Hz and cannot show higher frequencies",
+      },
+    ]);
+    expect(a.findings).toEqual([]);
+  });
+
+  it("a throttle band with too little flying in the log", () => {
+    const a = assess({ flown: { 2: 20, 3: 20, 4: 4 } });
+    expect(a.notCompared).toEqual([{ what: "throttle 50–63 %", reason: "only 1.0 s in this log" }]);
+    expect(a.comparedBands).toEqual(["25–38 %", "38–50 %"]);
+  });
+
+  it("a motor whose rpm telemetry was masked in most of the log", () => {
+    const a = assess({ maskedShare: { 2: 0.8 }, orderDb: (m) => (m === 2 ? 5 : -10) });
+    expect(a.notCompared).toEqual([
+      {
+        what: "motor 2 orders",
+        reason: "its rpm telemetry could not be believed in 80 % of the log (reads 0)",
+      },
+    ]);
+    // Its orders, however high, are not held against it.
+    expect(a.findings.filter((f) => f.kind === "motor-order")).toEqual([]);
+  });
+
+  it("a log with no usable axis has no score and is never ok", () => {
+    const a = assess({ unusable: { roll: "flat", pitch: "flat", yaw: "flat" } });
+    expect(a.score).toBeNaN();
+    expect(a.status).toBe("watch");
+    expect(a.notCompared.at(-1)?.what).toBe("whole log");
+  });
+});
