@@ -67,9 +67,8 @@ export interface OrderBlock {
  */
 const LOBE_CORE_BINS = 0;
 
-const ZERO = 1;
-const RANGE = 2;
-const SLEW = 4;
+/** Bits of a motor's telemetry flags in a block; stuck is judged at the block's end, across motors. */
+const FLAG = { zero: 1, range: 2, slew: 4 } as const;
 
 /** One motor's running sums and telemetry checks in the current block. */
 interface MotorState {
@@ -80,7 +79,7 @@ interface MotorState {
   readonly sumRe: Float64Array;
   readonly sumIm: Float64Array;
   rpmSum: number;
-  /** ZERO | RANGE | SLEW seen in this block, and whether the value changed in it. */
+  /** FLAG bits seen in this block, and whether the value changed in it. */
   flags: number;
   changed: boolean;
   /** The last rpm value and the sample index at which it last changed. */
@@ -281,12 +280,13 @@ export class OrderTracker {
       }
       const r = rpm[j] ?? 0;
       rpmSum += r;
-      if (!(r > 0)) flags |= ZERO;
-      else if (r < minRpm || r > maxRpm) flags |= RANGE;
+      if (!(r > 0)) flags |= FLAG.zero;
+      else if (r < minRpm || r > maxRpm) flags |= FLAG.range;
       if (r !== last) {
         // Telemetry is held between updates: the rate of change is judged over the time since
         // the value last changed, not over one sample.
-        if (last === last && Math.abs(r - last) > maxStep * (index - lastChange)) flags |= SLEW;
+        if (last === last && Math.abs(r - last) > maxStep * (index - lastChange))
+          flags |= FLAG.slew;
         last = r;
         lastChange = index;
         changed = true;
@@ -366,11 +366,11 @@ export class OrderTracker {
     this.states.forEach((st, m) => {
       const flags = st.flags;
       const reason: MaskReason | null =
-        flags & ZERO
+        flags & FLAG.zero
           ? "zero"
-          : flags & RANGE
+          : flags & FLAG.range
             ? "range"
-            : flags & SLEW
+            : flags & FLAG.slew
               ? "slew"
               : anyChanged && !st.changed
                 ? "stuck"
