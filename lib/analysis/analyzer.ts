@@ -6,7 +6,7 @@ import { spectralPeaks } from "../signal/peaks";
 import { round } from "../signal/stats";
 import { classifyPeaks } from "./classify";
 import { OrderBands } from "./order-bands";
-import { planAnalysis, type AnalysisPlan } from "./plan";
+import { noSegmentError, planAnalysis, type AnalysisPlan } from "./plan";
 import { DEFAULT_ANALYSIS, type AnalysisSettings } from "./settings";
 import { checkSignal, newSignalStats, trackExtremes, type SignalStats } from "./signal-check";
 import {
@@ -77,7 +77,7 @@ export class LogAnalyzer implements LogSink {
     const { info, plan, welch } = run;
     const { settings, periodogram } = plan;
     const fs = plan.sampleRateHz;
-    if (welch.segments === 0) throw tooShort(summary, plan);
+    if (welch.segments === 0) throw noSegmentError(summary, fs, periodogram.nperseg);
     const throttleBands = throttleBandResults(run);
     return {
       version: ANALYSIS_VERSION,
@@ -113,16 +113,6 @@ export class LogAnalyzer implements LogSink {
     if (!this.run) throw new Error("LogAnalyzer: a block or gap before begin()");
     return this.run;
   }
-}
-
-/** Why a log that was read gave no analysis segment, in the user's terms. */
-function tooShort(summary: ReadSummary, plan: AnalysisPlan): LogFormatError {
-  const fs = plan.sampleRateHz;
-  const n = plan.periodogram.nperseg;
-  const longestRun = summary.gaps.length > 0 ? " in one stretch without a gap" : "";
-  return new LogFormatError(
-    `the log has ${summary.samples} samples at ${Math.round(fs)} Hz; one analysis segment needs ${n} samples (${(n / fs).toFixed(2)} s)${longestRun}`,
-  );
 }
 
 /** Each throttle band's spectra with its motors' order levels. */

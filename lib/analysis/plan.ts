@@ -1,4 +1,5 @@
-import type { LogInfo } from "../logs/read-log";
+import { LogFormatError } from "../errors";
+import type { LogInfo, ReadSummary } from "../logs/read-log";
 import { bandBins, type FrequencyBand } from "../signal/bands";
 import type { PeakSearch } from "../signal/peaks";
 import { SegmentPeriodogram, defaultNperseg, resolveWelchOptions } from "../signal/welch";
@@ -87,4 +88,19 @@ export function throttleBandOf(throttle: number, bands: number): number {
 /** The [lo, hi) throttle range of band `index`. */
 export function throttleRangeOf(index: number, bands: number): { lo: number; hi: number } {
   return bands === 1 ? { lo: 0, hi: 1 } : { lo: index / bands, hi: (index + 1) / bands };
+}
+
+/**
+ * Why a log that was read holds no analysis segment, in the user's terms: the analyser's and the
+ * upload check's one sentence.
+ */
+export function noSegmentError(
+  summary: Pick<ReadSummary, "samples" | "gaps">,
+  sampleRateHz: number,
+  nperseg: number,
+): LogFormatError {
+  const longestRun = summary.gaps.length > 0 ? " in one stretch without a gap" : "";
+  return new LogFormatError(
+    `the log has ${summary.samples} samples at ${Math.round(sampleRateHz)} Hz; one analysis segment needs ${nperseg} samples (${(nperseg / sampleRateHz).toFixed(2)} s)${longestRun}`,
+  );
 }
