@@ -4,6 +4,7 @@ import { join } from "node:path";
 import { Worker } from "node:worker_threads";
 import { checkUpload, type UploadCheckOptions } from "@/lib/analysis/upload-check";
 import type { FromChecker, ToChecker } from "@/lib/analysis/upload-check-protocol";
+import { deferred } from "@/lib/deferred";
 import { LimitExceededError, LogFormatError } from "@/lib/errors";
 import type { ReadSummary } from "@/lib/logs/types";
 import { poolSize } from "./analysis-pool";
@@ -48,16 +49,15 @@ class UploadChecker {
   async check(bytes: AsyncIterable<Uint8Array>, options: UploadCheckOptions): Promise<ReadSummary> {
     const worker = this.thread();
     const id = this.nextId++;
-    let resolve: (s: ReadSummary) => void = () => undefined;
-    let reject: (e: Error) => void = () => undefined;
-    const result = new Promise<ReadSummary>((res, rej) => {
-      resolve = res;
-      reject = rej;
-    });
-    // Awaited below; a refusal that arrives while chunks are still being sent must not count as
-    // unhandled meanwhile.
-    result.catch(() => undefined);
-    const state: OpenCheck = { inFlight: 0, wake: null, failure: null, resolve, reject };
+    // Awaited once every chunk is sent; a refusal may arrive before that.
+    const result = deferred<ReadSummary>();
+    const state: OpenCheck = {
+      inFlight: 0,
+      wake: null,
+      failure: null,
+      resolve: result.resolve,
+      reject: result.reject,
+    };
     this.open.set(id, state);
     const post = (m: ToChecker, transfer: ArrayBuffer[] = []) => worker.postMessage(m, transfer);
     post({ type: "start", id, options });
@@ -79,7 +79,7 @@ class UploadChecker {
       throw e;
     }
     try {
-      return await result;
+      return await result.promise;
     } finally {
       this.open.delete(id);
     }

@@ -18,6 +18,8 @@ const { setBaseline } = await import("@/lib/server/baselines");
 const { fleetPlacement, fleetDesignView } = await import("@/lib/server/fleet");
 const { logCrash } = await import("@/lib/server/crashes");
 const { airframeHistory, historyCsv } = await import("@/lib/server/airframe-history");
+const { fleetOverview } = await import("@/lib/server/fleet-overview");
+const { inspectionQueue } = await import("@/lib/server/queue");
 
 const actors = {} as Record<Role, Actor>;
 const ids: Record<string, string> = {};
@@ -74,6 +76,16 @@ describe("the fleet as its own reference", () => {
       /^F-5's baseline pitch mode at \d+ Hz sits [\d.]+ % below the median of 4 sister airframes of test frame \(\d+ Hz\)/,
     );
     expect(flagged[0]?.reference.airframes).toBe(4);
+  });
+
+  it("the Fleet table says what the queue says: F-5's questioned baseline is not 'ok' on either", async () => {
+    const [rows, queue] = await Promise.all([
+      fleetOverview(actors.viewer),
+      inspectionQueue(actors.viewer),
+    ]);
+    const fromQueue = Object.fromEntries(queue.entries.map((e) => [e.name, e.status]));
+    for (const r of rows) expect([r.name, r.status]).toEqual([r.name, fromQueue[r.name] ?? null]);
+    expect(rows.find((r) => r.name === "F-5")?.status).not.toBe("ok");
   });
 
   it("judges the airframe without a baseline against the fleet, labelled so", async () => {

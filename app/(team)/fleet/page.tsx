@@ -4,7 +4,8 @@ import { TextField } from "@/app/_components/fields";
 import { Sparkline } from "@/app/_components/sparkline";
 import { StatusBadge } from "@/app/_components/status-badge";
 import { roleAtLeast } from "@/lib/roles";
-import { fleetDesignView, fleetTable } from "@/lib/server/fleet";
+import { fleetDesignView } from "@/lib/server/fleet";
+import { fleetOverview } from "@/lib/server/fleet-overview";
 import { requireMember } from "@/lib/server/guard";
 import { createAirframeAction } from "../actions";
 import { ModeStrips } from "./_components/mode-strips";
@@ -14,7 +15,7 @@ export const dynamic = "force-dynamic";
 
 export default async function FleetPage() {
   const actor = await requireMember("viewer");
-  const [rows, designs] = await Promise.all([fleetTable(actor), fleetDesignView(actor)]);
+  const [rows, designs] = await Promise.all([fleetOverview(actor), fleetDesignView(actor)]);
   return (
     <>
       <h1>Fleet</h1>
@@ -24,8 +25,8 @@ export default async function FleetPage() {
             <tr>
               <th>airframe</th>
               <th>state</th>
-              <th>health</th>
-              <th className="num">score</th>
+              <th>before the next heat</th>
+              <th className="num">latest log score</th>
               <th>trend (last 10 logs)</th>
               <th>last flight</th>
               <th className="num">flights since baseline</th>
@@ -33,7 +34,7 @@ export default async function FleetPage() {
           </thead>
           <tbody>
             {rows.map((r) => (
-              <tr key={r.id} style={r.retired ? { opacity: 0.55 } : undefined}>
+              <tr key={r.id} className={r.retired ? "retired-row" : undefined}>
                 <td>
                   <Link href={`/airframes/${r.id}`}>
                     <strong>{r.name}</strong>
@@ -43,9 +44,12 @@ export default async function FleetPage() {
                 <td>{r.retired ? "retired" : r.state}</td>
                 <td>
                   {r.status ? (
-                    <StatusBadge status={r.status} />
+                    <>
+                      <StatusBadge status={r.status} />
+                      {r.firstReason ? <div className="muted small">{r.firstReason}</div> : null}
+                    </>
                   ) : (
-                    <span className="muted">no baseline</span>
+                    <span className="muted">{r.retired ? "–" : "no baseline"}</span>
                   )}
                 </td>
                 <td className="num">{r.score === null ? "–" : Math.round(r.score)}</td>
