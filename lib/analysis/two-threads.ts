@@ -1,4 +1,5 @@
 import { Worker, isMainThread, parentPort, workerData } from "node:worker_threads";
+import { deferred } from "../deferred";
 import { LogFormatError } from "../errors";
 import type {
   Gap,
@@ -10,7 +11,6 @@ import type {
 } from "../logs/read-log";
 import { readLog } from "../logs/read-log";
 import { LogAnalyzer } from "./analyzer";
-import { pending } from "./pending";
 import type { AnalysisSettings } from "./settings";
 import type { LogAnalysis } from "./types";
 
@@ -90,7 +90,7 @@ export async function analyzeLogInTwoThreads(
   // A holder, not a `let`: the worker's callbacks set it, and the checker cannot see that.
   const failed: { error: Error | null } = { error: null };
   // Failures are awaited below; until then the promise must not count as unhandled.
-  const { promise: done, resolve: resolveDone, reject: rejectDone } = pending<LogAnalysis>();
+  const { promise: done, resolve: resolveDone, reject: rejectDone } = deferred<LogAnalysis>();
   const free: SampleBlock[] = [];
   // The worker starts when the reader has a header and a sample rate, so a file refused early
   // (not a CSV, no header, a bad cell in the first rows) costs no thread.
