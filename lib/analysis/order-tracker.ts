@@ -1,3 +1,4 @@
+import type { PerAxis } from "../logs/columns";
 import { ComplexPowerSpectrum } from "../signal/fft";
 import { makeWindow } from "../signal/windows";
 
@@ -25,9 +26,12 @@ import { makeWindow } from "../signal/windows";
  * telemetry moves, or changing faster than a motor can accelerate masks that motor's block.
  */
 
-/** Why a motor's block was not measured. */
-export type MaskReason = "zero" | "range" | "stuck" | "slew";
-export const MASK_REASONS: readonly MaskReason[] = ["zero", "range", "stuck", "slew"];
+/**
+ * Why a motor's block was not measured: rpm 0, outside the plausible range, stuck while the other
+ * motors' telemetry moves, changing faster than a motor can.
+ */
+export const MASK_REASONS = ["zero", "range", "stuck", "slew"] as const;
+export type MaskReason = (typeof MASK_REASONS)[number];
 
 export interface TelemetryLimits {
   /** Lowest and highest believable mechanical rpm of a spinning motor. */
@@ -63,9 +67,34 @@ export interface OrderBlock {
  */
 const LOBE_CORE_BINS = 0;
 
-const ZERO = 1;
-const RANGE = 2;
-const SLEW = 4;
+/** Bits of a motor's telemetry flags in a block; stuck is judged at the block's end, across motors. */
+const FLAG = { zero: 1, range: 2, slew: 4 } as const;
+
+/** One motor's running sums and telemetry checks in the current block. */
+interface MotorState {
+  /** Half-angle rotor phasor e^{iφ/2}, advanced by each sample's rpm. */
+  re: number;
+  im: number;
+  /** Σ x·w·cos and Σ x·w·sin of the current sub-block, [slot·3 + axis]. */
+  readonly sumRe: Float64Array;
+  readonly sumIm: Float64Array;
+  rpmSum: number;
+  /** FLAG bits seen in this block, and whether the value changed in it. */
+  flags: number;
+  changed: boolean;
+  /** The last rpm value and the sample index at which it last changed. */
+  lastRpm: number;
+  lastChange: number;
+  /** Angle since the current sub-block began (rad), and sub-blocks stored so far. */
+  subAngle: number;
+  subCount: number;
+  /** Stored sub-block sums [sub · orders·3 + slot·3 + axis]. */
+  readonly subRe: Float64Array;
+  readonly subIm: Float64Array;
+  /** Σ window of the current sub-block, and of each stored one. */
+  subWeightNow: number;
+  readonly subWeight: Float64Array;
+}
 
 export class OrderTracker {
   private readonly motors: number;
@@ -86,32 +115,9 @@ export class OrderTracker {
   private startS = 0;
   /** Samples since the start (for the slew check across blocks). */
   private sampleIndex = 0;
-  // Half-angle rotor phasors e^{iφ/2}, one per motor, advanced by each sample's rpm.
-  private readonly re: Float64Array;
-  private readonly im: Float64Array;
-  // Accumulators [motor][slot·3 + axis] of Σ x·w·cos and Σ x·w·sin.
-  private readonly sumRe: Float64Array[];
-  private readonly sumIm: Float64Array[];
-  private readonly rpmSum: Float64Array;
-  /** Per motor: flags of this block (ZERO | RANGE | SLEW), whether its value changed in it. */
-  private readonly flags: Int32Array;
-  private readonly changed: Uint8Array;
-  /** Per motor: the last rpm value and the sample index at which it last changed. */
-  private readonly lastRpm: Float64Array;
-  private readonly lastChange: Float64Array;
   private throttleSum = 0;
+  private readonly states: MotorState[];
   private readonly result: OrderBlock;
-  /** Slots whose sums are cut into two-revolution sub-blocks (every order). */
-  private readonly halfSlots: Int32Array;
-  /** Per motor: angle since the current sub-block began (rad), sub-blocks stored so far. */
-  private readonly subAngle: Float64Array;
-  private readonly subCount: Int32Array;
-  /** Per motor: stored sub-block sums [sub · halfSlots·3 + k·3 + axis]. */
-  private readonly subRe: Float64Array[];
-  private readonly subIm: Float64Array[];
-  /** Per motor: Σ window of the current sub-block, and of each stored one. */
-  private readonly subWeightNow: Float64Array;
-  private readonly subWeight: Float64Array[];
   private readonly zeros: Float64Array;
   private readonly maxSubs: number;
   /** Zoom transforms by length (twice the sub-blocks of a block, rounded up to a power of two). */
@@ -150,25 +156,26 @@ export class OrderTracker {
     this.window = makeWindow("hann", this.blockLength);
     this.windowSum = this.window.reduce((s, v) => s + v, 0);
     this.onBlock = onBlock;
-    this.re = new Float64Array(motors).fill(1);
-    this.im = new Float64Array(motors);
-    this.sumRe = Array.from({ length: motors }, () => new Float64Array(orders.length * 3));
-    this.sumIm = Array.from({ length: motors }, () => new Float64Array(orders.length * 3));
-    this.rpmSum = new Float64Array(motors);
-    this.flags = new Int32Array(motors);
-    this.changed = new Uint8Array(motors);
-    this.lastRpm = new Float64Array(motors).fill(Number.NaN);
-    this.lastChange = new Float64Array(motors);
-    this.halfSlots = Int32Array.from(orders.map((_, slot) => slot));
     // At the top believable rotation a block holds this many two-revolution sub-blocks.
     this.maxSubs = Math.ceil((this.blockLength * this.dt * limits.maxRpm) / 60 / 2) + 2;
-    this.subAngle = new Float64Array(motors);
-    this.subCount = new Int32Array(motors);
-    const subs = this.maxSubs * this.halfSlots.length * 3;
-    this.subRe = Array.from({ length: motors }, () => new Float64Array(subs));
-    this.subIm = Array.from({ length: motors }, () => new Float64Array(subs));
-    this.subWeightNow = new Float64Array(motors);
-    this.subWeight = Array.from({ length: motors }, () => new Float64Array(this.maxSubs));
+    const width = orders.length * 3;
+    this.states = Array.from({ length: motors }, () => ({
+      re: 1,
+      im: 0,
+      sumRe: new Float64Array(width),
+      sumIm: new Float64Array(width),
+      rpmSum: 0,
+      flags: 0,
+      changed: false,
+      lastRpm: Number.NaN,
+      lastChange: 0,
+      subAngle: 0,
+      subCount: 0,
+      subRe: new Float64Array(this.maxSubs * width),
+      subIm: new Float64Array(this.maxSubs * width),
+      subWeightNow: 0,
+      subWeight: new Float64Array(this.maxSubs),
+    }));
     this.zeros = new Float64Array(this.maxSubs);
     this.result = {
       throttle: 0,
@@ -183,25 +190,31 @@ export class OrderTracker {
   /** Starts a new block; called at gaps so that no block spans one. */
   reset(): void {
     this.fill = 0;
-    this.lastRpm.fill(Number.NaN);
+    for (const st of this.states) st.lastRpm = Number.NaN;
     this.clear();
   }
 
-  /** Feeds samples [0, n) of a block of the log. */
+  /** Feeds samples [0, n) of a block of the log; `rpm` holds one array per motor. */
   push(
     n: number,
     timeS: Float64Array,
-    gyro: readonly Float64Array[],
+    gyro: PerAxis<Float64Array>,
     throttle: Float64Array | null,
     rpm: readonly Float64Array[],
   ): void {
+    if (rpm.length !== this.motors) {
+      throw new RangeError(`the order tracker follows ${this.motors} motors, got ${rpm.length}`);
+    }
     let i = 0;
     while (i < n) {
       if (this.fill === 0) this.startS = timeS[i] ?? 0;
       const run = Math.min(n - i, this.blockLength - this.fill);
       if (throttle) for (let j = i; j < i + run; j++) this.throttleSum += throttle[j] ?? 0;
-      for (let m = 0; m < this.motors; m++)
-        this.accumulate(m, i, run, gyro, rpm[m] as Float64Array);
+      const from = i;
+      rpm.forEach((r, m) => {
+        const st = this.states[m];
+        if (st) this.accumulate(st, from, run, gyro, r);
+      });
       this.fill += run;
       this.sampleIndex += run;
       i += run;
@@ -214,41 +227,38 @@ export class OrderTracker {
    * × axes per sample). The phasor, the rpm checks and the sum of rpm live in local variables.
    */
   private accumulate(
-    m: number,
+    st: MotorState,
     from: number,
     run: number,
-    gyro: readonly Float64Array[],
+    gyro: PerAxis<Float64Array>,
     rpm: Float64Array,
   ): void {
     const w = this.window;
-    const g0 = gyro[0] as Float64Array;
-    const g1 = gyro[1] as Float64Array;
-    const g2 = gyro[2] as Float64Array;
-    const sr = this.sumRe[m] as Float64Array;
-    const si = this.sumIm[m] as Float64Array;
+    const [g0, g1, g2] = gyro;
+    const sr = st.sumRe;
+    const si = st.sumIm;
     const slots = this.slotOfHalf;
     const halves = this.halves;
     const radPerRpmSampleHalf = (Math.PI * this.dt) / 60;
     const { minRpm, maxRpm, maxSlewRpmPerS } = this.limits;
     const maxStep = maxSlewRpmPerS * this.dt;
-    let hc = this.re[m] ?? 1;
-    let hs = this.im[m] ?? 0;
+    let hc = st.re;
+    let hs = st.im;
     let rpmSum = 0;
-    let flags = this.flags[m] ?? 0;
-    let changed = this.changed[m] ?? 0;
-    let last = this.lastRpm[m] ?? Number.NaN;
-    let lastChange = this.lastChange[m] ?? 0;
+    let flags = st.flags;
+    let changed = st.changed;
+    let last = st.lastRpm;
+    let lastChange = st.lastChange;
     let f = this.fill;
     let index = this.sampleIndex;
-    let angle = this.subAngle[m] ?? 0;
-    let weight = this.subWeightNow[m] ?? 0;
-    const hasHalves = this.halfSlots.length > 0;
+    let angle = st.subAngle;
+    let weight = st.subWeightNow;
     for (let j = from; j < from + run; j++, f++, index++) {
-      const wi = w[f] as number;
+      const wi = w[f] ?? 0;
       weight += wi;
-      const x0 = (g0[j] as number) * wi;
-      const x1 = (g1[j] as number) * wi;
-      const x2 = (g2[j] as number) * wi;
+      const x0 = (g0[j] ?? 0) * wi;
+      const x1 = (g1[j] ?? 0) * wi;
+      const x2 = (g2[j] ?? 0) * wi;
       // e^{ihφ/2} for h = 1..H by complex multiplication of the half-angle phasor.
       let c = hc;
       let s = hs;
@@ -258,27 +268,28 @@ export class OrderTracker {
           s = s * hc + c * hs;
           c = cn;
         }
-        const slot = slots[h] as number;
+        const slot = slots[h] ?? -1;
         if (slot < 0) continue;
         const b = slot * 3;
-        sr[b] = (sr[b] as number) + x0 * c;
-        sr[b + 1] = (sr[b + 1] as number) + x1 * c;
-        sr[b + 2] = (sr[b + 2] as number) + x2 * c;
-        si[b] = (si[b] as number) + x0 * s;
-        si[b + 1] = (si[b + 1] as number) + x1 * s;
-        si[b + 2] = (si[b + 2] as number) + x2 * s;
+        sr[b] = (sr[b] ?? 0) + x0 * c;
+        sr[b + 1] = (sr[b + 1] ?? 0) + x1 * c;
+        sr[b + 2] = (sr[b + 2] ?? 0) + x2 * c;
+        si[b] = (si[b] ?? 0) + x0 * s;
+        si[b + 1] = (si[b + 1] ?? 0) + x1 * s;
+        si[b + 2] = (si[b + 2] ?? 0) + x2 * s;
       }
-      const r = rpm[j] as number;
+      const r = rpm[j] ?? 0;
       rpmSum += r;
-      if (!(r > 0)) flags |= ZERO;
-      else if (r < minRpm || r > maxRpm) flags |= RANGE;
+      if (!(r > 0)) flags |= FLAG.zero;
+      else if (r < minRpm || r > maxRpm) flags |= FLAG.range;
       if (r !== last) {
         // Telemetry is held between updates: the rate of change is judged over the time since
         // the value last changed, not over one sample.
-        if (last === last && Math.abs(r - last) > maxStep * (index - lastChange)) flags |= SLEW;
+        if (last === last && Math.abs(r - last) > maxStep * (index - lastChange))
+          flags |= FLAG.slew;
         last = r;
         lastChange = index;
-        changed = 1;
+        changed = true;
       }
       // Advance the half angle by half this sample's rotation. Taylor series to x⁸/x⁹: below
       // 1e-6 error for steps up to 1 rad, much cheaper than Math.cos/sin; the phasor is
@@ -291,22 +302,22 @@ export class OrderTracker {
       hs = hs * cd + hc * sd;
       hc = cn;
       angle += 2 * dphi;
-      if (hasHalves && angle >= 4 * Math.PI) {
+      if (angle >= 4 * Math.PI) {
         angle -= 4 * Math.PI;
-        this.subWeightNow[m] = weight;
-        this.flushSub(m);
+        st.subWeightNow = weight;
+        this.flushSub(st);
         weight = 0;
       }
     }
-    this.subAngle[m] = angle;
-    this.subWeightNow[m] = weight;
-    this.re[m] = hc;
-    this.im[m] = hs;
-    this.rpmSum[m] = (this.rpmSum[m] ?? 0) + rpmSum;
-    this.flags[m] = flags;
-    this.changed[m] = changed;
-    this.lastRpm[m] = last;
-    this.lastChange[m] = lastChange;
+    st.subAngle = angle;
+    st.subWeightNow = weight;
+    st.re = hc;
+    st.im = hs;
+    st.rpmSum += rpmSum;
+    st.flags = flags;
+    st.changed = changed;
+    st.lastRpm = last;
+    st.lastChange = lastChange;
   }
 
   /** Zero-padded twice over (scalloping under 1 dB), at least 16 points. */
@@ -320,32 +331,27 @@ export class OrderTracker {
     return z;
   }
 
-  /** Moves the half orders' running sums of motor m into its next sub-block. */
-  private flushSub(m: number): void {
-    const j = this.subCount[m] ?? 0;
-    const sr = this.sumRe[m] as Float64Array;
-    const si = this.sumIm[m] as Float64Array;
-    const width = this.halfSlots.length * 3;
+  /** Moves a motor's running sums into its next two-revolution sub-block. */
+  private flushSub(st: MotorState): void {
+    const j = st.subCount;
+    const sr = st.sumRe;
+    const si = st.sumIm;
+    const width = sr.length;
     // More sub-blocks than a believable rpm allows: the motor is masked anyway (range); keep
     // summing into the last one.
     const into = Math.min(j, this.maxSubs - 1);
-    const weights = this.subWeight[m] as Float64Array;
-    weights[into] = (weights[into] ?? 0) + (this.subWeightNow[m] ?? 0);
-    this.subWeightNow[m] = 0;
-    const dr = this.subRe[m] as Float64Array;
-    const di = this.subIm[m] as Float64Array;
-    for (let k = 0; k < this.halfSlots.length; k++) {
-      const slot = this.halfSlots[k] as number;
-      for (let a = 0; a < 3; a++) {
-        const b = slot * 3 + a;
-        const t = into * width + k * 3 + a;
-        dr[t] = (dr[t] as number) + (sr[b] as number);
-        di[t] = (di[t] as number) + (si[b] as number);
-        sr[b] = 0;
-        si[b] = 0;
-      }
+    st.subWeight[into] = (st.subWeight[into] ?? 0) + st.subWeightNow;
+    st.subWeightNow = 0;
+    const dr = st.subRe;
+    const di = st.subIm;
+    for (let b = 0; b < width; b++) {
+      const t = into * width + b;
+      dr[t] = (dr[t] ?? 0) + (sr[b] ?? 0);
+      di[t] = (di[t] ?? 0) + (si[b] ?? 0);
     }
-    this.subCount[m] = Math.min(j + 1, this.maxSubs);
+    sr.fill(0);
+    si.fill(0);
+    st.subCount = Math.min(j + 1, this.maxSubs);
   }
 
   private emit(): void {
@@ -356,29 +362,29 @@ export class OrderTracker {
     const scale = 2 / (this.windowSum * this.windowSum);
     // A value that never changes over a whole block while another motor's does is stuck
     // telemetry (a motor in flight never holds its speed to the last rpm for a quarter second).
-    const anyChanged = this.changed.some((c) => c === 1);
-    for (let m = 0; m < this.motors; m++) {
-      const flags = this.flags[m] ?? 0;
+    const anyChanged = this.states.some((st) => st.changed);
+    this.states.forEach((st, m) => {
+      const flags = st.flags;
       const reason: MaskReason | null =
-        flags & ZERO
+        flags & FLAG.zero
           ? "zero"
-          : flags & RANGE
+          : flags & FLAG.range
             ? "range"
-            : flags & SLEW
+            : flags & FLAG.slew
               ? "slew"
-              : anyChanged && this.changed[m] === 0
+              : anyChanged && !st.changed
                 ? "stuck"
                 : null;
       out.masked[m] = reason;
-      const f1 = reason ? Number.NaN : (this.rpmSum[m] ?? 0) / len / 60;
+      const f1 = reason ? Number.NaN : st.rpmSum / len / 60;
       out.rotationHz[m] = f1;
       // Keep the phasor on the unit circle despite rounding.
-      const mag = Math.hypot(this.re[m] ?? 1, this.im[m] ?? 0) || 1;
-      this.re[m] = (this.re[m] ?? 1) / mag;
-      this.im[m] = (this.im[m] ?? 0) / mag;
-      if (this.halfSlots.length > 0 && (this.subAngle[m] ?? 0) > 0) this.flushSub(m);
-      const subs = this.subCount[m] ?? 0;
-      const width = this.halfSlots.length * 3;
+      const mag = Math.hypot(st.re, st.im) || 1;
+      st.re /= mag;
+      st.im /= mag;
+      if (st.subAngle > 0) this.flushSub(st);
+      const subs = st.subCount;
+      const width = st.sumRe.length;
       const zoom = this.zoomFor(subs);
       const n = zoom.size;
       // How a tone exactly on an order spreads over the zoom: the spectrum of the block's window
@@ -388,27 +394,23 @@ export class OrderTracker {
       // Half-width of the core, in padded bins: LOBE_CORE_BINS of the unpadded DFT (0: the centre
       // bin alone, the plain coherent sum).
       const first = 1 + Math.floor(LOBE_CORE_BINS * padding);
-      const own = zoom.powers(this.subWeight[m] as Float64Array, this.zeros, subs);
+      const own = zoom.powers(st.subWeight, this.zeros, subs);
       let ownLobe = own[0] ?? 0;
       for (let k = 1; k < first; k++) ownLobe += (own[k] ?? 0) + (own[n - k] ?? 0);
       const lobeScale = ownLobe > 0 ? (own[0] ?? 0) / ownLobe : 1;
-      for (let o = 0; o < this.orders.length; o++) {
-        const p = out.power[m]?.[o] as Float64Array;
-        const side = out.side[m]?.[o] as Float64Array;
-        const q = this.orders[o] ?? 1;
+      const powers = out.power[m] ?? [];
+      const sides = out.side[m] ?? [];
+      this.orders.forEach((q, o) => {
+        const p = powers[o];
+        const side = sides[o];
+        if (!p || !side) return;
         const measured = f1 * q >= this.minHz && f1 * q <= this.maxHz;
         const whole = Number.isInteger(q);
         for (let a = 0; a < 3; a++) {
           p[a] = Number.NaN;
           side[a] = Number.NaN;
           if (!measured) continue;
-          const spectrum = zoom.powers(
-            this.subRe[m] as Float64Array,
-            this.subIm[m] as Float64Array,
-            subs,
-            width,
-            o * 3 + a,
-          );
+          const spectrum = zoom.powers(st.subRe, st.subIm, subs, width, o * 3 + a);
           if (whole) {
             // The order's level is the energy of the core of the main lobe around it.
             let lobe = spectrum[0] ?? 0;
@@ -426,8 +428,8 @@ export class OrderTracker {
             p[a] = scale * best;
           }
         }
-      }
-    }
+      });
+    });
     this.onBlock(out);
     this.fill = 0;
     this.clear();
@@ -435,17 +437,19 @@ export class OrderTracker {
 
   private clear(): void {
     this.throttleSum = 0;
-    this.rpmSum.fill(0);
-    this.flags.fill(0);
-    this.changed.fill(0);
-    for (const a of this.sumRe) a.fill(0);
-    for (const a of this.sumIm) a.fill(0);
-    for (const a of this.subRe) a.fill(0);
-    for (const a of this.subIm) a.fill(0);
-    for (const a of this.subWeight) a.fill(0);
-    this.subWeightNow.fill(0);
-    this.subAngle.fill(0);
-    this.subCount.fill(0);
+    for (const st of this.states) {
+      st.rpmSum = 0;
+      st.flags = 0;
+      st.changed = false;
+      st.sumRe.fill(0);
+      st.sumIm.fill(0);
+      st.subRe.fill(0);
+      st.subIm.fill(0);
+      st.subWeight.fill(0);
+      st.subWeightNow = 0;
+      st.subAngle = 0;
+      st.subCount = 0;
+    }
   }
 }
 

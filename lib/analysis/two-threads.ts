@@ -1,4 +1,5 @@
 import { Worker, isMainThread, parentPort, workerData } from "node:worker_threads";
+import { deferred } from "../deferred";
 import { LogFormatError } from "../errors";
 import type {
   Gap,
@@ -88,14 +89,8 @@ export async function analyzeLogInTwoThreads(
   let wake: (() => void) | null = null;
   // A holder, not a `let`: the worker's callbacks set it, and the checker cannot see that.
   const failed: { error: Error | null } = { error: null };
-  let resolveDone: (a: LogAnalysis) => void = () => undefined;
-  let rejectDone: (e: Error) => void = () => undefined;
-  const done = new Promise<LogAnalysis>((resolve, reject) => {
-    resolveDone = resolve;
-    rejectDone = reject;
-  });
   // Failures are awaited below; until then the promise must not count as unhandled.
-  done.catch(() => undefined);
+  const { promise: done, resolve: resolveDone, reject: rejectDone } = deferred<LogAnalysis>();
   const free: SampleBlock[] = [];
   // The worker starts when the reader has a header and a sample rate, so a file refused early
   // (not a CSV, no header, a bad cell in the first rows) costs no thread.

@@ -4,6 +4,7 @@ import type { FrequencyBand } from "../signal/bands";
 import type { SpectralPeak } from "../signal/peaks";
 import type { Averaging } from "../signal/welch";
 import type { WindowName } from "../signal/windows";
+import type { MaskReason } from "./order-tracker";
 
 /** structural: stays put across throttle · motor: moves with rpm/throttle · unclassified: cannot tell. */
 export type PeakKind = "structural" | "motor" | "unclassified";
@@ -104,7 +105,7 @@ export interface MotorSummary {
   /** Share of the log's order-tracking blocks whose rpm telemetry was not believable. */
   maskedShare?: number;
   /** Masked blocks by reason: rpm 0, outside the plausible range, stuck, changing impossibly fast. */
-  maskedBlocks?: Record<"zero" | "range" | "stuck" | "slew", number>;
+  maskedBlocks?: Record<MaskReason, number>;
   /** The motor's 1× order through the log, at most a few hundred points. */
   track: MotorTrackPoint[];
 }

@@ -1,11 +1,11 @@
 // The check an upload passes while it streams in: the log reader over the bytes, plus what the
 // analysis needs beyond a readable file. Runs in the upload-check worker thread
 // (upload-check-worker.ts) or, with HEATCHECK_WORKERS=0, on the server's own thread.
-import { LogFormatError } from "../errors";
 import { parseColumnMap } from "../logs/columns";
 import { readLog } from "../logs/read-log";
 import type { LogSink, ReadSummary } from "../logs/types";
 import { defaultNperseg } from "../signal/welch";
+import { noSegmentError } from "./plan";
 import { DEFAULT_ANALYSIS } from "./settings";
 
 export interface UploadCheckOptions {
@@ -49,9 +49,6 @@ class SegmentRuns implements LogSink {
   requireOneSegment(summary: ReadSummary): void {
     const nperseg = DEFAULT_ANALYSIS.nperseg ?? defaultNperseg(this.rate);
     if (this.longest >= nperseg) return;
-    const stretch = summary.gaps.length > 0 ? " in one stretch without a gap" : "";
-    throw new LogFormatError(
-      `the log has ${summary.samples} samples at ${Math.round(this.rate)} Hz; one analysis segment needs ${nperseg} samples (${(nperseg / this.rate).toFixed(2)} s)${stretch}`,
-    );
+    throw noSegmentError(summary, this.rate, nperseg);
   }
 }

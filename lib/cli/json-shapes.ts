@@ -1,6 +1,6 @@
 import type { LogAnalysis } from "../analysis/types";
 import type { Assessment } from "../health/compare";
-import { AXES, type Axis } from "../logs/columns";
+import { axisRecord, type Axis } from "../logs/columns";
 import { round } from "../signal/stats";
 
 /**
@@ -39,10 +39,9 @@ export interface AnalyzeJson {
 }
 
 export function analyzeJson(a: LogAnalysis): AnalyzeJson {
-  const axes = {} as AnalyzeJson["axes"];
-  for (const axis of AXES) {
+  const axes: AnalyzeJson["axes"] = axisRecord((axis) => {
     const r = a.axes[axis];
-    axes[axis] = {
+    return {
       freqHz: a.freqHz,
       // As computed (full double precision): a user checking against scipy.signal.welch sees
       // the engine's own error (≤ 1e-9 relative), not a rounding of ours.
@@ -61,7 +60,7 @@ export function analyzeJson(a: LogAnalysis): AnalyzeJson {
       floorDb: r.floorDb,
       rmsDegS: r.rmsDegS,
     };
-  }
+  });
   return {
     sampleRateHz: a.sampleRateHz,
     durationS: a.durationS,

@@ -7,6 +7,7 @@ import {
   proposeColumnMap,
   type ColumnBinding,
   type ColumnMap,
+  type PerAxis,
   type RateUnit,
   type RpmUnit,
   type ThrottleUnit,
@@ -51,11 +52,11 @@ export interface Layout {
   slotOfColumn: Int32Array;
   slots: number;
   time: Slot;
-  gyro: readonly [Slot, Slot, Slot];
+  gyro: PerAxis<Slot>;
   throttle: ThrottleSlot | null;
   /** In motor order. */
   rpm: readonly RpmSlot[];
-  setpoint: readonly [Slot, Slot, Slot] | null;
+  setpoint: PerAxis<Slot> | null;
 }
 
 /** The map a reader uses for these headers, and the sentences for what it guessed. */

@@ -10,6 +10,20 @@ import { InputError } from "../errors";
 
 export const AXES = ["roll", "pitch", "yaw"] as const;
 export type Axis = (typeof AXES)[number];
+/** An index into {@link AXES}. */
+export type AxisIndex = 0 | 1 | 2;
+/** One value per gyro axis, in {@link AXES} order. */
+export type PerAxis<T> = readonly [T, T, T];
+
+/** `make` for every axis, in {@link AXES} order: a tuple, so no index needs a check. */
+export function perAxis<T>(make: (axis: Axis, a: AxisIndex) => T): [T, T, T] {
+  return [make("roll", 0), make("pitch", 1), make("yaw", 2)];
+}
+
+/** `make` for every axis, as a record keyed (and ordered) like {@link AXES}. */
+export function axisRecord<T>(make: (axis: Axis, a: AxisIndex) => T): Record<Axis, T> {
+  return { roll: make("roll", 0), pitch: make("pitch", 1), yaw: make("yaw", 2) };
+}
 export const MAX_MOTORS = 8;
 
 export type TimeUnit = "us" | "ms" | "s";

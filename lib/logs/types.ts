@@ -1,4 +1,4 @@
-import type { ColumnMap } from "./columns";
+import type { ColumnMap, PerAxis } from "./columns";
 
 /**
  * What the log reader hands on and returns (re-exported by read-log.ts, the reader's public
@@ -35,13 +35,13 @@ export interface SampleBlock {
   /** Seconds from the log's own zero. */
   timeS: Float64Array;
   /** deg/s, in AXES order. */
-  gyro: readonly [Float64Array, Float64Array, Float64Array];
+  gyro: PerAxis<Float64Array>;
   /** 0..1, or null when the log has no throttle column. */
   throttle: Float64Array | null;
   /** rev/min, one array per entry of LogInfo.motors. */
   rpm: readonly Float64Array[];
   /** deg/s in AXES order, or null. */
-  setpoint: readonly [Float64Array, Float64Array, Float64Array] | null;
+  setpoint: PerAxis<Float64Array> | null;
 }
 
 export interface Gap {

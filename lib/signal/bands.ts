@@ -1,3 +1,5 @@
+import { middleOfSorted } from "./stats";
+
 /** Integrals and summaries of a one-sided PSD on a uniform grid (bin k at k·binHz). */
 
 /** A frequency band [loHz, hiHz). */
@@ -37,11 +39,7 @@ export function noiseFloor(
 ): number {
   const { first, end } = bandBins({ loHz: cornerHz, hiHz: maxHz }, binHz, psd.length);
   if (end <= first) return Number.NaN;
-  const values = psd.slice(first, end).sort();
-  const mid = values.length >> 1;
-  return values.length % 2 === 1
-    ? (values[mid] ?? 0)
-    : ((values[mid - 1] ?? 0) + (values[mid] ?? 0)) / 2;
+  return middleOfSorted(psd.slice(first, end).sort());
 }
 
 /** 10·log10 of a power, floored so that zero power gives a finite, very low level. */

@@ -11,24 +11,16 @@ export class RealPowerSpectrum {
   private readonly out: Float64Array;
 
   constructor(size: number) {
-    if (!Number.isInteger(size) || size < 2 || (size & (size - 1)) !== 0) {
-      throw new RangeError(`FFT length must be a power of two ≥ 2, got ${size}`);
-    }
+    this.fft = checkedFft(size);
     this.size = size;
     this.bins = size / 2 + 1;
-    this.fft = new FFT(size);
     this.out = new Float64Array(2 * size);
   }
 
   /** Writes |X_k|² into `target[0..bins)`. `frame` must hold `size` samples. */
   compute(frame: Float64Array, target: Float64Array): void {
     this.fft.realTransform(this.out, frame);
-    const out = this.out;
-    for (let k = 0, j = 0; k < this.bins; k++, j += 2) {
-      const re = out[j] as number;
-      const im = out[j + 1] as number;
-      target[k] = re * re + im * im;
-    }
+    squaredMagnitudes(this.out, target, this.bins);
   }
 }
 
@@ -44,11 +36,8 @@ export class ComplexPowerSpectrum {
   private readonly power: Float64Array;
 
   constructor(size: number) {
-    if (!Number.isInteger(size) || size < 2 || (size & (size - 1)) !== 0) {
-      throw new RangeError(`FFT length must be a power of two ≥ 2, got ${size}`);
-    }
+    this.fft = checkedFft(size);
     this.size = size;
-    this.fft = new FFT(size);
     this.power = new Float64Array(size);
     this.input = new Float64Array(2 * size);
     this.out = new Float64Array(2 * size);
@@ -73,10 +62,24 @@ export class ComplexPowerSpectrum {
       x[2 * i + 1] = im[offset + i * stride] ?? 0;
     }
     this.fft.transform(this.out, x);
-    const out = this.out;
-    const p = this.power;
-    for (let k = 0, j = 0; k < this.size; k++, j += 2)
-      p[k] = (out[j] as number) ** 2 + (out[j + 1] as number) ** 2;
-    return p;
+    squaredMagnitudes(this.out, this.power, this.size);
+    return this.power;
+  }
+}
+
+/** fft.js's transform for `size` points, after checking the size once for both spectra. */
+function checkedFft(size: number): FFT {
+  if (!Number.isInteger(size) || size < 2 || (size & (size - 1)) !== 0) {
+    throw new RangeError(`FFT length must be a power of two ≥ 2, got ${size}`);
+  }
+  return new FFT(size);
+}
+
+/** target[k] = re² + im² of the interleaved complex values (out[2k], out[2k+1]), k < count. */
+function squaredMagnitudes(out: Float64Array, target: Float64Array, count: number): void {
+  for (let k = 0, j = 0; k < count; k++, j += 2) {
+    const re = out[j] ?? 0;
+    const im = out[j + 1] ?? 0;
+    target[k] = re * re + im * im;
   }
 }

@@ -21,10 +21,19 @@ export function stdDev(values: readonly number[]): number {
 
 /** Median (mean of the two middle values for an even count); NaN for none. */
 export function median(values: readonly number[]): number {
-  const v = values.filter(Number.isFinite).sort((a, b) => a - b);
-  if (v.length === 0) return Number.NaN;
-  const mid = v.length >> 1;
-  return v.length % 2 === 1 ? (v[mid] ?? 0) : ((v[mid - 1] ?? 0) + (v[mid] ?? 0)) / 2;
+  return middleOfSorted(values.filter(Number.isFinite).sort((a, b) => a - b));
+}
+
+/**
+ * The median of values already sorted ascending: the middle one, or the mean of the two middle
+ * ones for an even count; NaN for none. The one median rule of `lib/signal`, for callers that sort
+ * a typed array in place (NaN sorts last there) rather than filter a list.
+ */
+export function middleOfSorted(sorted: ArrayLike<number>): number {
+  const n = sorted.length;
+  if (n === 0) return Number.NaN;
+  const mid = n >> 1;
+  return n % 2 === 1 ? (sorted[mid] ?? 0) : ((sorted[mid - 1] ?? 0) + (sorted[mid] ?? 0)) / 2;
 }
 
 /** Mean weighted by w (weights ≥ 0); NaN when the weights sum to zero. */

@@ -1,4 +1,5 @@
 import { RealPowerSpectrum } from "./fft";
+import { middleOfSorted } from "./stats";
 import { makeWindow, windowSums, type WindowName } from "./windows";
 
 /**
@@ -184,37 +185,74 @@ export function welch(
       `a signal of ${x.length} samples is shorter than one segment of ${resolved.nperseg} samples`,
     );
   }
-  const bins = periodogram.bins;
-  const psd = new Float64Array(bins);
-  const one = new Float64Array(bins);
-  if (resolved.average === "mean") {
-    for (const s of starts) {
-      periodogram.compute(x, s, one);
-      for (let k = 0; k < bins; k++) psd[k] = (psd[k] ?? 0) + (one[k] ?? 0);
-    }
-    for (let k = 0; k < bins; k++) psd[k] = (psd[k] ?? 0) / starts.length;
-  } else {
-    const all = starts.map((s) => {
-      const p = new Float64Array(bins);
-      periodogram.compute(x, s, p);
-      return p;
-    });
-    medianAcross(all, psd);
-    const bias = medianBias(all.length);
-    for (let k = 0; k < bins; k++) psd[k] = (psd[k] ?? 0) / bias;
+  const average = new PeriodogramAverage(periodogram.bins, resolved.average);
+  const one = new Float64Array(periodogram.bins);
+  for (const s of starts) {
+    periodogram.compute(x, s, one);
+    average.add(one);
   }
-  return { freqHz: periodogram.freqHz, psd, segments: starts.length };
+  return { freqHz: periodogram.freqHz, psd: average.result(), segments: starts.length };
 }
 
-/** Bin-by-bin median of equally long spectra (mean of the two middle values for an even count). */
-export function medianAcross(spectra: readonly Float64Array[], target: Float64Array): void {
-  const count = spectra.length;
-  const column = new Float64Array(count);
-  for (let k = 0; k < target.length; k++) {
-    for (let j = 0; j < count; j++) column[j] = spectra[j]?.[k] ?? 0;
-    column.sort();
-    const mid = count >> 1;
-    target[k] =
-      count % 2 === 1 ? (column[mid] ?? 0) : ((column[mid - 1] ?? 0) + (column[mid] ?? 0)) / 2;
+/** How {@link PeriodogramAverage} keeps the periodograms a median needs. */
+export type KeptPrecision = "float64" | "float32";
+
+/**
+ * Averages periodograms bin by bin: the one place Welch's average is taken. "mean" keeps a running
+ * sum; "median" keeps every periodogram and divides the bin-wise median (the mean of the two middle
+ * values for an even count) by {@link medianBias}, as `scipy.signal.csd` does, so that both
+ * estimate the same density. `keep: "float32"` halves the memory the median needs on long logs at
+ * about 1e-7 relative precision. Periodograms passed to `add` are copied or summed, never kept.
+ */
+export class PeriodogramAverage {
+  readonly bins: number;
+  readonly average: Averaging;
+  private readonly keep: KeptPrecision;
+  private readonly sum: Float64Array;
+  private readonly kept: (Float64Array | Float32Array)[] = [];
+  private added = 0;
+
+  constructor(bins: number, average: Averaging, keep: KeptPrecision = "float64") {
+    this.bins = bins;
+    this.average = average;
+    this.keep = keep;
+    this.sum = new Float64Array(average === "mean" ? bins : 0);
+  }
+
+  /** Periodograms added so far. */
+  get count(): number {
+    return this.added;
+  }
+
+  /** Adds one periodogram of `bins` values. */
+  add(periodogram: Float64Array): void {
+    this.added++;
+    if (this.average === "median") {
+      this.kept.push(
+        this.keep === "float32"
+          ? Float32Array.from(periodogram.subarray(0, this.bins))
+          : periodogram.slice(0, this.bins),
+      );
+      return;
+    }
+    const sum = this.sum;
+    for (let k = 0; k < this.bins; k++) sum[k] = (sum[k] ?? 0) + (periodogram[k] ?? 0);
+  }
+
+  /** The average into `target` (a new array by default); zeros when nothing was added. */
+  result(target: Float64Array = new Float64Array(this.bins)): Float64Array {
+    const count = this.added;
+    if (count === 0) return target.fill(0);
+    if (this.average === "mean") {
+      for (let k = 0; k < this.bins; k++) target[k] = (this.sum[k] ?? 0) / count;
+      return target;
+    }
+    const bias = medianBias(count);
+    const column = new Float64Array(count);
+    for (let k = 0; k < this.bins; k++) {
+      for (let j = 0; j < count; j++) column[j] = this.kept[j]?.[k] ?? 0;
+      target[k] = middleOfSorted(column.sort()) / bias;
+    }
+    return target;
   }
 }

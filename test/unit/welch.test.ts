@@ -1,7 +1,9 @@
 import { readFileSync } from "node:fs";
 import { describe, expect, it } from "vitest";
 import { RealPowerSpectrum } from "@/lib/signal/fft";
+import { middleOfSorted } from "@/lib/signal/stats";
 import {
+  PeriodogramAverage,
   defaultNperseg,
   medianBias,
   segmentStarts,
@@ -205,5 +207,53 @@ describe("Welch options and errors", () => {
         128,
       ),
     ).toEqual([0, 128, 400, 528, 656]);
+  });
+});
+
+describe("PeriodogramAverage (the one Welch average)", () => {
+  const spectra = [
+    [1, 10, 4],
+    [3, 20, 8],
+    [2, 60, 6],
+    [8, 30, 2],
+  ].map((v) => Float64Array.from(v));
+  const averaged = (average: "mean" | "median", count: number, keep?: "float32") => {
+    const avg = new PeriodogramAverage(3, average, keep);
+    for (const s of spectra.slice(0, count)) avg.add(s);
+    return Array.from(avg.result());
+  };
+
+  it("mean: the bin-wise arithmetic mean (hand-computed)", () => {
+    expect(averaged("mean", 4)).toEqual([3.5, 30, 5]);
+  });
+  it("median: bin-wise median over the bias b(n) (scipy csd: median / _median_bias)", () => {
+    // Three spectra: the middle values 2, 20, 6 over b(3) = 1 − 1/6.
+    expect(averaged("median", 3)).toEqual([2, 20, 6].map((v) => expect.closeTo(v / (5 / 6), 12)));
+    // Four: the mean of the two middle values (numpy's median), over b(4) = 1 − 1/6.
+    expect(averaged("median", 4)).toEqual([2.5, 25, 5].map((v) => expect.closeTo(v / (5 / 6), 12)));
+  });
+  it("median kept in float32 agrees to float32 precision (relative 1e-7)", () => {
+    const f64 = averaged("median", 4);
+    averaged("median", 4, "float32").forEach((v, k) =>
+      expect(Math.abs(v / (f64[k] ?? 1) - 1)).toBeLessThan(1e-7),
+    );
+  });
+  it("nothing added gives zeros, and the input is copied, not kept", () => {
+    expect(averaged("median", 0)).toEqual([0, 0, 0]);
+    expect(averaged("mean", 0)).toEqual([0, 0, 0]);
+    const avg = new PeriodogramAverage(2, "median");
+    const p = Float64Array.from([1, 2]);
+    avg.add(p);
+    p[0] = 99;
+    expect(Array.from(avg.result())).toEqual([1, 2]);
+    expect(avg.count).toBe(1);
+  });
+});
+
+describe("middleOfSorted (the one median rule)", () => {
+  it("odd: the middle value; even: the mean of the two middle values; none: NaN (numpy.median)", () => {
+    expect(middleOfSorted([1, 2, 9])).toBe(2);
+    expect(middleOfSorted(Float64Array.from([1, 2, 4, 9]))).toBe(3);
+    expect(middleOfSorted([])).toBeNaN();
   });
 });

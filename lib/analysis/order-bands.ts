@@ -1,0 +1,209 @@
+import { axisRecord } from "../logs/columns";
+import type { SampleBlock } from "../logs/read-log";
+import { toDb } from "../signal/bands";
+import { round } from "../signal/stats";
+import { MASK_REASONS, OrderTracker, type MaskReason, type OrderBlock } from "./order-tracker";
+import { throttleBandOf, type AnalysisPlan } from "./plan";
+import { TELEMETRY_LIMITS } from "./settings";
+import type { MotorInBand, MotorSummary, MotorTrackPoint, OrderLevel } from "./types";
+
+/** Points of a motor's track in the results; longer tracks are averaged down to this. */
+const MAX_TRACK_POINTS = 300;
+
+/** Sums of one motor's order in one throttle band, over the blocks that measured it. */
+interface OrderSums {
+  /** Blocks that measured it (telemetry believed, frequency below the trusted top). */
+  count: number;
+  /** Σ power and Σ sideband power (whole orders) per axis, (deg/s)². */
+  power: [number, number, number];
+  side: [number, number, number];
+}
+
+/** One motor's order-tracking sums in one throttle band. */
+interface MotorSums {
+  /** Blocks measured and blocks masked; Σ mean rpm of the measured ones. */
+  measured: number;
+  masked: number;
+  rpmSum: number;
+  orders: OrderSums[];
+}
+
+/** The order-tracking blocks whose mean throttle fell in one throttle band. */
+interface BandSums {
+  blocks: number;
+  motors: MotorSums[];
+}
+
+/** One motor through the whole log: its 1× track and its masked blocks by reason. */
+interface MotorRecord {
+  track: MotorTrackPoint[];
+  masked: Record<MaskReason, number>;
+}
+
+/**
+ * The motor orders of a log with rpm telemetry: the {@link OrderTracker}'s blocks summed per
+ * throttle band and motor (a level is the mean power of the blocks that measured it), and each
+ * motor's 1× track and masked blocks through the log. Untrustworthy telemetry is counted, never
+ * measured.
+ */
+export class OrderBands {
+  private readonly plan: AnalysisPlan;
+  private readonly tracker: OrderTracker;
+  private readonly sums: BandSums[];
+  private readonly records: MotorRecord[];
+  /** Index of the 1× order among the tracked ones (its level is the track's). */
+  private readonly one: number;
+  private blocksSeen = 0;
+
+  constructor(plan: AnalysisPlan) {
+    this.plan = plan;
+    const motors = plan.motors.length;
+    this.sums = Array.from({ length: plan.throttleBands }, () => ({
+      blocks: 0,
+      motors: Array.from({ length: motors }, () => ({
+        measured: 0,
+        masked: 0,
+        rpmSum: 0,
+        orders: plan.orders.map(() => ({ count: 0, power: [0, 0, 0], side: [0, 0, 0] })),
+      })),
+    }));
+    this.records = Array.from({ length: motors }, () => ({
+      track: [],
+      masked: { zero: 0, range: 0, stuck: 0, slew: 0 },
+    }));
+    this.one = plan.orders.findIndex((o) => o.order === 1);
+    this.tracker = new OrderTracker(
+      plan.sampleRateHz,
+      motors,
+      plan.orders.map((o) => o.order),
+      plan.settings.minFreqHz,
+      plan.maxFreqHz,
+      TELEMETRY_LIMITS,
+      (b) => this.add(b),
+    );
+  }
+
+  /** No order block may straddle a gap. */
+  gap(): void {
+    this.tracker.reset();
+  }
+
+  push(block: SampleBlock): void {
+    this.tracker.push(block.length, block.timeS, block.gyro, block.throttle, block.rpm);
+  }
+
+  private add(b: OrderBlock): void {
+    const band = this.sums[throttleBandOf(b.throttle, this.plan.throttleBands)];
+    if (!band) return;
+    band.blocks++;
+    this.blocksSeen++;
+    band.motors.forEach((sums, m) => {
+      const record = this.records[m];
+      if (!record) return;
+      const reason = b.masked[m];
+      if (reason) {
+        sums.masked++;
+        record.masked[reason]++;
+        return;
+      }
+      const rotationHz = b.rotationHz[m] ?? 0;
+      sums.measured++;
+      sums.rpmSum += rotationHz * 60;
+      let order1Max = Number.NaN;
+      sums.orders.forEach((order, j) => {
+        const power = b.power[m]?.[j];
+        const side = b.side[m]?.[j];
+        if (!power || !side || !Number.isFinite(power[0])) return;
+        order.count++;
+        for (const a of [0, 1, 2] as const) {
+          order.power[a] += power[a] ?? 0;
+          const s = side[a] ?? 0;
+          order.side[a] += Number.isFinite(s) ? s : 0;
+        }
+        if (j === this.one) order1Max = Math.max(power[0] ?? 0, power[1] ?? 0, power[2] ?? 0);
+      });
+      record.track.push({
+        tS: b.tS,
+        rotationHz,
+        order1Db: Number.isNaN(order1Max) ? Number.NaN : toDb(order1Max),
+      });
+    });
+  }
+
+  /** Each motor's mean rpm and order levels in throttle band `index`, dB re 1 (deg/s)². */
+  bandMotors(index: number): MotorInBand[] {
+    const band = this.sums[index];
+    if (!band) return [];
+    return band.motors.map((sums, m) => {
+      const meanRpm = sums.measured > 0 ? sums.rpmSum / sums.measured : 0;
+      return {
+        motor: this.plan.motors[m] ?? 0,
+        meanRpm: round(meanRpm, 1),
+        blocks: band.blocks,
+        maskedBlocks: sums.masked,
+        orders: this.plan.orders.map((o, j) => {
+          const order = sums.orders[j] ?? { count: 0, power: [0, 0, 0], side: [0, 0, 0] };
+          const clear = order.count;
+          const levelDb = (sum: readonly number[]) =>
+            axisRecord((_axis, a) =>
+              clear > 0 ? round(toDb((sum[a] ?? 0) / clear), 3) : Number.NaN,
+            );
+          const level: OrderLevel = {
+            order: o.order,
+            label: o.label,
+            freqHz: round((meanRpm / 60) * o.order, 2),
+            powerDb: levelDb(order.power),
+          };
+          if (Number.isInteger(o.order)) level.sideDb = levelDb(order.side);
+          return level;
+        }),
+      };
+    });
+  }
+
+  /** Each motor through the whole log: mean rpm, masked share and blocks, its 1× track. */
+  summaries(): MotorSummary[] {
+    return this.records.map((record, m) => {
+      const track = record.track;
+      const meanRpm =
+        track.length > 0 ? (track.reduce((s, p) => s + p.rotationHz, 0) / track.length) * 60 : 0;
+      const maskedBlocks = MASK_REASONS.reduce((s, r) => s + record.masked[r], 0);
+      return {
+        motor: this.plan.motors[m] ?? 0,
+        meanRpm: round(meanRpm, 1),
+        maskedShare: this.blocksSeen > 0 ? round(maskedBlocks / this.blocksSeen, 4) : 0,
+        maskedBlocks: record.masked,
+        track: decimateTrack(track, MAX_TRACK_POINTS),
+      };
+    });
+  }
+}
+
+/** At most `maxPoints` points: consecutive groups averaged (order levels as powers), rounded. */
+function decimateTrack(track: MotorTrackPoint[], maxPoints: number): MotorTrackPoint[] {
+  if (track.length <= maxPoints) return track.map(roundPoint);
+  const group = Math.ceil(track.length / maxPoints);
+  const out: MotorTrackPoint[] = [];
+  for (let i = 0; i < track.length; i += group) {
+    const part = track.slice(i, i + group);
+    const n = part.length;
+    out.push(
+      roundPoint({
+        tS: part.reduce((s, p) => s + p.tS, 0) / n,
+        rotationHz: part.reduce((s, p) => s + p.rotationHz, 0) / n,
+        order1Db: meanDb(part.map((p) => p.order1Db)),
+      }),
+    );
+  }
+  return out;
+}
+
+/** Power mean of dB values, skipping NaN (segments where the order was not clear). */
+function meanDb(values: number[]): number {
+  const v = values.filter(Number.isFinite);
+  return v.length === 0 ? Number.NaN : toDb(v.reduce((s, x) => s + 10 ** (x / 10), 0) / v.length);
+}
+
+function roundPoint(p: MotorTrackPoint): MotorTrackPoint {
+  return { tS: round(p.tS, 3), rotationHz: round(p.rotationHz, 2), order1Db: round(p.order1Db, 2) };
+}
