@@ -1,6 +1,6 @@
 import { MOTOR_POSITIONS } from "../health/motor-positions";
 import type { Axis } from "../logs/columns";
-import { perAxis } from "./per-axis";
+import { axisValues } from "./axis-values";
 
 /**
  * The invented "house frame" of the demo: a 5-inch-class X frame whose numbers were made up for
@@ -43,18 +43,18 @@ export interface AirframeModel {
 
 /** The house frame's modes: name, coupling (roll, pitch, yaw), frequency Hz, Q, gain. */
 const HOUSE_MODES: [string, Record<Axis, number>, number, number, number][] = [
-  ["roll bending", perAxis(1, 0.12, 0.05), 174, 14, 5],
-  ["pitch bending", perAxis(0.1, 1, 0.05), 236, 16, 6],
-  ["arm torsion", perAxis(0.08, 0.08, 1), 312, 12, 4],
-  ["second bending", perAxis(0.7, 0.7, 0.1), 455, 10, 2.5],
+  ["roll bending", axisValues(1, 0.12, 0.05), 174, 14, 5],
+  ["pitch bending", axisValues(0.1, 1, 0.05), 236, 16, 6],
+  ["arm torsion", axisValues(0.08, 0.08, 1), 312, 12, 4],
+  ["second bending", axisValues(0.7, 0.7, 0.1), 455, 10, 2.5],
 ];
 
 /** The house frame's motors: number, coupling (roll, pitch, yaw), 1× imbalance deg/s. */
 const HOUSE_MOTORS: [number, Record<Axis, number>, number][] = [
-  [1, perAxis(0.72, 0.68, 0.3), 2.4],
-  [2, perAxis(0.66, 0.74, 0.28), 2.8],
-  [3, perAxis(0.7, 0.7, 0.32), 2.2],
-  [4, perAxis(0.75, 0.65, 0.3), 2.6],
+  [1, axisValues(0.72, 0.68, 0.3), 2.4],
+  [2, axisValues(0.66, 0.74, 0.28), 2.8],
+  [3, axisValues(0.7, 0.7, 0.32), 2.2],
+  [4, axisValues(0.75, 0.65, 0.3), 2.6],
 ];
 
 export const HOUSE_FRAME: AirframeModel = {

@@ -1,5 +1,5 @@
 import type { Axis } from "../../logs/columns";
-import { perAxis } from "../per-axis";
+import { axisValues } from "../axis-values";
 import { mulberry32, type Random } from "../random";
 import type { TelemetrySpec } from "./telemetry";
 
@@ -108,12 +108,12 @@ export function bearingDefectOrders(balls: number, rho: number): [number, number
  * primary.
  */
 const DESIGN_MODE_ROWS: [string, number, number, Record<Axis, number>, number, boolean][] = [
-  ["roll bending", 168, 0.03, perAxis(1, 0.15, 0.05), 5, true],
-  ["pitch bending", 224, 0.028, perAxis(0.1, 1, 0.05), 6, true],
-  ["arm torsion", 296, 0.035, perAxis(0.08, 0.1, 1), 4, true],
-  ["diagonal bending", 352, 0.04, perAxis(0.65, 0.6, 0.1), 3, true],
-  ["second bending", 438, 0.045, perAxis(0.7, 0.5, 0.15), 2.5, false],
-  ["second torsion", 612, 0.05, perAxis(0.1, 0.1, 0.8), 2, false],
+  ["roll bending", 168, 0.03, axisValues(1, 0.15, 0.05), 5, true],
+  ["pitch bending", 224, 0.028, axisValues(0.1, 1, 0.05), 6, true],
+  ["arm torsion", 296, 0.035, axisValues(0.08, 0.1, 1), 4, true],
+  ["diagonal bending", 352, 0.04, axisValues(0.65, 0.6, 0.1), 3, true],
+  ["second bending", 438, 0.045, axisValues(0.7, 0.5, 0.15), 2.5, false],
+  ["second torsion", 612, 0.05, axisValues(0.1, 0.1, 0.8), 2, false],
 ];
 
 const DESIGN_MODES: ModeSpec[] = DESIGN_MODE_ROWS.map(
@@ -129,10 +129,10 @@ const DESIGN_MODES: ModeSpec[] = DESIGN_MODE_ROWS.map(
 
 /** The design's motors: number, coupling (roll, pitch, yaw), mixer signs, 1× amplitude. */
 const DESIGN_MOTOR_ROWS: [number, Record<Axis, number>, Record<Axis, number>, number][] = [
-  [1, perAxis(0.72, 0.68, 0.3), perAxis(-1, 1, -1), 2.4],
-  [2, perAxis(0.66, 0.74, 0.28), perAxis(-1, -1, 1), 2.8],
-  [3, perAxis(0.7, 0.7, 0.32), perAxis(1, 1, 1), 2.2],
-  [4, perAxis(0.75, 0.65, 0.3), perAxis(1, -1, -1), 2.6],
+  [1, axisValues(0.72, 0.68, 0.3), axisValues(-1, 1, -1), 2.4],
+  [2, axisValues(0.66, 0.74, 0.28), axisValues(-1, -1, 1), 2.8],
+  [3, axisValues(0.7, 0.7, 0.32), axisValues(1, 1, 1), 2.2],
+  [4, axisValues(0.75, 0.65, 0.3), axisValues(1, -1, -1), 2.6],
 ];
 
 /** What every motor of the design shares: its other orders, a healthy bearing, no looseness. */

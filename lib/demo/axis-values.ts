@@ -1,6 +1,6 @@
 import type { Axis } from "../logs/columns";
 
 /** { roll, pitch, yaw }: one number per gyro axis, for the rows of the demo's design tables. */
-export function perAxis(roll: number, pitch: number, yaw: number): Record<Axis, number> {
+export function axisValues(roll: number, pitch: number, yaw: number): Record<Axis, number> {
   return { roll, pitch, yaw };
 }
