@@ -20,8 +20,7 @@ import { AXES } from "@/lib/logs/columns";
  * the top-level shape are.
  */
 
-const STATUSES = STATUS_ORDER as readonly [Status, ...Status[]];
-const statusSchema = z.enum(STATUSES);
+const statusSchema = z.enum(STATUS_ORDER);
 
 const findingSchema = z.object({
   axis: z.enum(AXES),
