@@ -8,6 +8,7 @@ import { isRole, type Actor, type Role } from "@/lib/roles";
 import { authOptions } from "./auth-options";
 import { assertRole, hashToken } from "./authorize";
 import { db } from "./db";
+import { membershipsOf, tokenByHash } from "./request-reads";
 import { assertSessionOpen } from "./sessions";
 
 export { assertRole, hashToken };
@@ -113,11 +114,7 @@ export async function actorForUser(
   wantedTeamId: string | undefined,
   minimum: Role,
 ): Promise<Actor> {
-  const memberships = await db.membership.findMany({
-    where: { userId },
-    include: { user: { select: { name: true } } },
-    orderBy: { id: "asc" },
-  });
+  const memberships = await membershipsOf(userId);
   const m = memberships.find((x) => x.teamId === wantedTeamId) ?? memberships[0];
   if (!m) throw new ForbiddenError(NO_TEAM_MESSAGE);
   if (!isRole(m.role)) throw new ForbiddenError();
@@ -125,7 +122,7 @@ export async function actorForUser(
     teamId: m.teamId,
     role: m.role,
     userId,
-    name: m.user.name,
+    name: m.userName,
     via: "session",
   };
   assertRole(actor, minimum);
@@ -141,7 +138,7 @@ export async function requireToken(request: Request, minimum: Role = "viewer"): 
   const m = /^Bearer\s+(\S+)$/i.exec(header);
   if (!m?.[1])
     throw new UnauthenticatedError("Send an API token as: Authorization: Bearer <token>.");
-  const token = await db.apiToken.findUnique({ where: { tokenHash: hashToken(m[1]) } });
+  const token = await tokenByHash(hashToken(m[1]));
   if (!token || token.revokedAt)
     throw new UnauthenticatedError("That API token is not valid or has been revoked.");
   if (token.suspendedAt)

@@ -1,6 +1,7 @@
 import "server-only";
 import { UnauthenticatedError } from "@/lib/errors";
 import { db } from "./db";
+import { sessionById } from "./request-reads";
 
 /**
  * Sessions a server can end. The session cookie is a signed next-auth JWT that carries only a
@@ -33,7 +34,7 @@ export async function assertSessionOpen(
   userId: string,
   now = new Date(),
 ): Promise<void> {
-  const s = await db.session.findUnique({ where: { id: sessionId } });
+  const s = await sessionById(sessionId);
   if (!s || s.userId !== userId || s.endedAt)
     throw new UnauthenticatedError("Your session has ended; sign in again.");
   const reason: SessionEndReason | null =

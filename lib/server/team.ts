@@ -6,13 +6,13 @@ import { roleAtLeast, type Actor, type Role } from "@/lib/roles";
 import { audit } from "./audit";
 import { assertAcceptablePassword, hashPassword } from "./passwords";
 import { db, type Tx } from "./db";
+import { teamNameOf } from "./request-reads";
 import { endUserSessions } from "./sessions";
 import { assertRole, hashToken } from "./authorize";
 
 /** The acting team's name, for the navigation bar. */
 export async function teamName(actor: Actor): Promise<string> {
-  const team = await db.team.findUnique({ where: { id: actor.teamId }, select: { name: true } });
-  return team?.name ?? "";
+  return teamNameOf(actor.teamId);
 }
 
 export async function listMembers(actor: Actor) {
