@@ -2,6 +2,8 @@ import "server-only";
 import { rankQueue, type AirframeFacts, type QueueEntry } from "@/lib/health/queue-rank";
 import { repairsSince, staleBaselineReason } from "@/lib/health/repair-effects";
 import type { Actor } from "@/lib/roles";
+import { open, stat, type FileHandle } from "node:fs/promises";
+import { databaseFile } from "./data-folder";
 import { db } from "./db";
 import { fleetPlacement } from "./fleet";
 import { lifeOfParts } from "./parts";
@@ -27,8 +29,7 @@ const QUEUE_MAX_AGE_MS = 10_000;
 
 // The queue is read by every pit screen every few seconds and written rarely. SQLite work runs on
 // the event loop, so recomputing it per request starved uploads under 50 readers. A team's ranking
-// is computed once per change of the database (SQLite's change counter of this connection, and
-// data_version for commits by another process such as a seed) and shared by concurrent readers.
+// is computed once per change of the database and shared by concurrent readers.
 interface CachedRanking {
   version: string;
   at: number;
@@ -38,11 +39,39 @@ const cache = ((
   globalThis as unknown as { heatcheckQueueCache?: Map<string, CachedRanking> }
 ).heatcheckQueueCache ??= new Map<string, CachedRanking>());
 
+/**
+ * Changes whenever any connection of any process commits: SQLite's file change counter (the
+ * big-endian 32-bit integer at offset 24 of the database header, which SQLite increments each time
+ * it unlocks a file it modified — sqlite.org/fileformat.html §1.3.8), plus the WAL file's size and
+ * time should the database ever run in WAL mode, where the counter moves only at checkpoints.
+ * SQLite's own counters do not serve here: total_changes() and data_version are per connection,
+ * the adapter answers from more than one, so the key flipped between them and the ranking was
+ * recomputed on nearly every read. A database that is not a local file has no key;
+ * QUEUE_MAX_AGE_MS then bounds how stale a ranking can be.
+ */
 async function databaseVersion(): Promise<string> {
-  const [row] = await db.$queryRaw<
-    { c: bigint | number; d: bigint | number }[]
-  >`SELECT total_changes() AS c, (SELECT data_version FROM pragma_data_version) AS d`;
-  return `${String(row?.c)}:${String(row?.d)}`;
+  const file = databaseFile();
+  if (!file) return "";
+  const counter = await readChangeCounter(file);
+  const wal = await stat(`${file}-wal`).then(
+    (s) => `${s.mtimeMs}:${s.size}`,
+    () => "-",
+  );
+  return `${counter}|${wal}`;
+}
+
+async function readChangeCounter(file: string): Promise<string> {
+  let fh: FileHandle | undefined;
+  try {
+    fh = await open(file, "r");
+    const header = Buffer.alloc(4);
+    await fh.read(header, 0, 4, 24);
+    return String(header.readUInt32BE(0));
+  } catch {
+    return "-";
+  } finally {
+    await fh?.close();
+  }
 }
 
 /** Every active airframe of the team, ranked for inspection before the next heat. */
