@@ -4,8 +4,7 @@ import { createReadStream, statSync } from "node:fs";
 import { isDomainError } from "../errors";
 import { parseColumnMap } from "../logs/columns";
 import type { Baseline } from "../health/baseline";
-import { compareWithBaseline, type Assessment } from "../health/compare";
-import { MOTOR_POSITIONS } from "../health/motor-positions";
+import { compareWithPositions, type Assessment } from "../health/compare";
 import { analyzeLog } from "./analyze-log";
 import type { LogAnalysis } from "./types";
 
@@ -58,24 +57,21 @@ export async function runJob(job: AnalysisJob, post: (m: WorkerMessage) => void)
       { map, maxBytes: job.maxBytes },
     );
     const analysisJson = JSON.stringify(analysis, compactNumbers);
+    // Compared as stored (5 digits), as the server would compare it after reading it back.
+    const compared = job.baseline && {
+      baselineId: job.baseline.id,
+      assessment: compareWithPositions(
+        JSON.parse(analysisJson) as LogAnalysis,
+        JSON.parse(job.baseline.json) as Baseline,
+      ),
+    };
     post({
       type: "done",
       jobId: job.jobId,
       analysisJson,
       sampleRateHz: analysis.sampleRateHz,
       durationS: analysis.durationS,
-      ...(job.baseline
-        ? {
-            compared: {
-              baselineId: job.baseline.id,
-              assessment: compareWithBaseline(
-                JSON.parse(analysisJson) as LogAnalysis,
-                JSON.parse(job.baseline.json) as Baseline,
-                { motorPositions: MOTOR_POSITIONS },
-              ),
-            },
-          }
-        : {}),
+      ...(compared ? { compared } : {}),
     });
   } catch (e) {
     post({

@@ -10,6 +10,7 @@ import { motorOrders } from "./detectors/motor-orders";
 import { newPeaks } from "./detectors/new-resonance";
 import { orderEvidence } from "./detectors/order-evidence";
 import type { Assessment, Finding, NotCompared } from "./findings";
+import { MOTOR_POSITIONS } from "./motor-positions";
 import {
   DEFAULT_THRESHOLDS,
   statusForScore,
@@ -221,4 +222,12 @@ function unscored(notCompared: NotCompared[], reason: string): Assessment {
     notCompared: [...notCompared, { what: "whole log", reason }],
     comparedBands: [],
   };
+}
+
+/**
+ * The comparison as every screen, the worker and the CLI make it: compareWithBaseline with the
+ * motors named by position (MOTOR_POSITIONS) in the sentences.
+ */
+export function compareWithPositions(log: LogAnalysis, baseline: Baseline): Assessment {
+  return compareWithBaseline(log, baseline, { motorPositions: MOTOR_POSITIONS });
 }

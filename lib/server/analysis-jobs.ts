@@ -1,15 +1,13 @@
 import "server-only";
-import type { LogAnalysis } from "@/lib/analysis/types";
-import type { Baseline } from "@/lib/health/baseline";
 import type { AnalysisOutcome } from "@/lib/analysis/worker";
-import { compareWithBaseline } from "@/lib/health/compare";
-import { MOTOR_POSITIONS } from "@/lib/health/motor-positions";
+import { compareWithPositions } from "@/lib/health/compare";
 import { analysisPool } from "./analysis-pool";
 import { storeAssessment } from "./assessments";
 import { storedFileOf } from "./data-folder";
 import { db, type Tx } from "./db";
 import { maxUploadBytes } from "./limits";
 import { isDiskFull } from "./storage-errors";
+import { decodeAnalysis, decodeBaseline } from "./stored";
 
 /**
  * Runs the analysis of stored logs off the request thread and records the verdict: the Analysis
@@ -181,10 +179,9 @@ async function storeResult(
     // another has been set meanwhile, so the comparison is made here with that one.
     const baseline = await activeBaseline(tx, airframeId);
     if (!baseline) return;
-    const compared = compareWithBaseline(
-      JSON.parse(analysisJson) as LogAnalysis,
-      JSON.parse(baseline.json) as Baseline,
-      { motorPositions: MOTOR_POSITIONS },
+    const compared = compareWithPositions(
+      decodeAnalysis(analysisJson),
+      decodeBaseline(baseline.json),
     );
     await storeAssessment(tx, logId, compared, baseline.id);
   });

@@ -1,8 +1,7 @@
 import "server-only";
 import { InputError } from "@/lib/errors";
 import { buildBaseline, type Baseline } from "@/lib/health/baseline";
-import { compareWithBaseline } from "@/lib/health/compare";
-import { MOTOR_POSITIONS } from "@/lib/health/motor-positions";
+import { compareWithPositions } from "@/lib/health/compare";
 import { actorRef, type Actor } from "@/lib/roles";
 import { airframeOfTeam } from "./airframes";
 import { storeAssessment } from "./assessments";
@@ -64,9 +63,7 @@ export async function setBaseline(
     });
     for (const l of later) {
       if (!l.analysis) continue;
-      const compared = compareWithBaseline(decodeAnalysis(l.analysis.json), baseline, {
-        motorPositions: MOTOR_POSITIONS,
-      });
+      const compared = compareWithPositions(decodeAnalysis(l.analysis.json), baseline);
       await storeAssessment(tx, l.id, compared, created.id);
     }
     await audit(
