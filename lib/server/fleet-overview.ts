@@ -12,7 +12,7 @@ import { inspectionQueue } from "./queue";
 export async function fleetOverview(actor: Actor) {
   const [rows, queue] = await Promise.all([fleetTable(actor), inspectionQueue(actor)]);
   const byId = new Map(queue.entries.map((e) => [e.id, e]));
-  return rows.map(({ status: _logStatus, ...row }) => {
+  return rows.map((row) => {
     const entry = row.retired ? undefined : byId.get(row.id);
     return {
       ...row,

@@ -12,9 +12,12 @@ import {
 } from "@/lib/health/fleet-reference";
 import type { Actor } from "@/lib/roles";
 import { db } from "./db";
-import { decodeAnalysis, decodeBaseline, decodeStatus } from "./stored";
+import { decodeAnalysis, decodeBaseline } from "./stored";
 
-/** One row per airframe for the Fleet table: health, score trend, last flight, flights since baseline. */
+/**
+ * One row per airframe for the Fleet table: latest score and its trend, last flight, flights since
+ * baseline. The verdict beside them is the queue's (fleet-overview.ts adds it).
+ */
 export async function fleetTable(actor: Actor) {
   const airframes = await db.airframe.findMany({
     where: { teamId: actor.teamId },
@@ -30,7 +33,7 @@ export async function fleetTable(actor: Actor) {
         select: {
           id: true,
           flownAt: true,
-          assessments: { select: { baselineId: true, score: true, status: true } },
+          assessments: { select: { baselineId: true, score: true } },
         },
       },
     },
@@ -39,9 +42,7 @@ export async function fleetTable(actor: Actor) {
     const baseline = a.baselines[0];
     const scored = baseline
       ? a.logs.flatMap((l) =>
-          l.assessments
-            .filter((x) => x.baselineId === baseline.id)
-            .map((x) => ({ score: x.score, status: decodeStatus(x.status) })),
+          l.assessments.filter((x) => x.baselineId === baseline.id).map((x) => x.score),
         )
       : [];
     const since = baseline ? Math.max(...baseline.logs.map((l) => l.log.flownAt.getTime())) : null;
@@ -52,9 +53,8 @@ export async function fleetTable(actor: Actor) {
       frameDesign: a.frameDesign,
       state: a.state,
       retired: a.retired,
-      status: latest?.status ?? null,
-      score: latest?.score ?? null,
-      trend: scored.slice(-10).map((s) => s.score ?? 0),
+      score: latest ?? null,
+      trend: scored.slice(-10).map((score) => score ?? 0),
       lastFlight: a.logs[a.logs.length - 1]?.flownAt ?? null,
       flightsSinceBaseline:
         since === null ? null : a.logs.filter((l) => l.flownAt.getTime() > since).length,
