@@ -4,7 +4,7 @@ import { join } from "node:path";
 import { Worker } from "node:worker_threads";
 import { checkUpload, type UploadCheckOptions } from "@/lib/analysis/upload-check";
 import type { FromChecker, ToChecker } from "@/lib/analysis/upload-check-protocol";
-import { deferred } from "@/lib/deferred";
+import { deferred, type Deferred } from "@/lib/deferred";
 import { LimitExceededError, LogFormatError } from "@/lib/errors";
 import type { ReadSummary } from "@/lib/logs/types";
 import { poolSize } from "./analysis-pool";
@@ -37,8 +37,15 @@ interface OpenCheck {
   inFlight: number;
   wake: (() => void) | null;
   failure: Error | null;
-  resolve: (s: ReadSummary) => void;
-  reject: (e: Error) => void;
+  /** Awaited once every chunk is sent; a refusal may arrive before that. */
+  result: Deferred<ReadSummary>;
+}
+
+/** Ends one check with a refusal: the sender stops at its next chunk. */
+function fail(c: OpenCheck, error: Error): void {
+  c.failure = error;
+  c.result.reject(error);
+  c.wake?.();
 }
 
 class UploadChecker {
@@ -49,15 +56,7 @@ class UploadChecker {
   async check(bytes: AsyncIterable<Uint8Array>, options: UploadCheckOptions): Promise<ReadSummary> {
     const worker = this.thread();
     const id = this.nextId++;
-    // Awaited once every chunk is sent; a refusal may arrive before that.
-    const result = deferred<ReadSummary>();
-    const state: OpenCheck = {
-      inFlight: 0,
-      wake: null,
-      failure: null,
-      resolve: result.resolve,
-      reject: result.reject,
-    };
+    const state: OpenCheck = { inFlight: 0, wake: null, failure: null, result: deferred() };
     this.open.set(id, state);
     const post = (m: ToChecker, transfer: ArrayBuffer[] = []) => worker.postMessage(m, transfer);
     post({ type: "start", id, options });
@@ -79,7 +78,7 @@ class UploadChecker {
       throw e;
     }
     try {
-      return await result.promise;
+      return await state.result.promise;
     } finally {
       this.open.delete(id);
     }
@@ -101,28 +100,29 @@ class UploadChecker {
         c.inFlight--;
         c.wake?.();
       } else if (m.type === "passed") {
-        c.resolve(m.summary);
+        c.result.resolve(m.summary);
       } else {
-        c.failure =
+        fail(
+          c,
           m.kind === "format"
             ? new LogFormatError(m.message)
             : m.kind === "limit"
               ? new LimitExceededError(m.message)
-              : new Error(m.message);
-        c.reject(c.failure);
-        c.wake?.();
+              : new Error(m.message),
+        );
       }
     });
-    worker.on("error", (err) => {
-      // A crashed thread fails the uploads it was checking; the next upload starts a new one.
-      console.error("upload-check worker crashed", err);
+    // A thread that crashes or exits fails the uploads it was checking (an exit without an error
+    // would otherwise leave them waiting for ever); the next upload starts a new thread.
+    const lost = (why: unknown) => {
+      if (this.worker !== worker) return;
+      console.error("the upload-check worker stopped", why);
       this.worker = null;
-      for (const c of this.open.values()) {
-        c.failure = new Error("the upload check stopped unexpectedly; try the upload again");
-        c.reject(c.failure);
-        c.wake?.();
-      }
-    });
+      for (const c of this.open.values())
+        fail(c, new Error("the upload check stopped unexpectedly; try the upload again"));
+    };
+    worker.on("error", lost);
+    worker.on("exit", (code) => lost(`exit code ${code}`));
     this.worker = worker;
     return worker;
   }
