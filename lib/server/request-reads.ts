@@ -5,9 +5,10 @@ import { db } from "./db";
  * The reads every request makes before it does anything — the API token, the session row, the
  * person's memberships, the team's name — as plain SQL. Prisma 6's client engine compiles each
  * model query to SQL in WebAssembly on the event loop, every time (plan caching came with Prisma
- * 7.4, which does not install here); a CPU profile under 50 readers put that at about a sixth of
- * the server's busy time. These four shapes are fixed, so they skip the compiler. Columns as in
- * prisma/schema.prisma; DateTime columns are ISO 8601 text in SQLite.
+ * 7.4, which does not install here). A raw query still passes through the client, but measured on
+ * the demo database a token lookup took 0.15 ms as SQL against 0.49 ms as findUnique, a membership
+ * read with its user 0.5 ms. Columns as in prisma/schema.prisma; DateTime columns are ISO 8601
+ * text in SQLite.
  */
 
 function dateOf(v: unknown): Date | null {
