@@ -264,6 +264,25 @@ describe("the inspection queue", () => {
     const kite = q.entries.find((e) => e.name === "Kite-1");
     expect(kite?.reasons.join(" ")).not.toMatch(/crash/);
   });
+
+  it("the queue is ranked once per database change: reads share it, a write makes a new one", async () => {
+    const first = await inspectionQueue(actors.viewer);
+    const again = await inspectionQueue(actors.viewer);
+    expect(again.entries).toBe(first.entries);
+    // After the inspection above (dated a second ahead), so the crash is open.
+    await logCrash(actors.pilot, {
+      airframeId: kiteId,
+      at: new Date(Date.now() + 5000),
+      heatId: null,
+      severity: "minor",
+      positions: [],
+      note: "",
+      ground: false,
+    });
+    const after = await inspectionQueue(actors.viewer);
+    expect(after.entries).not.toBe(first.entries);
+    expect(after.entries.find((e) => e.name === "Kite-1")?.reasons.join(" ")).toMatch(/crash/);
+  });
 });
 
 describe("the guard: roles and teams", () => {
