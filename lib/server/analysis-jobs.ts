@@ -4,7 +4,7 @@ import { compareWithPositions } from "@/lib/health/compare";
 import { analysisPool } from "./analysis-pool";
 import { storeAssessment } from "./assessments";
 import { storedFileOf } from "./data-folder";
-import { db, type Tx } from "./db";
+import { db } from "./db";
 import { maxUploadBytes } from "./limits";
 import { isDiskFull } from "./storage-errors";
 import { decodeAnalysis, decodeBaseline } from "./stored";
@@ -73,7 +73,9 @@ export async function analysesSettled(): Promise<void> {
 async function run(logId: string): Promise<void> {
   const log = await db.flightLog.findUnique({ where: { id: logId } });
   if (!log) return;
-  const baseline = log.airframeId ? await activeBaseline(db, log.airframeId) : null;
+  const baseline = log.airframeId
+    ? await db.baseline.findFirst(activeBaselineFilter(log.airframeId))
+    : null;
   const result = await analysisPool.run(
     {
       jobId: logId,
@@ -97,21 +99,9 @@ async function run(logId: string): Promise<void> {
   await withRetries(logId, () => storeResult(logId, log.airframeId, result));
 }
 
-/** The airframe's active baseline (the newest, should there be two). */
-function activeBaseline(tx: Tx, airframeId: string) {
-  return tx.baseline.findFirst({
-    where: { airframeId, active: true },
-    orderBy: { createdAt: "desc" },
-  });
-}
-
-/** The id alone: the stored JSON is large and needed only when the worker compared with another. */
-function activeBaselineId(tx: Tx, airframeId: string) {
-  return tx.baseline.findFirst({
-    where: { airframeId, active: true },
-    orderBy: { createdAt: "desc" },
-    select: { id: true },
-  });
+/** Finds the airframe's active baseline (the newest, should there be two). */
+function activeBaselineFilter(airframeId: string) {
+  return { where: { airframeId, active: true }, orderBy: { createdAt: "desc" as const } };
 }
 
 /** Waits before each new try of a result write that failed (a full disk, a busy database). */
@@ -169,7 +159,11 @@ async function storeResult(
       },
     });
     if (!airframeId) return;
-    const active = await activeBaselineId(tx, airframeId);
+    // The id alone: the stored JSON is large and needed only when the worker compared with another.
+    const active = await tx.baseline.findFirst({
+      ...activeBaselineFilter(airframeId),
+      select: { id: true },
+    });
     if (!active) return;
     if (outcome.compared?.baselineId === active.id) {
       await storeAssessment(tx, logId, outcome.compared.assessment, active.id);
@@ -177,7 +171,7 @@ async function storeResult(
     }
     // The worker compared with the baseline that was active when the job started (or with none);
     // another has been set meanwhile, so the comparison is made here with that one.
-    const baseline = await activeBaseline(tx, airframeId);
+    const baseline = await tx.baseline.findFirst(activeBaselineFilter(airframeId));
     if (!baseline) return;
     const compared = compareWithPositions(
       decodeAnalysis(analysisJson),
