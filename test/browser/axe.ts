@@ -23,6 +23,12 @@ export interface AxeFinding {
 
 /** Every violation axe-core finds on the page as it is now (all rules, no exclusions). */
 export async function axeFindings(page: Page, screen: string): Promise<AxeFinding[]> {
+  // A refresh in flight (the upload screen refreshes its data after a verdict) re-renders the
+  // head, and for a moment the document has no title: wait up to 5 s for a settled page. A page
+  // that never gets a title still fails, on axe's document-title rule.
+  await page
+    .waitForFunction(() => document.title !== "", null, { timeout: 5000 })
+    .catch(() => undefined);
   const loaded = await page.evaluate(() => window.axe !== undefined);
   if (!loaded) await page.addScriptTag({ path: AXE_SCRIPT });
   const violations = await page.evaluate(async () => {
