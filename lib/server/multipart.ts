@@ -115,3 +115,37 @@ export function readMultipartFile<T>(
     source.pipe(bb);
   });
 }
+
+/** How much of a refused request's unread body is read and dropped before answering. */
+export const REFUSED_BODY_DRAIN_BYTES = 4 << 20;
+
+/**
+ * Reads and drops what is left of a request body nobody has started reading, up to `maxBytes` or
+ * two seconds, whichever comes first. A body already being read (the multipart reader drains its
+ * own) is left alone.
+ */
+export async function drainUnread(request: Request, maxBytes: number): Promise<void> {
+  const body = request.body;
+  if (!body || body.locked || request.bodyUsed) return;
+  const reader = body.getReader();
+  const deadline = Date.now() + 2000;
+  let read = 0;
+  try {
+    while (read < maxBytes && Date.now() < deadline) {
+      const next = await Promise.race([
+        reader.read(),
+        new Promise<null>((r) => setTimeout(() => r(null), Math.max(0, deadline - Date.now()))),
+      ]);
+      if (next === null || next.done) break;
+      read += next.value.byteLength;
+    }
+  } catch {
+    // The client went away: nothing to drain.
+  } finally {
+    try {
+      reader.releaseLock();
+    } catch {
+      // A read still pending at the deadline: the connection is closed after the answer anyway.
+    }
+  }
+}

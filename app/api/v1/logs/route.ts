@@ -1,7 +1,7 @@
 import { requireApiCaller } from "@/lib/server/guard";
 import { jsonRoute } from "@/lib/server/http";
 import { ingestLog } from "@/lib/server/ingest";
-import { readMultipartFile } from "@/lib/server/multipart";
+import { drainUnread, readMultipartFile, REFUSED_BODY_DRAIN_BYTES } from "@/lib/server/multipart";
 
 export const dynamic = "force-dynamic";
 
@@ -23,9 +23,14 @@ export async function POST(request: Request) {
       }),
     );
   });
-  // A refused upload may have been answered before its whole body was read: close the connection
-  // rather than let a client reuse a socket whose request the server did not finish reading.
-  if (response.status >= 400) response.headers.set("Connection", "close");
+  // A refused upload may have been answered before its whole body was read (the guard refuses
+  // before the body is touched). Read a bounded rest of it first, so a client still sending a
+  // small file gets this answer rather than a broken pipe; then close the connection rather than
+  // let a client reuse a socket whose request the server did not finish reading.
+  if (response.status >= 400) {
+    await drainUnread(request, REFUSED_BODY_DRAIN_BYTES);
+    response.headers.set("Connection", "close");
+  }
   // proxy.ts skips this route (so the body streams uncut), so the API's no-store is set here.
   response.headers.set("Cache-Control", "no-store");
   return response;
