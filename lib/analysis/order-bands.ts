@@ -1,7 +1,7 @@
 import { axisRecord } from "../logs/columns";
 import type { SampleBlock } from "../logs/read-log";
 import { toDb } from "../signal/bands";
-import { round } from "../signal/stats";
+import { middleOfSorted, round } from "../signal/stats";
 import { MASK_REASONS, OrderTracker, type MaskReason, type OrderBlock } from "./order-tracker";
 import { throttleBandOf, type AnalysisPlan } from "./plan";
 import { TELEMETRY_LIMITS } from "./settings";
@@ -14,9 +14,9 @@ const MAX_TRACK_POINTS = 300;
 interface OrderSums {
   /** Blocks that measured it (telemetry believed, frequency below the trusted top). */
   count: number;
-  /** Σ power and Σ sideband power (whole orders) per axis, (deg/s)². */
-  power: [number, number, number];
-  side: [number, number, number];
+  /** Each measured block's power and sideband power (whole orders) per axis, (deg/s)². */
+  power: [number[], number[], number[]];
+  side: [number[], number[], number[]];
 }
 
 /** One motor's order-tracking sums in one throttle band. */
@@ -42,7 +42,7 @@ interface MotorRecord {
 
 /**
  * The motor orders of a log with rpm telemetry: the {@link OrderTracker}'s blocks summed per
- * throttle band and motor (a level is the mean power of the blocks that measured it), and each
+ * throttle band and motor (a level is the median power of the blocks that measured it), and each
  * motor's 1× track and masked blocks through the log. Untrustworthy telemetry is counted, never
  * measured.
  */
@@ -64,7 +64,7 @@ export class OrderBands {
         measured: 0,
         masked: 0,
         rpmSum: 0,
-        orders: plan.orders.map(() => ({ count: 0, power: [0, 0, 0], side: [0, 0, 0] })),
+        orders: plan.orders.map(() => ({ count: 0, power: [[], [], []], side: [[], [], []] })),
       })),
     }));
     this.records = Array.from({ length: motors }, () => ({
@@ -116,9 +116,9 @@ export class OrderBands {
         if (!power || !side || !Number.isFinite(power[0])) return;
         order.count++;
         for (const a of [0, 1, 2] as const) {
-          order.power[a] += power[a] ?? 0;
+          order.power[a].push(power[a] ?? 0);
           const s = side[a] ?? 0;
-          order.side[a] += Number.isFinite(s) ? s : 0;
+          order.side[a].push(Number.isFinite(s) ? s : 0);
         }
         if (j === this.one) order1Max = Math.max(power[0] ?? 0, power[1] ?? 0, power[2] ?? 0);
       });
@@ -142,11 +142,11 @@ export class OrderBands {
         blocks: band.blocks,
         maskedBlocks: sums.masked,
         orders: this.plan.orders.map((o, j) => {
-          const order = sums.orders[j] ?? { count: 0, power: [0, 0, 0], side: [0, 0, 0] };
+          const order = sums.orders[j] ?? { count: 0, power: [[], [], []], side: [[], [], []] };
           const clear = order.count;
-          const levelDb = (sum: readonly number[]) =>
+          const levelDb = (blocks: readonly (readonly number[])[]) =>
             axisRecord((_axis, a) =>
-              clear > 0 ? round(toDb((sum[a] ?? 0) / clear), 3) : Number.NaN,
+              clear > 0 ? round(toDb(medianPower(blocks[a] ?? [])), 3) : Number.NaN,
             );
           const level: OrderLevel = {
             order: o.order,
@@ -177,6 +177,17 @@ export class OrderBands {
       };
     });
   }
+}
+
+/**
+ * The median of the blocks' powers. Not the mean: the flight controller's rpm notches lag a motor
+ * that changes speed fast (flips, punch-outs), and in those few blocks an order leaks through
+ * tens of dB stronger; a mean is ruled by them, so the same healthy motor read 20–30 dB higher
+ * in a freestyle flight than in a gentle one at the same rpm. The median follows the steady
+ * blocks, which are most of any flight.
+ */
+function medianPower(values: readonly number[]): number {
+  return middleOfSorted([...values].sort((a, b) => a - b));
 }
 
 /** At most `maxPoints` points: consecutive groups averaged (order levels as powers), rounded. */

@@ -52,7 +52,7 @@ export interface OrderLevel {
   freqHz: number;
   /**
    * Whole orders: the exact order's power. Half orders: the strongest tone within ±0.25 orders
-   * (the order spectrum between the whole orders).
+   * (the order spectrum between the whole orders). The median over the band's measured blocks.
    */
   powerDb: Record<Axis, number>;
   /** Whole orders (version 2): the strongest tone 0.05–0.25 orders away (sidebands), dB. */

@@ -29,7 +29,7 @@ export interface BaselineAxisBand {
 
 export interface BaselineOrder {
   order: number;
-  /** Power per axis, dB re 1 (deg/s)², power mean over the logs' measured blocks. */
+  /** Power per axis, dB re 1 (deg/s)², power mean over the logs' band levels (each a median of blocks). */
   db: Record<Axis, number>;
   /** Scatter of the per-log level across logs, dB, the largest over the axes (0 for one log). */
   logSpreadDb: number;

@@ -1,7 +1,7 @@
 import type { Axis } from "../../logs/columns";
 import { round, weightedMean } from "../../signal/stats";
 import { peaksAboveLocalMedian } from "../../signal/peaks";
-import { MODE_TRACK_PROMINENCE_DB, type BaselineMode } from "../baseline";
+import { dbAt, MODE_TRACK_PROMINENCE_DB, type BaselineMode } from "../baseline";
 import type { Finding } from "../findings";
 import { ADVICE } from "./advice";
 import type { DetectorContext } from "./context";
@@ -14,10 +14,16 @@ const ON_MODE_FRACTION = 0.03;
 /** A peak this close to a motor's whole order (fraction of the peak's frequency) is that order. */
 const ON_ORDER_FRACTION = 0.03;
 /**
- * Cost of pairing a peak with a mode: 5 % of frequency away costs as much as 6 dB of level
- * mismatch, so frequency decides and level breaks ties.
+ * Cost of pairing a peak with a mode: 5 % of frequency away costs one unit; every 6 dB (up to
+ * 12) of the peak's prominence, and of its rise over the baseline's level at that frequency in
+ * the same band, earns one back. A mode is the dominant peak near where it was, and where it
+ * moved to the log stands above the baseline: a crack that lowers it by 8 % leaves it the
+ * strongest peak around, while a faint bump closer to the old frequency is the skirt or noise.
  */
-const PAIRING_COST = { logFrequency: 0.05, levelDb: 6 };
+const PAIRING_COST = { logFrequency: 0.05, perDb: 6, maxDb: 12 };
+
+const clamp = (db: number, max: number) =>
+  Number.isFinite(db) ? Math.min(max, Math.max(0, db)) : 0;
 /** A mode is lost only when it was expected in at least this many compared bands. */
 const MIN_BANDS_FOR_LOST = 2;
 /** A rise counts half: a frame does not stiffen by itself (see below). */
@@ -75,31 +81,44 @@ function sightingsOf(ctx: DetectorContext, axis: Axis, modes: readonly BaselineM
     });
     for (const w of wanted) expected.set(w.m, (expected.get(w.m) ?? 0) + 1);
     const orderFreqs = wholeOrderFreqs(band.log);
-    const pairs = wanted.flatMap((w) =>
-      peaksAboveLocalMedian(
-        psd,
-        binHz,
-        w.f * MODE_SEARCH.below,
-        w.f * MODE_SEARCH.above,
+    const basePsd = band.base.axes[axis].psdDb;
+    const pairs = wanted.flatMap((w) => {
+      const lo = w.f * MODE_SEARCH.below;
+      const hi = w.f * MODE_SEARCH.above;
+      // The baseline's band spectrum is flown at the same throttle, so its motors' orders sit
+      // where the log's do: a peak it shows too near an order is that order.
+      const basePeaks = peaksAboveLocalMedian(
+        basePsd,
+        ctx.baseline.binHz,
+        lo,
+        hi,
         MODE_TRACK_PROMINENCE_DB,
-      )
-        // A peak away from the mode that sits on a motor order in this band is that order, not
-        // the moved mode (an order passing right over the mode cannot be told from it).
-        .filter(
-          (p) =>
-            Math.abs(p.freqHz - w.f) <= ON_MODE_FRACTION * w.f ||
-            !orderFreqs.some((f) => Math.abs(f - p.freqHz) <= ON_ORDER_FRACTION * p.freqHz),
-        )
-        // Greedy assignment by cost: relative frequency distance, with a level mismatch as
-        // tie-breaker, so that a weak neighbouring mode cannot steal a strong one's peak.
-        .map((p) => ({
-          w,
-          p,
-          cost:
-            Math.abs(Math.log(p.freqHz / w.f)) / PAIRING_COST.logFrequency +
-            Math.abs(p.levelDb - w.level) / PAIRING_COST.levelDb,
-        })),
-    );
+      );
+      return (
+        peaksAboveLocalMedian(psd, binHz, lo, hi, MODE_TRACK_PROMINENCE_DB)
+          // A peak away from the mode that sits on a motor order in this band, where the
+          // baseline also has a peak, is that order, not the moved mode (an order passing right
+          // over the mode cannot be told from it). A peak on an order that the baseline lacks
+          // is new in this log, and the mode that moved is what is new.
+          .filter(
+            (p) =>
+              Math.abs(p.freqHz - w.f) <= ON_MODE_FRACTION * w.f ||
+              !orderFreqs.some((f) => Math.abs(f - p.freqHz) <= ON_ORDER_FRACTION * p.freqHz) ||
+              !basePeaks.some((b) => Math.abs(b.freqHz - p.freqHz) <= ON_ORDER_FRACTION * p.freqHz),
+          )
+          // Greedy assignment by cost (relative frequency distance less prominence), each peak
+          // to one mode only.
+          .map((p) => ({
+            w,
+            p,
+            cost:
+              Math.abs(Math.log(p.freqHz / w.f)) / PAIRING_COST.logFrequency -
+              clamp(p.prominenceDb, PAIRING_COST.maxDb) / PAIRING_COST.perDb -
+              clamp(p.levelDb - dbAt(basePsd, ctx.baseline.binHz, p.freqHz), PAIRING_COST.maxDb) /
+                PAIRING_COST.perDb,
+          }))
+      );
+    });
     pairs.sort((a, b) => a.cost - b.cost);
     const usedModes = new Set<BaselineMode>();
     const usedPeaks = new Set<number>();
@@ -123,11 +142,15 @@ function modeShift(
 ): Finding | null {
   const h = ctx.thresholds;
   const weights = seen.map((x) => x.weight);
-  const shiftPct =
+  // Rounded to a millionth of a percent, so that a shift exactly at a step is graded at it
+  // whatever the order of the floating-point sums.
+  const shiftPct = round(
     weightedMean(
       seen.map((x) => x.shift),
       weights,
-    ) * 100;
+    ) * 100,
+    6,
+  );
   const nowHz = weightedMean(
     seen.map((x) => x.freqHz),
     weights,

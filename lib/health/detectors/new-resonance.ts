@@ -15,6 +15,13 @@ const MOTOR_SPREAD_FRACTION = 0.02;
 const MIN_JUDGED_SHARE = 0.5;
 /** The local level of the excess: its median over ±15 % of the bin's frequency, ±3 bins at least. */
 const LOCAL_WINDOW = { fraction: 0.15, minBins: 3 };
+/** The wander a peak is judged by: the local excess's spread over ±30 % of its frequency. */
+const WANDER_FRACTION = 0.3;
+/**
+ * A mode that moved drags its skirt along: from this share below the lower of its old and new
+ * frequencies to this share above the higher, a peak is that mode's, not a new one.
+ */
+const MOVED_MODE_SKIRT = { below: 0.9, above: 1.05 };
 
 /**
  * New resonances, seen wherever they fall: per compared throttle band and bin, the log's band
@@ -39,9 +46,11 @@ export function newPeaks(ctx: DetectorContext): Finding[] {
     const x = excessOver(ctx, axis, bins);
     const local = localExcess(x.excess, bins);
     // How this flight's spectrum wanders from the baseline's, bin to bin, around its own local
-    // level: the robust spread of the local excess over the axis's bins. A new resonance is an
-    // outlier of it; the theoretical scatter alone underestimates a real flight's.
-    const wander = robustSigma(Array.from(local));
+    // level: the robust spread of the local excess near the bin (within ±WANDER_FRACTION of its
+    // frequency). A new resonance is an outlier of it; the theoretical scatter alone
+    // underestimates a real flight's, and prop wash makes the low range wander far more than the
+    // high one, so one spread for the whole axis would pass the wash's bumps as peaks.
+    const wanderAt = localWander(local, bins);
     const tonal = peaksAboveLocalMedian(
       x.logDb,
       binHz,
@@ -65,7 +74,7 @@ export function newPeaks(ctx: DetectorContext): Finding[] {
       if (
         !Number.isFinite(best) ||
         !(best >= h.minSigma * s) ||
-        !(above >= h.minSigma * wander) ||
+        !(above >= h.minSigma * wanderAt(at)) ||
         !(above >= h.levelDb.watch)
       )
         continue;
@@ -178,6 +187,22 @@ function localExcess(excess: Float64Array, { first, last }: BinRange): Float64Ar
   return local;
 }
 
+/** The robust spread of the local excess within ±WANDER_FRACTION of a bin's frequency, by bin. */
+function localWander(local: Float64Array, { first, last }: BinRange): (bin: number) => number {
+  const cache = new Map<number, number>();
+  return (k) => {
+    let w = cache.get(k);
+    if (w === undefined) {
+      const half = Math.max(LOCAL_WINDOW.minBins, Math.round(WANDER_FRACTION * k));
+      w = robustSigma(
+        Array.from(local.subarray(Math.max(first, k - half), Math.min(last, k + half) + 1)),
+      );
+      cache.set(k, w);
+    }
+    return w;
+  };
+}
+
 /**
  * A frame mode shows on every axis it couples into: a known peak or mode of any axis, or a mode
  * that moved or was lost (found before), is not new on this one (it may still be a band rise).
@@ -188,11 +213,16 @@ function isKnown(ctx: DetectorContext, freqHz: number): boolean {
   return (
     AXES.some((x) => baseline.peaks[x].some(near)) ||
     baseline.modes.some((m) => near(m.freqHz)) ||
-    ctx.found.some(
-      (x) =>
-        (x.kind === "mode-shift" || x.kind === "mode-lost") &&
-        (near(x.freqHz) || near(x.baselineFreqHz ?? 0)),
-    )
+    ctx.found.some((x) => {
+      if (x.kind !== "mode-shift" && x.kind !== "mode-lost") return false;
+      const was = x.baselineFreqHz ?? x.freqHz;
+      return (
+        near(x.freqHz) ||
+        near(was) ||
+        (freqHz >= MOVED_MODE_SKIRT.below * Math.min(was, x.freqHz) &&
+          freqHz <= MOVED_MODE_SKIRT.above * Math.max(was, x.freqHz))
+      );
+    })
   );
 }
 

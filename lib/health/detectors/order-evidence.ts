@@ -2,7 +2,7 @@ import type { Axis } from "../../logs/columns";
 import { median } from "../../signal/stats";
 import type { HealthThresholds } from "../thresholds";
 import type { DetectorContext } from "./context";
-import { atThrottle, DB_PER_UNIT_LOG, robustSigma } from "./shared";
+import { atThrottle, DB_PER_UNIT_LOG, MEDIAN_SCATTER, robustSigma } from "./shared";
 
 /** How one motor's order stands in this log: against its own baseline and against the other motors. */
 export interface OrderStanding {
@@ -97,7 +97,9 @@ function orderStandings(ctx: OrderInputs, excluded: ReadonlySet<number>): OrderS
             if (!bo || !Number.isFinite(expected)) continue;
             const nLog = Math.max(1, (lm.blocks ?? m.log.segments) - (lm.maskedBlocks ?? 0));
             const nBase = Math.max(1, bo.blocks || m.base.segments);
-            const variance = DB_PER_UNIT_LOG ** 2 * (1 / nLog + 1 / nBase) + bo.logSpreadDb ** 2;
+            const variance =
+              (DB_PER_UNIT_LOG * MEDIAN_SCATTER) ** 2 * (1 / nLog + 1 / nBase) +
+              bo.logSpreadDb ** 2;
             const w = m.log.segments;
             wSum += w;
             dSum += w * (level - expected);

@@ -11,6 +11,14 @@ import { penaltyFor, stepOf, type HealthThresholds, type StepThresholds } from "
  */
 export const DB_PER_UNIT_LOG = 10 / Math.LN10;
 
+/**
+ * A band's order level is the median of its blocks' powers (lib/analysis/order-bands.ts). For
+ * exponential (noise-like) block powers of mean μ the sample median of N scatters μ/√N about
+ * μ·ln 2 (asymptotic variance of a sample median, 1/(4N·f(m)²)), i.e. 1/ln 2 ≈ 1.44 times the
+ * mean's relative scatter: its standard deviation is DB_PER_UNIT_LOG·MEDIAN_SCATTER/√N dB.
+ */
+export const MEDIAN_SCATTER = 1 / Math.LN2;
+
 /** Median absolute deviation to standard deviation for normal data (Rousseeuw & Croux 1993). */
 const MAD_TO_SIGMA = 1.4826;
 /** No yardstick is tighter than this, dB: below it a log's quantisation and rounding show. */
