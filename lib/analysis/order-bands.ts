@@ -4,7 +4,7 @@ import { toDb } from "../signal/bands";
 import { middleOfSorted, round } from "../signal/stats";
 import { MASK_REASONS, OrderTracker, type MaskReason, type OrderBlock } from "./order-tracker";
 import { throttleBandOf, type AnalysisPlan } from "./plan";
-import { TELEMETRY_LIMITS } from "./settings";
+import { RPM_MAP, rpmBinOf, TELEMETRY_LIMITS } from "./settings";
 import type { MotorInBand, MotorSummary, MotorTrackPoint, OrderLevel } from "./types";
 
 /** Points of a motor's track in the results; longer tracks are averaged down to this. */
@@ -34,11 +34,21 @@ interface BandSums {
   motors: MotorSums[];
 }
 
-/** One motor through the whole log: its 1× track and its masked blocks by reason. */
+/** One motor's measured blocks in one bin of its own rotation rate. */
+interface RpmBinSums {
+  blocks: number;
+  rotationSum: number;
+  orders: OrderSums[];
+}
+
+/** One motor through the whole log: its 1× track, its masked blocks by reason, its rpm bins. */
 interface MotorRecord {
   track: MotorTrackPoint[];
   masked: Record<MaskReason, number>;
+  rpmBins: Map<number, RpmBinSums>;
 }
+
+const emptyOrderSums = (): OrderSums => ({ count: 0, power: [[], [], []], side: [[], [], []] });
 
 /**
  * The motor orders of a log with rpm telemetry: the {@link OrderTracker}'s blocks summed per
@@ -64,12 +74,13 @@ export class OrderBands {
         measured: 0,
         masked: 0,
         rpmSum: 0,
-        orders: plan.orders.map(() => ({ count: 0, power: [[], [], []], side: [[], [], []] })),
+        orders: plan.orders.map(emptyOrderSums),
       })),
     }));
     this.records = Array.from({ length: motors }, () => ({
       track: [],
       masked: { zero: 0, range: 0, stuck: 0, slew: 0 },
+      rpmBins: new Map(),
     }));
     this.one = plan.orders.findIndex((o) => o.order === 1);
     this.tracker = new OrderTracker(
@@ -109,17 +120,29 @@ export class OrderBands {
       const rotationHz = b.rotationHz[m] ?? 0;
       sums.measured++;
       sums.rpmSum += rotationHz * 60;
+      // A block enters the motor's rpm map only when its rpm held within one bin's width: the
+      // steady flying that can be matched to the baseline's at the same speed. In fast changes
+      // (flips, punch-outs) the flight controller's notches lag and the telemetry trails, and
+      // the levels of those few blocks scatter by tens of dB.
+      const steady = (b.rotationSpread[m] ?? Infinity) <= RPM_MAP.steadySpread;
+      const key = rpmBinOf(rotationHz);
+      let bin = steady ? record.rpmBins.get(key) : undefined;
+      if (steady && !bin) {
+        bin = { blocks: 0, rotationSum: 0, orders: this.plan.orders.map(emptyOrderSums) };
+        record.rpmBins.set(key, bin);
+      }
+      if (bin) {
+        bin.blocks++;
+        bin.rotationSum += rotationHz;
+      }
       let order1Max = Number.NaN;
       sums.orders.forEach((order, j) => {
         const power = b.power[m]?.[j];
         const side = b.side[m]?.[j];
         if (!power || !side || !Number.isFinite(power[0])) return;
-        order.count++;
-        for (const a of [0, 1, 2] as const) {
-          order.power[a].push(power[a] ?? 0);
-          const s = side[a] ?? 0;
-          order.side[a].push(Number.isFinite(s) ? s : 0);
-        }
+        addBlock(order, power, side);
+        const inBin = bin?.orders[j];
+        if (inBin) addBlock(inBin, power, side);
         if (j === this.one) order1Max = Math.max(power[0] ?? 0, power[1] ?? 0, power[2] ?? 0);
       });
       record.track.push({
@@ -142,19 +165,11 @@ export class OrderBands {
         blocks: band.blocks,
         maskedBlocks: sums.masked,
         orders: this.plan.orders.map((o, j) => {
-          const order = sums.orders[j] ?? { count: 0, power: [[], [], []], side: [[], [], []] };
-          const clear = order.count;
-          const levelDb = (blocks: readonly (readonly number[])[]) =>
-            axisRecord((_axis, a) =>
-              clear > 0 ? round(toDb(medianPower(blocks[a] ?? [])), 3) : Number.NaN,
-            );
           const level: OrderLevel = {
-            order: o.order,
             label: o.label,
             freqHz: round((meanRpm / 60) * o.order, 2),
-            powerDb: levelDb(order.power),
+            ...orderLevels(o.order, sums.orders[j] ?? emptyOrderSums()),
           };
-          if (Number.isInteger(o.order)) level.sideDb = levelDb(order.side);
           return level;
         }),
       };
@@ -174,9 +189,40 @@ export class OrderBands {
         maskedShare: this.blocksSeen > 0 ? round(maskedBlocks / this.blocksSeen, 4) : 0,
         maskedBlocks: record.masked,
         track: decimateTrack(track, MAX_TRACK_POINTS),
+        rpmMap: [...record.rpmBins.entries()]
+          .sort((x, y) => x[0] - y[0])
+          .map(([bin, sums]) => ({
+            bin,
+            rotationHz: round(sums.rotationSum / sums.blocks, 2),
+            blocks: sums.blocks,
+            orders: this.plan.orders.map((o, j) =>
+              orderLevels(o.order, sums.orders[j] ?? emptyOrderSums()),
+            ),
+          })),
       };
     });
   }
+}
+
+function addBlock(order: OrderSums, power: Float64Array, side: Float64Array): void {
+  order.count++;
+  for (const a of [0, 1, 2] as const) {
+    order.power[a].push(power[a] ?? 0);
+    const s = side[a] ?? 0;
+    order.side[a].push(Number.isFinite(s) ? s : 0);
+  }
+}
+
+/** An order's level (and, for a whole order, its sidebands') over the blocks that measured it, dB. */
+function orderLevels(
+  order: number,
+  sums: OrderSums,
+): Pick<OrderLevel, "order" | "powerDb" | "sideDb"> {
+  const levelDb = (blocks: readonly (readonly number[])[]) =>
+    axisRecord((_axis, a) =>
+      sums.count > 0 ? round(toDb(medianPower(blocks[a] ?? [])), 3) : Number.NaN,
+    );
+  return { order, powerDb: levelDb(sums.power), sideDb: levelDb(sums.side) };
 }
 
 /**

@@ -46,6 +46,8 @@ export interface OrderBlock {
   throttle: number;
   /** Mean rotation rate of each motor over the block, Hz (NaN when masked). */
   rotationHz: Float64Array;
+  /** How far each motor's logged rpm ranged over the block: (max − min) / mean (NaN when masked). */
+  rotationSpread: Float64Array;
   /** Why each motor's block is masked, or null when it was measured. */
   masked: (MaskReason | null)[];
   /**
@@ -53,7 +55,7 @@ export interface OrderBlock {
    * outside the trusted range. Owned by the tracker; valid during the callback.
    */
   power: Float64Array[][];
-  /** Whole orders: the strongest tone beside it (outside its main lobe, up to 0.25 orders away), (deg/s)² (NaN for half orders). */
+  /** Whole orders: the strongest tone beside it (outside its main lobe, up to 0.25 orders away); half orders: the strongest tone within ±0.25 orders, (deg/s)². */
   side: Float64Array[][];
   tS: number;
 }
@@ -79,6 +81,9 @@ interface MotorState {
   readonly sumRe: Float64Array;
   readonly sumIm: Float64Array;
   rpmSum: number;
+  /** Lowest and highest logged rpm in this block. */
+  rpmMin: number;
+  rpmMax: number;
   /** FLAG bits seen in this block, and whether the value changed in it. */
   flags: number;
   changed: boolean;
@@ -165,6 +170,8 @@ export class OrderTracker {
       sumRe: new Float64Array(width),
       sumIm: new Float64Array(width),
       rpmSum: 0,
+      rpmMin: Infinity,
+      rpmMax: -Infinity,
       flags: 0,
       changed: false,
       lastRpm: Number.NaN,
@@ -180,6 +187,7 @@ export class OrderTracker {
     this.result = {
       throttle: 0,
       rotationHz: new Float64Array(motors),
+      rotationSpread: new Float64Array(motors),
       masked: Array.from({ length: motors }, () => null),
       power: Array.from({ length: motors }, () => orders.map(() => new Float64Array(3))),
       side: Array.from({ length: motors }, () => orders.map(() => new Float64Array(3))),
@@ -245,6 +253,8 @@ export class OrderTracker {
     let hc = st.re;
     let hs = st.im;
     let rpmSum = 0;
+    let rpmMin = st.rpmMin;
+    let rpmMax = st.rpmMax;
     let flags = st.flags;
     let changed = st.changed;
     let last = st.lastRpm;
@@ -280,6 +290,8 @@ export class OrderTracker {
       }
       const r = rpm[j] ?? 0;
       rpmSum += r;
+      if (r < rpmMin) rpmMin = r;
+      if (r > rpmMax) rpmMax = r;
       if (!(r > 0)) flags |= FLAG.zero;
       else if (r < minRpm || r > maxRpm) flags |= FLAG.range;
       if (r !== last) {
@@ -314,6 +326,8 @@ export class OrderTracker {
     st.re = hc;
     st.im = hs;
     st.rpmSum += rpmSum;
+    st.rpmMin = rpmMin;
+    st.rpmMax = rpmMax;
     st.flags = flags;
     st.changed = changed;
     st.lastRpm = last;
@@ -378,6 +392,7 @@ export class OrderTracker {
       out.masked[m] = reason;
       const f1 = reason ? Number.NaN : st.rpmSum / len / 60;
       out.rotationHz[m] = f1;
+      out.rotationSpread[m] = reason ? Number.NaN : (st.rpmMax - st.rpmMin) / (f1 * 60);
       // Keep the phasor on the unit circle despite rounding.
       const mag = Math.hypot(st.re, st.im) || 1;
       st.re /= mag;
@@ -411,22 +426,20 @@ export class OrderTracker {
           side[a] = Number.NaN;
           if (!measured) continue;
           const spectrum = zoom.powers(st.subRe, st.subIm, subs, width, o * 3 + a);
-          if (whole) {
-            // The order's level is the energy of the core of the main lobe around it.
-            let lobe = spectrum[0] ?? 0;
-            for (let k = 1; k < first; k++) lobe += (spectrum[k] ?? 0) + (spectrum[n - k] ?? 0);
-            p[a] = scale * lobe * lobeScale;
-            // Sidebands: the strongest tone beyond the main lobe (±2 bins) up to ±0.25 orders
-            // (bin k is (k/n)/2 orders away, wrapped).
-            const beyond = Math.max(1, Math.ceil(2.5 * padding));
-            let best = 0;
-            for (let k = beyond; k <= n - beyond; k++) best = Math.max(best, spectrum[k] ?? 0);
-            side[a] = scale * best;
-          } else {
-            let best = 0;
-            for (let k = 0; k < n; k++) best = Math.max(best, spectrum[k] ?? 0);
-            p[a] = scale * best;
-          }
+          // The order's level is the energy of the core of the main lobe around it, for half
+          // orders too: a loose part's sub-harmonics sit exactly at half orders, locked to the
+          // motor's angle like its whole orders.
+          let lobe = spectrum[0] ?? 0;
+          for (let k = 1; k < first; k++) lobe += (spectrum[k] ?? 0) + (spectrum[n - k] ?? 0);
+          p[a] = scale * lobe * lobeScale;
+          // Beside it (bin k is (k/n)/2 orders away, wrapped): for a whole order, the strongest
+          // tone beyond the main lobe (±2 bins) up to ±0.25 orders, its sidebands; for a half
+          // order, the strongest tone anywhere within ±0.25 orders, the order spectrum between
+          // the whole orders (a bearing's tones fall at non-integer orders no fixed order hits).
+          const beyond = whole ? Math.max(1, Math.ceil(2.5 * padding)) : 0;
+          let best = 0;
+          for (let k = beyond; k <= n - beyond; k++) best = Math.max(best, spectrum[k] ?? 0);
+          side[a] = scale * best;
         }
       });
     });
@@ -439,6 +452,8 @@ export class OrderTracker {
     this.throttleSum = 0;
     for (const st of this.states) {
       st.rpmSum = 0;
+      st.rpmMin = Infinity;
+      st.rpmMax = -Infinity;
       st.flags = 0;
       st.changed = false;
       st.sumRe.fill(0);

@@ -70,6 +70,20 @@ export const SIGNAL_CHECKS = {
  * rpm telemetry a motor cannot produce (ESC telemetry drops to 0 in bursts, sticks, glitches):
  * a motor's order-tracking block with such a value is masked, never measured.
  */
+/**
+ * Bins of a motor's own rotation rate for its orders (RpmBinLevels): 3 % wide from 10 Hz up. An
+ * order's level depends on where its frequency falls on the frame's response, which can change by
+ * 10 dB over a few percent near a mode, and on the load (force ∝ rpm²); within 3 % of rpm neither
+ * moves much. Comparing like rpm with like rpm is order analysis as rotating-machinery monitoring
+ * does it (levels against speed; common practice).
+ */
+export const RPM_MAP = { baseHz: 10, step: 0.03, steadySpread: 0.1 } as const;
+
+/** The RPM_MAP bin of a rotation rate, Hz. */
+export function rpmBinOf(rotationHz: number): number {
+  return Math.floor(Math.log(rotationHz / RPM_MAP.baseHz) / Math.log1p(RPM_MAP.step));
+}
+
 export const TELEMETRY_LIMITS = {
   /**
    * Below this a propeller motor in flight is not turning (idle with props is a few thousand

@@ -50,12 +50,14 @@ export interface OrderLevel {
   /** "0.5x" … "4x", or "blade-pass" for the order equal to the blade count. */
   label: string;
   freqHz: number;
-  /**
-   * Whole orders: the exact order's power. Half orders: the strongest tone within ±0.25 orders
-   * (the order spectrum between the whole orders). The median over the band's measured blocks.
-   */
+  /** The exact order's power, the median over the band's measured blocks. */
   powerDb: Record<Axis, number>;
-  /** Whole orders (version 2): the strongest tone 0.05–0.25 orders away (sidebands), dB. */
+  /**
+   * Beside the order (version 2), dB: for a whole order the strongest tone 0.05–0.25 orders away
+   * (sidebands); for a half order the strongest tone within ±0.25 orders (the order spectrum
+   * between the whole orders). Analyses stored before the half orders were measured exactly
+   * carry that strongest tone as the half order's powerDb and have no sideDb for it.
+   */
   sideDb?: Record<Axis, number>;
 }
 
@@ -99,6 +101,19 @@ export interface MotorTrackPoint {
   order1Db: number;
 }
 
+/**
+ * One motor's orders at one rotation rate over the whole log: the blocks whose mean rotation fell
+ * in one bin of RPM_MAP (lib/analysis/settings.ts), each order the median over them.
+ */
+export interface RpmBinLevels {
+  /** The bin: rotation rate from RPM_MAP.baseHz·(1 + RPM_MAP.step)^bin up to the next bin. */
+  bin: number;
+  /** Mean rotation rate of the bin's blocks, Hz. */
+  rotationHz: number;
+  blocks: number;
+  orders: Pick<OrderLevel, "order" | "powerDb" | "sideDb">[];
+}
+
 export interface MotorSummary {
   motor: number;
   meanRpm: number;
@@ -108,6 +123,12 @@ export interface MotorSummary {
   maskedBlocks?: Record<MaskReason, number>;
   /** The motor's 1× order through the log, at most a few hundred points. */
   track: MotorTrackPoint[];
+  /**
+   * The motor's orders by its own rotation rate (version 2, optional): what the comparison holds
+   * against the baseline at the same rpm, so that the frame's response at the order's frequency
+   * is the same on both sides.
+   */
+  rpmMap?: RpmBinLevels[];
 }
 
 /**

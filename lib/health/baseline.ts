@@ -1,5 +1,5 @@
 import { DEFAULT_ANALYSIS } from "../analysis/settings";
-import type { LogAnalysis } from "../analysis/types";
+import type { LogAnalysis, RpmBinLevels } from "../analysis/types";
 import { InputError } from "../errors";
 import { AXES, type Axis } from "../logs/columns";
 import type { FrequencyBand } from "../signal/bands";
@@ -74,6 +74,16 @@ export interface BaselineMode {
   bands?: { index: number; freqHz: number; levelDb: number }[];
 }
 
+/** One motor's orders at one rotation rate, pooled over the baseline logs (see RpmBinLevels). */
+export interface BaselineRpmBin {
+  bin: number;
+  rotationHz: number;
+  /** Blocks behind it, summed over the logs. */
+  blocks: number;
+  /** Per order: power per axis (and sidebands per axis for whole orders), dB, power mean over the logs weighted by their blocks. */
+  orders: { order: number; db: Record<Axis, number>; sideDb?: Record<Axis, number> }[];
+}
+
 /**
  * 2: modes per band, every order with sidebands, per-bin log spread, recurring known peaks,
  * unusable axes and untrusted motors. Fields added in 2 are optional, so stored baselines of
@@ -96,6 +106,8 @@ export interface Baseline {
   motors: number[];
   throttleBands: BaselineThrottleBand[];
   modes: BaselineMode[];
+  /** Each motor's orders by its own rotation rate (optional: baselines built before have none). */
+  rpmMaps?: { motor: number; bins: BaselineRpmBin[] }[];
   /** Motors whose rpm telemetry was masked in more than half of some baseline log. */
   untrustedMotors?: number[];
   /** Axes that some baseline log could not use (no signal, clipped …): never compared. */
@@ -277,6 +289,9 @@ export function buildBaseline(analyses: readonly LogAnalysis[]): Baseline {
           DEFAULT_THRESHOLDS.maxMaskedShare,
       ),
     ),
+    ...(analyses.every((a) => a.motors.every((m) => m.rpmMap))
+      ? { rpmMaps: motors.map((motor) => ({ motor, bins: pooledRpmMap(analyses, motor) })) }
+      : {}),
     logs: analyses.length,
     sampleRateHz,
     binHz,
@@ -353,6 +368,53 @@ export function recurringPeaks(
 }
 
 /** Power mean of dB levels (the mean of the powers, in dB), skipping NaN. */
+/** A motor's rpm bins pooled over the logs: blocks summed, levels power-averaged by blocks. */
+function pooledRpmMap(analyses: readonly LogAnalysis[], motor: number): BaselineRpmBin[] {
+  const byBin = new Map<number, RpmBinLevels[]>();
+  for (const a of analyses)
+    for (const b of a.motors.find((m) => m.motor === motor)?.rpmMap ?? [])
+      byBin.set(b.bin, [...(byBin.get(b.bin) ?? []), b]);
+  return [...byBin.entries()]
+    .sort((x, y) => x[0] - y[0])
+    .map(([bin, parts]) => {
+      const blocks = parts.reduce((s, p) => s + p.blocks, 0);
+      const weights = parts.map((p) => p.blocks);
+      const pooled = (level: (p: RpmBinLevels) => Record<Axis, number> | undefined) =>
+        axisPowerMean(parts.map(level), weights);
+      const orders = (parts[0]?.orders ?? []).map(({ order }) => {
+        const of = (p: RpmBinLevels) => p.orders.find((o) => o.order === order);
+        const db = pooled((p) => of(p)?.powerDb);
+        return { order, db, sideDb: pooled((p) => of(p)?.sideDb) };
+      });
+      return {
+        bin,
+        rotationHz: round(parts.reduce((s, p) => s + p.rotationHz * p.blocks, 0) / blocks, 2),
+        blocks,
+        orders,
+      };
+    });
+}
+
+/** Per axis, the power mean of dB levels with weights, skipping the missing and NaN ones. */
+function axisPowerMean(
+  levels: readonly (Record<Axis, number> | undefined)[],
+  weights: readonly number[],
+): Record<Axis, number> {
+  const out = {} as Record<Axis, number>;
+  for (const axis of AXES) {
+    let sum = 0;
+    let w = 0;
+    levels.forEach((l, i) => {
+      const v = l?.[axis];
+      if (v === undefined || !Number.isFinite(v)) return;
+      sum += (weights[i] ?? 0) * 10 ** (v / 10);
+      w += weights[i] ?? 0;
+    });
+    out[axis] = w > 0 ? round(10 * Math.log10(sum / w), 3) : Number.NaN;
+  }
+  return out;
+}
+
 function powerMeanDb(values: number[]): number {
   const v = values.filter(Number.isFinite);
   return v.length === 0

@@ -8,7 +8,10 @@ import { atThrottle, DB_PER_UNIT_LOG, MEDIAN_SCATTER, robustSigma } from "./shar
 export interface OrderStanding {
   motor: number;
   order: number;
-  /** The sidebands of a whole order (tones 0.05–0.25 orders away) rather than the order itself. */
+  /**
+   * Beside the order rather than the order itself: a whole order's sidebands (tones 0.05–0.25
+   * orders away), or the strongest tone within ±0.25 of a half order (between the whole orders).
+   */
   side: boolean;
   axis: Axis;
   /** Rise over the motor's own baseline at matched throttle, dB (segment-weighted over bands). */
@@ -40,7 +43,7 @@ const RPM_SPREAD_MARGIN = 1.1;
 /** The inputs the evidence is built from: the comparison without the detectors' own results. */
 export type OrderInputs = Pick<
   DetectorContext,
-  "baseline" | "thresholds" | "axes" | "matched" | "maxHz"
+  "log" | "baseline" | "thresholds" | "axes" | "matched" | "maxHz"
 >;
 
 /** Every compared motor order, its scatter and the bearing motor; motors in `excluded` are skipped. */
@@ -54,7 +57,90 @@ export function orderEvidence(ctx: OrderInputs, excluded: ReadonlySet<number>): 
   };
 }
 
+/** A rotation bin is compared when both the log and the baseline measured it in this many blocks. */
+const MIN_RPM_BIN_BLOCKS = 2;
+/** An order is compared in a rotation bin only below the top of the common range by this factor (one bin's width). */
+const RPM_BIN_MARGIN = 1.03;
+
+/**
+ * How each motor's orders stand at matched rpm: in every bin of the motor's own rotation rate that
+ * both the log and the baseline measured, the log's level less the baseline's, weighted by the
+ * log's blocks there. Used when both carry rpm maps; older analyses and baselines are compared
+ * at matched throttle (below). The expected scatter is the medians' own (block counts on both
+ * sides); what the flight adds beyond it is judged by the rise over the other motors, whose
+ * yardstick is the spread of every motor's rises in this same log (excessSigma).
+ */
+function rpmMatchedStandings(
+  ctx: OrderInputs,
+  excluded: ReadonlySet<number>,
+): Omit<OrderStanding, "excessDb">[] | null {
+  const { baseline, axes, maxHz, log } = ctx;
+  const maps = baseline.rpmMaps;
+  if (!maps || !log.motors.every((m) => m.rpmMap)) return null;
+  const raw: Omit<OrderStanding, "excessDb">[] = [];
+  for (const motor of baseline.motors) {
+    if (excluded.has(motor)) continue;
+    const logBins = log.motors.find((m) => m.motor === motor)?.rpmMap ?? [];
+    const baseBins = new Map(
+      (maps.find((m) => m.motor === motor)?.bins ?? []).map((b) => [b.bin, b]),
+    );
+    const orders = [...new Set(logBins.flatMap((b) => b.orders.map((o) => o.order)))];
+    for (const order of orders)
+      for (const side of [false, true])
+        for (const axis of axes) {
+          let wSum = 0;
+          let dSum = 0;
+          let varSum = 0;
+          let fSum = 0;
+          for (const lb of logBins) {
+            const bb = baseBins.get(lb.bin);
+            if (!bb || lb.blocks < MIN_RPM_BIN_BLOCKS || bb.blocks < MIN_RPM_BIN_BLOCKS) continue;
+            const f = order * lb.rotationHz;
+            if (f * RPM_BIN_MARGIN > maxHz || f < baseline.minFreqHz) continue;
+            const lo = lb.orders.find((o) => o.order === order);
+            const bo = bb.orders.find((o) => o.order === order);
+            const level = side ? lo?.sideDb?.[axis] : lo?.powerDb[axis];
+            const expected = side ? bo?.sideDb?.[axis] : bo?.db[axis];
+            if (level === undefined || expected === undefined) continue;
+            if (!Number.isFinite(level) || !Number.isFinite(expected)) continue;
+            const w = lb.blocks;
+            wSum += w;
+            dSum += w * (level - expected);
+            varSum +=
+              w * w * (DB_PER_UNIT_LOG * MEDIAN_SCATTER) ** 2 * (1 / lb.blocks + 1 / bb.blocks);
+            fSum += w * lb.rotationHz;
+          }
+          if (wSum > 0)
+            raw.push({
+              motor,
+              order,
+              side,
+              axis,
+              ownDb: dSum / wSum,
+              sigmaDb: Math.sqrt(varSum) / wSum,
+              rotationHz: fSum / wSum,
+            });
+        }
+  }
+  return raw;
+}
+
 function orderStandings(ctx: OrderInputs, excluded: ReadonlySet<number>): OrderStanding[] {
+  const raw = rpmMatchedStandings(ctx, excluded) ?? throttleMatchedStandings(ctx, excluded);
+  return raw.map((r) => {
+    const others = raw
+      .filter(
+        (x) => x.motor !== r.motor && x.order === r.order && x.side === r.side && x.axis === r.axis,
+      )
+      .map((x) => x.ownDb);
+    return { ...r, excessDb: others.length > 0 ? r.ownDb - median(others) : Number.NaN };
+  });
+}
+
+function throttleMatchedStandings(
+  ctx: OrderInputs,
+  excluded: ReadonlySet<number>,
+): Omit<OrderStanding, "excessDb">[] {
   const { baseline, axes, matched, maxHz } = ctx;
   const raw: Omit<OrderStanding, "excessDb">[] = [];
   for (const motor of baseline.motors) {
@@ -65,7 +151,7 @@ function orderStandings(ctx: OrderInputs, excluded: ReadonlySet<number>): OrderS
       ),
     );
     for (const order of orderSet)
-      for (const side of Number.isInteger(order) ? [false, true] : [false]) {
+      for (const side of [false, true]) {
         for (const axis of axes) {
           let wSum = 0;
           let dSum = 0;
@@ -119,14 +205,7 @@ function orderStandings(ctx: OrderInputs, excluded: ReadonlySet<number>): OrderS
         }
       }
   }
-  return raw.map((r) => {
-    const others = raw
-      .filter(
-        (x) => x.motor !== r.motor && x.order === r.order && x.side === r.side && x.axis === r.axis,
-      )
-      .map((x) => x.ownDb);
-    return { ...r, excessDb: others.length > 0 ? r.ownDb - median(others) : Number.NaN };
-  });
+  return raw;
 }
 
 /**
@@ -199,6 +278,10 @@ function bearingMotor(
 /** The order itself, at a whole multiple of the rotation (not its sidebands, not a half order). */
 export const isWhole = (s: OrderStanding) => Number.isInteger(s.order) && !s.side;
 
-/** "sidebands of 2×" or "1.5×": a tone between a motor's whole orders, for the sentences. */
+/** "sidebands of 2×", "1.5×" or "tones near 3.5×": a tone between a motor's whole orders, for the sentences. */
 export const betweenName = (s: OrderStanding) =>
-  s.side ? `sidebands of ${s.order}×` : `${s.order}×`;
+  !s.side
+    ? `${s.order}×`
+    : Number.isInteger(s.order)
+      ? `sidebands of ${s.order}×`
+      : `tones near ${s.order}×`;
