@@ -1,5 +1,5 @@
 import type { Axis } from "../../logs/columns";
-import { median } from "../../signal/stats";
+import { mean, median } from "../../signal/stats";
 import type { HealthThresholds } from "../thresholds";
 import type { DetectorContext } from "./context";
 import { atThrottle, DB_PER_UNIT_LOG, MEDIAN_SCATTER, robustSigma } from "./shared";
@@ -18,6 +18,9 @@ export interface OrderStanding {
   ownDb: number;
   /** ownDb less the median rise of the other motors at the same order and axis, dB. */
   excessDb: number;
+  /** excessDb averaged over the compared axes of the same motor and order, and how many axes that is. */
+  axesExcessDb: number;
+  axesCompared: number;
   /** Standard deviation expected of ownDb on a healthy airframe, dB. */
   sigmaDb: number;
   /** The motor's rotation rate over the compared bands, Hz. */
@@ -57,6 +60,9 @@ export function orderEvidence(ctx: OrderInputs, excluded: ReadonlySet<number>): 
   };
 }
 
+/** A standing before it is held against the other motors. */
+type RawStanding = Omit<OrderStanding, "excessDb" | "axesExcessDb" | "axesCompared">;
+
 /** A rotation bin is compared when both the log and the baseline measured it in this many blocks. */
 const MIN_RPM_BIN_BLOCKS = 2;
 /** An order is compared in a rotation bin only below the top of the common range by this factor (one bin's width). */
@@ -73,11 +79,11 @@ const RPM_BIN_MARGIN = 1.03;
 function rpmMatchedStandings(
   ctx: OrderInputs,
   excluded: ReadonlySet<number>,
-): Omit<OrderStanding, "excessDb">[] | null {
+): RawStanding[] | null {
   const { baseline, axes, maxHz, log } = ctx;
   const maps = baseline.rpmMaps;
   if (!maps || !log.motors.every((m) => m.rpmMap)) return null;
-  const raw: Omit<OrderStanding, "excessDb">[] = [];
+  const raw: RawStanding[] = [];
   for (const motor of baseline.motors) {
     if (excluded.has(motor)) continue;
     const logBins = log.motors.find((m) => m.motor === motor)?.rpmMap ?? [];
@@ -127,7 +133,7 @@ function rpmMatchedStandings(
 
 function orderStandings(ctx: OrderInputs, excluded: ReadonlySet<number>): OrderStanding[] {
   const raw = rpmMatchedStandings(ctx, excluded) ?? throttleMatchedStandings(ctx, excluded);
-  return raw.map((r) => {
+  const withExcess = raw.map((r) => {
     const others = raw
       .filter(
         (x) => x.motor !== r.motor && x.order === r.order && x.side === r.side && x.axis === r.axis,
@@ -135,14 +141,23 @@ function orderStandings(ctx: OrderInputs, excluded: ReadonlySet<number>): OrderS
       .map((x) => x.ownDb);
     return { ...r, excessDb: others.length > 0 ? r.ownDb - median(others) : Number.NaN };
   });
+  return withExcess.map((r) => {
+    const same = withExcess
+      .filter(
+        (x) =>
+          x.motor === r.motor &&
+          x.order === r.order &&
+          x.side === r.side &&
+          Number.isFinite(x.excessDb),
+      )
+      .map((x) => x.excessDb);
+    return { ...r, axesExcessDb: mean(same), axesCompared: same.length };
+  });
 }
 
-function throttleMatchedStandings(
-  ctx: OrderInputs,
-  excluded: ReadonlySet<number>,
-): Omit<OrderStanding, "excessDb">[] {
+function throttleMatchedStandings(ctx: OrderInputs, excluded: ReadonlySet<number>): RawStanding[] {
   const { baseline, axes, matched, maxHz } = ctx;
-  const raw: Omit<OrderStanding, "excessDb">[] = [];
+  const raw: RawStanding[] = [];
   for (const motor of baseline.motors) {
     if (excluded.has(motor)) continue;
     const orderSet = new Set(
@@ -224,13 +239,19 @@ export function standsOut(
   h: HealthThresholds,
   excessSigmaDb: (s: OrderStanding) => number,
 ): number {
+  // A motor's imbalance or rattle shakes the whole airframe: its order rises over the other
+  // motors on every axis it reaches. The rise over the others is judged as the mean over the
+  // compared axes, whose scatter is the single axis's over √axes (the axes' wander taken as
+  // independent), so a rise that every axis shares counts for more than one axis's alone.
+  const excess = s.axesCompared > 0 ? s.axesExcessDb : s.excessDb;
+  const sigma = excessSigmaDb(s) / Math.sqrt(Math.max(1, s.axesCompared));
   if (
-    !Number.isFinite(s.excessDb) ||
+    !Number.isFinite(excess) ||
     !(s.ownDb >= h.minSigma * s.sigmaDb) ||
-    !(s.excessDb >= h.minSigma * excessSigmaDb(s))
+    !(excess >= h.minSigma * sigma)
   )
     return Number.NaN;
-  return Math.min(s.ownDb, s.excessDb) >= h.levelDb.watch ? s.ownDb : Number.NaN;
+  return Math.min(s.ownDb, excess) >= h.levelDb.watch ? s.ownDb : Number.NaN;
 }
 
 /**
