@@ -174,7 +174,36 @@ export function peaksAboveLocalMedian(
   const first = Math.max(1, Math.floor(loHz / binHz));
   const last = Math.min(db.length - 2, Math.ceil(hiHz / binHz));
   if (last - first < 2) return [];
-  const residual = new Float64Array(last - first + 1);
+  const residual = aboveLocalBackground(db, first, last, relWidth);
+  const out: SpectralPeak[] = [];
+  for (const i of localMaxima(residual)) {
+    const p = peakProminence(residual, i);
+    if (p.prominence < minProminenceDb) continue;
+    const k = i + first;
+    // Refined on the residual (the slope would pull the plain spectrum's vertex downhill).
+    const v = quadraticVertex(residual[i - 1] ?? 0, residual[i] ?? 0, residual[i + 1] ?? 0);
+    out.push({
+      freqHz: (k + v.offset) * binHz,
+      levelDb: (db[k] ?? 0) + v.value - (residual[i] ?? 0),
+      prominenceDb: p.prominence,
+      widthHz: peakWidth(residual, i, p) * binHz,
+      bin: k,
+    });
+  }
+  return out;
+}
+
+/**
+ * A dB spectrum less its local background (see {@link peaksAboveLocalMedian}) over bins
+ * [first, last]: element i is bin first + i.
+ */
+export function aboveLocalBackground(
+  db: ArrayLike<number>,
+  first: number,
+  last: number,
+  relWidth = 0.12,
+): Float64Array {
+  const residual = new Float64Array(Math.max(0, last - first + 1));
   const flank: number[] = [];
   const medianOf = (from: number, to: number): number => {
     flank.length = 0;
@@ -199,20 +228,5 @@ export function peaksAboveLocalMedian(
     residual[k - first] =
       (db[k] ?? background) - (Number.isFinite(background) ? background : (db[k] ?? 0));
   }
-  const out: SpectralPeak[] = [];
-  for (const i of localMaxima(residual)) {
-    const p = peakProminence(residual, i);
-    if (p.prominence < minProminenceDb) continue;
-    const k = i + first;
-    // Refined on the residual (the slope would pull the plain spectrum's vertex downhill).
-    const v = quadraticVertex(residual[i - 1] ?? 0, residual[i] ?? 0, residual[i + 1] ?? 0);
-    out.push({
-      freqHz: (k + v.offset) * binHz,
-      levelDb: (db[k] ?? 0) + v.value - (residual[i] ?? 0),
-      prominenceDb: p.prominence,
-      widthHz: peakWidth(residual, i, p) * binHz,
-      bin: k,
-    });
-  }
-  return out;
+  return residual;
 }

@@ -8,9 +8,9 @@ import type { DetectorContext } from "./context";
 import { graded, wholeOrderFreqs } from "./shared";
 
 /** Where a baseline mode is looked for: −30 % to +15 % of its frequency (a crack lowers a mode). */
-const MODE_SEARCH = { below: 0.7, above: 1.15 };
+export const MODE_SEARCH = { below: 0.7, above: 1.15 };
 /** A peak this close to the mode (fraction of its frequency) is the mode even on a motor order. */
-const ON_MODE_FRACTION = 0.03;
+export const ON_MODE_FRACTION = 0.03;
 /** A peak this close to a motor's whole order (fraction of the peak's frequency) is that order. */
 const ON_ORDER_FRACTION = 0.03;
 /**
@@ -31,7 +31,7 @@ const RISE_WEIGHT = 0.5;
 /** Half the baseline's own scatter of the mode is forgiven. */
 const SPREAD_WEIGHT = 0.5;
 
-interface Sighting {
+export interface Sighting {
   shift: number;
   freqHz: number;
   weight: number;
@@ -135,7 +135,7 @@ function sightingsOf(ctx: DetectorContext, axis: Axis, modes: readonly BaselineM
 }
 
 /** A mode seen in the log: its segment-weighted shift, graded (a rise only ever to watch). */
-function modeShift(
+export function modeShift(
   ctx: DetectorContext,
   m: BaselineMode,
   seen: readonly Sighting[],

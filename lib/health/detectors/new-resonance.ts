@@ -1,9 +1,10 @@
 import { AXES, type Axis } from "../../logs/columns";
-import { peaksAboveLocalMedian } from "../../signal/peaks";
-import { median, round } from "../../signal/stats";
-import { dbAt, MODE_TRACK_PROMINENCE_DB } from "../baseline";
+import { aboveLocalBackground, peaksAboveLocalMedian } from "../../signal/peaks";
+import { round } from "../../signal/stats";
+import { dbAt, MODE_TRACK_PROMINENCE_DB, type BaselineMode } from "../baseline";
 import type { Finding } from "../findings";
 import { ADVICE } from "./advice";
+import { MODE_SEARCH, modeShift, ON_MODE_FRACTION } from "./mode-shift";
 import type { DetectorContext } from "./context";
 import { DB_PER_UNIT_LOG, graded, robustSigma, wholeOrderFreqs } from "./shared";
 
@@ -13,10 +14,26 @@ const MIN_SPAN_BINS = 3;
 const MOTOR_SPREAD_FRACTION = 0.02;
 /** A bin that less than this share of the segments could judge is left out. */
 const MIN_JUDGED_SHARE = 0.5;
-/** The local level of the excess: its median over ±15 % of the bin's frequency, ±3 bins at least. */
-const LOCAL_WINDOW = { fraction: 0.15, minBins: 3 };
-/** The wander a peak is judged by: the local excess's spread over ±30 % of its frequency. */
+/** The wander a peak is judged by: the prominence gain's spread over ±30 % of its frequency, ±3 bins at least. */
 const WANDER_FRACTION = 0.3;
+/** …leaving out the peak's own ±5 %. */
+const WANDER_CORE = 0;
+const WANDER_MIN_BINS = 3;
+/** The share of the bands judging a bin in which a new peak must peak. */
+const RECUR_SHARE = 0.75;
+/**
+ * The prominence gain must stand this many robust deviations above the gain's wander around it:
+ * fewer than minSigma, as it is one of three tests a new peak passes together (a level rise of
+ * minSigma expected deviations, and a peak in three quarters of the bands).
+ */
+const GAIN_SIGMA = 2;
+/**
+ * The background a peak's prominence gain is measured against: flanks from ±8 % to ±25 % of its
+ * frequency. A loose part rocks with 5–7 % damping (half-power half-width of 5–7 %), so its
+ * skirt must not lift its own background; prop wash and floor rises are wider still.
+ */
+const GAIN_BACKGROUND_WIDTH = 0.12;
+
 /**
  * A mode that moved drags its skirt along: from this share below the lower of its old and new
  * frequencies to this share above the higher, a peak is that mode's, not a new one.
@@ -28,9 +45,12 @@ const MOVED_MODE_SKIRT = { below: 0.9, above: 1.05 };
  * spectrum less the baseline's there, judged against the scatter expected of it — the Welch
  * estimate of K segments scatters about 4.34/√K dB per bin (χ² with 2K degrees of freedom;
  * Welch 1967), in the log and in the baseline, plus the baseline logs' own spread at that bin.
- * The excess is averaged over the bands (weighted by segments); where the log shows a peak above
- * its local median, an excess at least the watch step and minSigma expected deviations up, that
- * stands minSigma robust deviations above the excess around it, and that recurs in at least half
+ * The excess is averaged over the bands (weighted by segments). The prominence gain — the log's
+ * band spectrum above its own local background less the baseline's above its own — tells a peak
+ * from a broad rise (prop wash in hard flying, a floor rise), which lifts a bin and its background
+ * alike. Where the log shows a peak above its local median, with an excess of minSigma expected
+ * deviations, a gain of at least the watch step and minSigma robust deviations of the gain's
+ * wander around it, and a gain of the watch step in at least half
  * of the bands judging it, is a new peak. Bins near a motor's whole orders in a band (orders move with
  * throttle and have their own finding), near a moved or lost mode (`ctx.found`), or at a known
  * (recurring) baseline peak are not counted. With a floor rise among `ctx.found`, broadband noise
@@ -42,15 +62,15 @@ export function newPeaks(ctx: DetectorContext): Finding[] {
   const bins = { first: Math.ceil(baseline.minFreqHz / binHz), last: Math.floor(maxHz / binHz) };
   if (bins.last - bins.first < MIN_SPAN_BINS) return [];
   const found: Finding[] = [];
+  const moved: Finding[] = [];
+  const added = new Map<number, number>();
   for (const axis of axes) {
     const x = excessOver(ctx, axis, bins);
-    const local = localExcess(x.excess, bins);
-    // How this flight's spectrum wanders from the baseline's, bin to bin, around its own local
-    // level: the robust spread of the local excess near the bin (within ±WANDER_FRACTION of its
-    // frequency). A new resonance is an outlier of it; the theoretical scatter alone
-    // underestimates a real flight's, and prop wash makes the low range wander far more than the
-    // high one, so one spread for the whole axis would pass the wash's bumps as peaks.
-    const wanderAt = localWander(local, bins);
+    // How this flight's peaks wander from the baseline's, bin to bin: the robust spread of the
+    // prominence gain near the bin (within ±WANDER_FRACTION of its frequency). A new resonance is
+    // an outlier of it; prop wash makes the low range wander far more than the high one, so one
+    // spread for the whole axis would pass the wash's bumps as peaks.
+    const wanderAt = localWander(x.gain, bins);
     const tonal = peaksAboveLocalMedian(
       x.logDb,
       binHz,
@@ -70,21 +90,71 @@ export function newPeaks(ctx: DetectorContext): Finding[] {
         }
       }
       const s = x.sigma[at] ?? Number.NaN;
-      const above = local[at] ?? Number.NaN;
+      // The largest prominence gain within ±1 bin: how much more the log's spectrum peaks there
+      // than the baseline's, each above its own local background.
+      let gain = Number.NaN;
+      let gainAt = at;
+      for (let k = p.bin - 1; k <= p.bin + 1; k++) {
+        const g = x.gain[k] ?? Number.NaN;
+        if (Number.isFinite(g) && !(g <= gain)) {
+          gain = g;
+          gainAt = k;
+        }
+      }
+        console.log(
+          "G",
+          axis,
+          p.freqHz.toFixed(0),
+          "best",
+          best.toFixed(1),
+          "s",
+          s.toFixed(2),
+          "gain",
+          gain.toFixed(1),
+          "wander",
+          wanderAt(gainAt).toFixed(2),
+          "judged",
+          x.judged[gainAt],
+          "peaked",
+          x.peaked[gainAt],
+          "known",
+          isKnown(ctx, p.freqHz),
+        );
       if (
         !Number.isFinite(best) ||
         !(best >= h.minSigma * s) ||
-        !(above >= h.minSigma * wanderAt(at)) ||
-        !(above >= h.levelDb.watch)
+        !(gain >= GAIN_SIGMA * wanderAt(gainAt)) ||
+        !(gain >= h.levelDb.watch)
       )
         continue;
-      // A resonance stays put across throttle: it must be up in at least half of the bands that
-      // judged the bin (and two of them, when two or more did), not only on average.
-      const bands = x.judged[at] ?? 0;
-      if (!((x.risen[at] ?? 0) >= Math.max(Math.min(2, bands), Math.ceil(bands / 2)))) continue;
+      // A resonance stays put across throttle: it must peak in three quarters of the bands that
+      // judged the bin (and in two of them, when two or more did), not only on average. Prop
+      // wash and manoeuvres raise bumps in one band or another, not in all.
+      const bands = x.judged[gainAt] ?? 0;
+      if (
+        !((x.peaked[gainAt] ?? 0) >= Math.max(Math.min(2, bands), Math.ceil(RECUR_SHARE * bands)))
+      )
+        continue;
       if (isKnown(ctx, p.freqHz)) continue;
+      // A peak that appeared below a baseline mode of this axis which has left its place (the
+      // log no longer peaks there) is that mode, lowered and broadened past what the tracking
+      // followed: reported as the mode's shift, not as something loose.
+      const left = modeThatLeft(ctx, axis, p.freqHz, x.gainEverywhere);
+      if (left) {
+        const shift = modeShift(ctx, left, [
+          { shift: (p.freqHz - left.freqHz) / left.freqHz, freqHz: p.freqHz, weight: 1 },
+        ]);
+        if (shift) moved.push(shift);
+        continue;
+      }
       const grade = graded(best, h.levelDb, h);
       if (!grade) continue;
+      // The power the new resonance added on this axis: the log's level less the baseline's, as powers.
+      const level = x.logDb[at] ?? Number.NaN;
+      added.set(
+        found.length,
+        level + 10 * Math.log10(Math.max(Number.EPSILON, 1 - 10 ** (-best / 10))),
+      );
       found.push({
         axis,
         kind: "new-peak",
@@ -95,11 +165,19 @@ export function newPeaks(ctx: DetectorContext): Finding[] {
       });
     }
   }
-  // One loose part shows on several axes: keep the strongest sighting of each frequency.
+  // One loose part shows on several axes: keep the sighting of each frequency on the axis it
+  // shakes most (the most power added over the baseline), which is where the part rocks.
   const floorRise = ctx.found.some((f) => f.kind === "floor-rise");
-  return keepStrongestPerFrequency(found, h.samePeakFraction).filter(
+    console.log(
+      "NP",
+      found
+        .map((f, i) => `${f.axis}/${f.freqHz}/${f.points}/${added.get(i)?.toFixed(1)}`)
+        .join(" "),
+    );
+  const fresh = keepStrongestPerFrequency(found, added, h.samePeakFraction).filter(
     (f) => !(floorRise && f.freqHz >= baseline.floorCornerHz),
   );
+  return [...strongestPerMode(moved), ...fresh];
 }
 
 interface BinRange {
@@ -115,9 +193,21 @@ interface Excess {
   sigma: Float64Array;
   /** The log's own band spectra, segment-weighted, dB. */
   logDb: Float64Array;
-  /** Per bin: the bands that judged it, and those that saw the watch step's excess there. */
+  /**
+   * Segment-weighted mean of the prominence gain, dB: the log's band spectrum above its local
+   * background less the baseline's above its own (NaN where most bands could not judge). A broad
+   * rise (prop wash, a floor rise) lifts both a bin and its background and gains nothing; a new
+   * resonance is a peak the baseline does not have.
+   */
+  gain: Float64Array;
+  /**
+   * The same gain over every band, motor orders included: whether a baseline mode's own peak is
+   * still there, which orders passing over it do not hide.
+   */
+  gainEverywhere: Float64Array;
+  /** Per bin: the bands that judged it, and those whose prominence gain reached the watch step. */
   judged: Float64Array;
-  risen: Float64Array;
+  peaked: Float64Array;
 }
 
 function excessOver(ctx: DetectorContext, axis: Axis, { first, last }: BinRange): Excess {
@@ -127,8 +217,11 @@ function excessOver(ctx: DetectorContext, axis: Axis, { first, last }: BinRange)
   const wsum = new Float64Array(last + 1);
   const var2 = new Float64Array(last + 1);
   const logSum = new Float64Array(last + 1);
+  const everySum = new Float64Array(last + 1);
+  const everyW = new Float64Array(last + 1);
   const judged = new Float64Array(last + 1);
-  const risen = new Float64Array(last + 1);
+  const peaked = new Float64Array(last + 1);
+  const gainSum = new Float64Array(last + 1);
   for (const m of matched) {
     const orderFreqs = wholeOrderFreqs(m.log);
     // Within a throttle band each order sweeps as rpm does, rpm ∝ √throttle (thrust ∝ rpm²):
@@ -140,17 +233,30 @@ function excessOver(ctx: DetectorContext, axis: Axis, { first, last }: BinRange)
     const chi =
       DB_PER_UNIT_LOG ** 2 * (1 / Math.max(1, m.log.segments) + 1 / Math.max(1, m.base.segments));
     const spread = m.base.axes[axis].psdLogSpreadDb;
+    const logPsd = m.log.axes[axis].psdDb;
+    const basePsd = Array.from({ length: last + 2 }, (_, k) =>
+      dbAt(m.base.axes[axis].psdDb, baseline.binHz, k * binHz),
+    );
+    const logAbove = aboveLocalBackground(logPsd, first, last, GAIN_BACKGROUND_WIDTH);
+    const baseAbove = aboveLocalBackground(basePsd, first, last, GAIN_BACKGROUND_WIDTH);
     for (let k = first; k <= last; k++) {
       const f = k * binHz;
       const level = m.log.axes[axis].psdDb[k] ?? Number.NaN;
       logSum[k] = (logSum[k] ?? 0) + w * (Number.isFinite(level) ? level : 0);
+      const anyG = (logAbove[k - first] ?? Number.NaN) - (baseAbove[k - first] ?? Number.NaN);
+      if (Number.isFinite(anyG)) {
+        everySum[k] = (everySum[k] ?? 0) + w * anyG;
+        everyW[k] = (everyW[k] ?? 0) + w;
+      }
       if (orderFreqs.some((o) => Math.abs(o - f) <= sweep * o)) continue;
       const base = dbAt(m.base.axes[axis].psdDb, baseline.binHz, f);
       if (!Number.isFinite(level) || !Number.isFinite(base)) continue;
       const s = spread ? dbAt(spread, baseline.binHz, f) : 0;
       sum[k] = (sum[k] ?? 0) + w * (level - base);
       judged[k] = (judged[k] ?? 0) + 1;
-      if (level - base >= h.levelDb.watch) risen[k] = (risen[k] ?? 0) + 1;
+      const g = (logAbove[k - first] ?? 0) - (baseAbove[k - first] ?? 0);
+      gainSum[k] = (gainSum[k] ?? 0) + w * g;
+      if (g >= h.levelDb.watch) peaked[k] = (peaked[k] ?? 0) + 1;
       wsum[k] = (wsum[k] ?? 0) + w;
       var2[k] = (var2[k] ?? 0) + w * w * (chi + (Number.isFinite(s) ? s * s : 0));
     }
@@ -158,49 +264,89 @@ function excessOver(ctx: DetectorContext, axis: Axis, { first, last }: BinRange)
   const total = matched.reduce((s, m) => s + m.log.segments, 0);
   const excess = new Float64Array(last + 1).fill(Number.NaN);
   const sigma = new Float64Array(last + 1).fill(Number.NaN);
+  const gain = new Float64Array(last + 1).fill(Number.NaN);
   const logDb = new Float64Array(last + 1);
+  const gainEverywhere = new Float64Array(last + 1).fill(Number.NaN);
   for (let k = first; k <= last; k++) {
     logDb[k] = (logSum[k] ?? 0) / Math.max(1, total);
+    if ((everyW[k] ?? 0) > 0) gainEverywhere[k] = (everySum[k] ?? 0) / (everyW[k] ?? 1);
     const w = wsum[k] ?? 0;
     // A bin that most bands could not judge (motor orders sweep over it) is left out.
     if (w < MIN_JUDGED_SHARE * total) continue;
     excess[k] = (sum[k] ?? 0) / w;
     sigma[k] = Math.sqrt(var2[k] ?? 0) / w;
+    gain[k] = (gainSum[k] ?? 0) / w;
   }
-  return { excess, sigma, logDb, judged, risen };
+  return { excess, sigma, logDb, gain, gainEverywhere, judged, peaked };
 }
 
-/** The excess less its running median: a broadband rise is the floor's and the bands' finding. */
-function localExcess(excess: Float64Array, { first, last }: BinRange): Float64Array {
-  const local = new Float64Array(last + 1).fill(Number.NaN);
-  for (let k = first; k <= last; k++) {
-    const e = excess[k] ?? Number.NaN;
-    if (!Number.isFinite(e)) continue;
-    const half = Math.max(LOCAL_WINDOW.minBins, Math.round(LOCAL_WINDOW.fraction * k));
-    const around: number[] = [];
-    for (let j = Math.max(first, k - half); j <= Math.min(last, k + half); j++) {
-      const v = excess[j] ?? Number.NaN;
-      if (Number.isFinite(v)) around.push(v);
-    }
-    local[k] = e - median(around);
-  }
-  return local;
-}
-
-/** The robust spread of the local excess within ±WANDER_FRACTION of a bin's frequency, by bin. */
-function localWander(local: Float64Array, { first, last }: BinRange): (bin: number) => number {
+/**
+ * The robust spread of a per-bin quantity over the ring from ±WANDER_CORE to ±WANDER_FRACTION of
+ * a bin's frequency (at least WANDER_MIN_BINS each side), by bin: the peak's own skirt is left
+ * out, so a strong resonance does not widen the yardstick it is judged by.
+ */
+function localWander(values: Float64Array, { first, last }: BinRange): (bin: number) => number {
   const cache = new Map<number, number>();
   return (k) => {
     let w = cache.get(k);
     if (w === undefined) {
-      const half = Math.max(LOCAL_WINDOW.minBins, Math.round(WANDER_FRACTION * k));
-      w = robustSigma(
-        Array.from(local.subarray(Math.max(first, k - half), Math.min(last, k + half) + 1)),
-      );
+      const core = Math.round(WANDER_CORE * k);
+      const half = Math.max(core + WANDER_MIN_BINS, Math.round(WANDER_FRACTION * k));
+      const ring: number[] = [];
+      for (let j = Math.max(first, k - half); j <= Math.min(last, k + half); j++)
+        if (Math.abs(j - k) > core) ring.push(values[j] ?? Number.NaN);
+      w = robustSigma(ring);
       cache.set(k, w);
     }
     return w;
   };
+}
+
+/**
+ * The baseline mode of `axis` that a peak at `freqHz` may be after it dropped: the peak lies in
+ * the mode's search window below it, no earlier finding followed the mode, and the log's
+ * prominence gain at the mode's own frequency is down by the watch step or more (its old peak is
+ * gone). The nearest such mode, or null.
+ */
+function modeThatLeft(
+  ctx: DetectorContext,
+  axis: Axis,
+  freqHz: number,
+  gain: Float64Array,
+): BaselineMode | null {
+  const binHz = ctx.log.settings.binHz;
+  const followed = (m: BaselineMode) =>
+    ctx.found.some(
+      (f) =>
+        (f.kind === "mode-shift" || f.kind === "mode-lost") &&
+        f.axis === m.axis &&
+        Math.abs((f.baselineFreqHz ?? 0) - m.freqHz) <= ON_MODE_FRACTION * m.freqHz,
+    );
+  const candidates = ctx.baseline.modes.filter((m) => {
+    if (m.axis !== axis || followed(m)) return false;
+    if (freqHz < MODE_SEARCH.below * m.freqHz || freqHz > (1 - ON_MODE_FRACTION) * m.freqHz)
+      return false;
+    const at = Math.round(m.freqHz / binHz);
+    let g = Number.NaN;
+    for (let k = at - 1; k <= at + 1; k++) {
+      const v = gain[k] ?? Number.NaN;
+      if (Number.isFinite(v) && !(v >= g)) g = v;
+    }
+    return g <= -ctx.thresholds.levelDb.watch;
+  });
+  candidates.sort((a, b) => a.freqHz - b.freqHz);
+  return candidates[0] ?? null;
+}
+
+/** One shift per baseline mode: the largest drop found for it. */
+function strongestPerMode(moved: readonly Finding[]): Finding[] {
+  const best = new Map<string, Finding>();
+  for (const f of moved) {
+    const key = `${f.axis}/${f.baselineFreqHz ?? 0}`;
+    const old = best.get(key);
+    if (!old || f.points > old.points) best.set(key, f);
+  }
+  return [...best.values()];
 }
 
 /**
@@ -226,12 +372,17 @@ function isKnown(ctx: DetectorContext, freqHz: number): boolean {
   );
 }
 
-function keepStrongestPerFrequency(findings: Finding[], fraction: number): Finding[] {
-  const sorted = [...findings].sort(
-    (a, b) => b.points - a.points || (b.deltaDb ?? 0) - (a.deltaDb ?? 0),
-  );
+/** Of the findings within `fraction` of each other in frequency, the one with most added power (by index). */
+function keepStrongestPerFrequency(
+  findings: Finding[],
+  added: ReadonlyMap<number, number>,
+  fraction: number,
+): Finding[] {
+  const order = findings
+    .map((f, i) => ({ f, power: added.get(i) ?? Number.NEGATIVE_INFINITY }))
+    .sort((a, b) => b.power - a.power || b.f.points - a.f.points);
   const kept: Finding[] = [];
-  for (const f of sorted) {
+  for (const { f } of order) {
     if (!kept.some((k) => Math.abs(k.freqHz - f.freqHz) <= fraction * f.freqHz)) kept.push(f);
   }
   return kept;
