@@ -1,7 +1,8 @@
-import { bandsBelow, DEFAULT_ANALYSIS, trackedOrders } from "@/lib/analysis/settings";
+import { bandsBelow, DEFAULT_ANALYSIS, rpmBinOf, trackedOrders } from "@/lib/analysis/settings";
 import type {
   LogAnalysis,
   MotorInBand,
+  RpmBinLevels,
   ThrottleBandAxis,
   ThrottleBandResult,
 } from "@/lib/analysis/types";
@@ -43,6 +44,15 @@ export interface SyntheticSpec {
   maskedShare?: Record<number, number>;
   /** Axes without a usable signal, and the sentence for it. */
   unusable?: Partial<Record<Axis, string>>;
+  /**
+   * Gives every motor an rpm map (orders by its own rotation rate): the rotation rates it flew,
+   * Hz, each one bin of 10 blocks, and the order level there, dB, every axis (sidebands 10 dB
+   * below). Without it the analysis has none, as analyses stored before rpm maps.
+   */
+  rpmMap?: {
+    flownHz: (motor: number) => number[];
+    orderDb: (motor: number, order: number, rotationHz: number) => number;
+  };
 }
 
 export const BIN_HZ = 2;
@@ -212,7 +222,32 @@ export function syntheticAnalysis(spec: SyntheticSpec = {}): LogAnalysis {
           slew: 0,
         },
         track: [],
+        ...(spec.rpmMap ? { rpmMap: rpmMapOf(spec.rpmMap, motor, bladeCount) } : {}),
       };
     }),
   };
+}
+
+function rpmMapOf(
+  map: NonNullable<SyntheticSpec["rpmMap"]>,
+  motor: number,
+  bladeCount: number,
+): RpmBinLevels[] {
+  const byBin = new Map<number, number>();
+  for (const hz of map.flownHz(motor)) byBin.set(rpmBinOf(hz), hz);
+  return [...byBin.entries()]
+    .sort((a, b) => a[0] - b[0])
+    .map(([bin, hz]) => ({
+      bin,
+      rotationHz: hz,
+      blocks: 10,
+      orders: trackedOrders(bladeCount).map((order) => {
+        const db = map.orderDb(motor, order, hz);
+        return {
+          order,
+          powerDb: { roll: db, pitch: db, yaw: db },
+          sideDb: { roll: db - 10, pitch: db - 10, yaw: db - 10 },
+        };
+      }),
+    }));
 }

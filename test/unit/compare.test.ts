@@ -159,6 +159,22 @@ describe("new resonance", () => {
     expect(f.severity).toBe("ground");
   });
 
+  it("a broad rise (prop wash: a hump 80 Hz wide, 10 dB up) is no new peak: it gains no prominence", () => {
+    const a = assess({
+      bumps: [MODE, { axis: "pitch", freqHz: 100, heightDb: 10, widthHz: 40, structural: false }],
+    });
+    expect(a.findings.filter((f) => f.kind === "new-peak")).toEqual([]);
+  });
+
+  it("a mode lowered 15 % and broadened is that mode's shift, never a new peak", () => {
+    // The roll mode's peak at 300 Hz is gone and a broader one stands at 255 Hz (−15 %).
+    const a = assess({ bumps: [{ ...MODE, freqHz: 255, widthHz: 6 }] });
+    expect(a.findings.filter((f) => f.kind === "new-peak")).toEqual([]);
+    const f = a.findings.find((x) => x.kind === "mode-shift");
+    expect(f?.baselineFreqHz).toBe(300);
+    expect(Math.abs((f?.shiftPct ?? 0) + 15)).toBeLessThan(0.5);
+  });
+
   it("a peak at a known baseline peak of another axis is not new", () => {
     const a = assess({ bumps: [MODE, { axis: "yaw", freqHz: 300, heightDb: 12 }] });
     expect(a.findings.filter((f) => f.kind === "new-peak")).toEqual([]);
@@ -242,5 +258,61 @@ describe("what is not compared, and why", () => {
     expect(a.score).toBeNaN();
     expect(a.status).toBe("watch");
     expect(a.notCompared.at(-1)?.what).toBe("whole log");
+  });
+});
+
+describe("motor orders at matched rpm (analyses with rpm maps)", () => {
+  // The frame answers a 1× near 300 Hz 15 dB louder (a resonance the order passes over). Every
+  // baseline motor flew from 240 to 360 Hz; in the log one motor spends its time near 300 Hz.
+  // Held at matched throttle, that motor's 1× would read up to 15 dB high; at matched rpm it is
+  // compared bin by bin with its own baseline at the same speed, and nothing has changed.
+  const response = (order: number, hz: number) =>
+    order === 1 ? 15 * Math.exp(-(((hz - 300) / 10) ** 2) / 2) : 0;
+  const wide = () => Array.from({ length: 13 }, (_, i) => 240 + 10 * i);
+  const rpmBaseline = buildBaseline(
+    [1, 2].map(() =>
+      syntheticAnalysis({
+        bumps: [MODE],
+        rpmMap: { flownHz: wide, orderDb: (_m, o, hz) => -10 + response(o, hz) },
+      }),
+    ),
+  );
+  const rpmAssess = (
+    flownHz: (motor: number) => number[],
+    orderDb: (motor: number, order: number, hz: number) => number,
+  ) =>
+    compareWithBaseline(
+      syntheticAnalysis({ bumps: [MODE], rpmMap: { flownHz, orderDb } }),
+      rpmBaseline,
+    );
+
+  it("the baseline pools each motor's rpm bins", () => {
+    expect(rpmBaseline.rpmMaps?.map((m) => m.motor)).toEqual([1, 2, 3, 4]);
+    const bins = rpmBaseline.rpmMaps?.[0]?.bins ?? [];
+    expect(bins).toHaveLength(13);
+    // Two logs of 10 blocks each in every bin.
+    expect(bins.every((b) => b.blocks === 20)).toBe(true);
+  });
+
+  it("a motor that flew where the frame answers loudest is not blamed for the frame", () => {
+    const a = rpmAssess(
+      (m) => (m === 2 ? [280, 290, 300, 310, 320] : wide()),
+      (_m, o, hz) => -10 + response(o, hz),
+    );
+    expect(a.findings.filter((f) => f.kind === "motor-order")).toEqual([]);
+  });
+
+  it("one motor's 2× 10 dB up at every rpm names that motor, its 2× and the full rise", () => {
+    const f = only(
+      rpmAssess(wide, (m, o, hz) => -10 + response(o, hz) + (m === 3 && o === 2 ? 10 : 0)),
+    );
+    expect(f.kind).toBe("motor-order");
+    expect(f.motor).toBe(3);
+    expect(f.order).toBe(2);
+    expect(f.cause).toBe("prop");
+    // Levels are kept to 0.001 dB; every bin rose by exactly 10 dB.
+    expect(Math.abs((f.deltaDb ?? 0) - 10)).toBeLessThan(0.01);
+    // Its rotation rate, weighted by the log's blocks per bin (equal here): the middle of 240–360 Hz.
+    expect(f.freqHz).toBeCloseTo(300, 0);
   });
 });

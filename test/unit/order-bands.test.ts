@@ -1,7 +1,8 @@
 import { describe, expect, it } from "vitest";
 import { OrderBands } from "@/lib/analysis/order-bands";
 import { planAnalysis, throttleBandOf, type AnalysisPlan } from "@/lib/analysis/plan";
-import { DEFAULT_ANALYSIS } from "@/lib/analysis/settings";
+import { DEFAULT_ANALYSIS, rpmBinOf } from "@/lib/analysis/settings";
+import type { RpmBinLevels } from "@/lib/analysis/types";
 import type { SampleBlock } from "@/lib/logs/read-log";
 import { logInfo } from "../support/log-info";
 
@@ -18,6 +19,7 @@ function orderBands(
   blocks: number,
   throttle: number,
   rpmOf: (m: number, t: number, good: number) => number,
+  toneAmplitude: (t: number) => number = () => 1,
 ): { plan: AnalysisPlan; bands: OrderBands } {
   const motors = 2;
   const plan = planAnalysis(logInfo(FS, { motors: [1, 2] }), DEFAULT_ANALYSIS);
@@ -40,7 +42,7 @@ function orderBands(
       const t = (start + j) / FS;
       const good = 20000 + 2000 * Math.sin(2 * Math.PI * 0.5 * t);
       block.timeS[j] = t;
-      block.gyro[0][j] = Math.cos(angle);
+      block.gyro[0][j] = toneAmplitude(t) * Math.cos(angle);
       if (block.throttle) block.throttle[j] = throttle;
       block.rpm.forEach((r, m) => (r[j] = rpmOf(m, t, good)));
       angle += (2 * Math.PI * good) / 60 / FS;
@@ -96,6 +98,42 @@ describe("OrderBands: order-tracking blocks summed per throttle band and motor",
     const track = bands.summaries()[0]?.track ?? [];
     expect(track).toHaveLength(8);
     expect(Math.abs((track[3]?.order1Db ?? 0) - 10 * Math.log10(0.5))).toBeLessThan(0.05);
+  });
+
+  it("a band's level is the median of its blocks: three blocks 30 dB louder (a lagging notch) do not move it", () => {
+    // Blocks 2, 7 and 11 of 16 carry the tone at 31.6 deg/s (+30 dB); the others at 1 deg/s.
+    const loud = new Set([2, 7, 11]);
+    const { plan, bands } = orderBands(
+      16,
+      0.5,
+      (_m, _t, good) => good,
+      (t) => (loud.has(Math.floor((t * FS) / BLOCK)) ? Math.sqrt(1000) : 1),
+    );
+    const one = bands
+      .bandMotors(throttleBandOf(0.5, plan.throttleBands))[0]
+      ?.orders.find((o) => o.order === 1);
+    // The steady blocks' −3.01 dB within 0.05 dB; a mean of powers would read +19.7 dB.
+    expect(Math.abs((one?.powerDb.roll ?? 0) - 10 * Math.log10(0.5))).toBeLessThan(0.05);
+  });
+
+  it("the rpm map bins steady blocks by the motor's own rotation; a block whose rpm ranged over 10 % is left out", () => {
+    // Motor 1 as usual (rpm within ±10 % of 20 000, slowly); motor 2 ramps 10 000 → 30 000 rpm,
+    // 1 250 rpm a block: blocks 0 and 1 range over more than 10 % of their mean, the rest less.
+    const { bands } = orderBands(16, 0.5, (m, t, good) =>
+      m === 1 ? 10000 + (20000 * t * FS) / (16 * BLOCK) : good,
+    );
+    const [m1, m2] = bands.summaries();
+    const blocksIn = (map: RpmBinLevels[] | undefined) =>
+      (map ?? []).reduce((s, b) => s + b.blocks, 0);
+    expect(blocksIn(m1?.rpmMap)).toBe(16);
+    expect(blocksIn(m2?.rpmMap)).toBe(14);
+    for (const b of m1?.rpmMap ?? []) {
+      // Each bin holds rotation rates from 10·1.03^bin Hz up to the next bin.
+      expect(rpmBinOf(b.rotationHz)).toBe(b.bin);
+      const one = b.orders.find((o) => o.order === 1);
+      // The 1 deg/s tone of motor 1 reads −3.01 dB in every bin (0.1 dB: a bin may hold one block).
+      expect(Math.abs((one?.powerDb.roll ?? 0) - 10 * Math.log10(0.5))).toBeLessThan(0.1);
+    }
   });
 
   it("throttle bands: values in 0..1 fall in equal bands, outside values are clamped", () => {

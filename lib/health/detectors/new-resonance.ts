@@ -101,25 +101,6 @@ export function newPeaks(ctx: DetectorContext): Finding[] {
           gainAt = k;
         }
       }
-        console.log(
-          "G",
-          axis,
-          p.freqHz.toFixed(0),
-          "best",
-          best.toFixed(1),
-          "s",
-          s.toFixed(2),
-          "gain",
-          gain.toFixed(1),
-          "wander",
-          wanderAt(gainAt).toFixed(2),
-          "judged",
-          x.judged[gainAt],
-          "peaked",
-          x.peaked[gainAt],
-          "known",
-          isKnown(ctx, p.freqHz),
-        );
       if (
         !Number.isFinite(best) ||
         !(best >= h.minSigma * s) ||
@@ -168,12 +149,6 @@ export function newPeaks(ctx: DetectorContext): Finding[] {
   // One loose part shows on several axes: keep the sighting of each frequency on the axis it
   // shakes most (the most power added over the baseline), which is where the part rocks.
   const floorRise = ctx.found.some((f) => f.kind === "floor-rise");
-    console.log(
-      "NP",
-      found
-        .map((f, i) => `${f.axis}/${f.freqHz}/${f.points}/${added.get(i)?.toFixed(1)}`)
-        .join(" "),
-    );
   const fresh = keepStrongestPerFrequency(found, added, h.samePeakFraction).filter(
     (f) => !(floorRise && f.freqHz >= baseline.floorCornerHz),
   );
