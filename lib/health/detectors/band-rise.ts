@@ -23,9 +23,9 @@ const DEFAULT_SEGMENT_SPREAD_DB = 1;
  */
 export function bandRises(ctx: DetectorContext): Finding[] {
   const { log, baseline, thresholds: h, axes, matched, found: specific } = ctx;
-  const found: Finding[] = [];
+  const risen: { band: (typeof baseline.bands)[number]; axis: Axis; delta: number }[] = [];
   const hasFloorRise = specific.some((f) => f.kind === "floor-rise");
-  const highFromHz = baseline.floorCornerHz * HIGH_BAND_CORNER_SHARE;
+  const highFromHz = ctx.cornerHz * HIGH_BAND_CORNER_SHARE;
   baseline.bands.forEach((band, b) => {
     // A more specific finding inside the band already explains its rise.
     const explained =
@@ -35,7 +35,6 @@ export function bandRises(ctx: DetectorContext): Finding[] {
           band.hiHz > SKIRT.below * f.freqHz &&
           band.loHz < SKIRT.above * f.freqHz,
       ) ||
-      (hasFloorRise && band.loHz >= highFromHz) ||
       specific.some(
         (f) =>
           f.kind === "motor-order" &&
@@ -76,18 +75,32 @@ export function bandRises(ctx: DetectorContext): Finding[] {
       if (!Number.isFinite(delta) || delta < h.minSigma * sigma) continue;
       if (!best || delta > best.delta) best = { axis, delta };
     }
-    if (!best) return;
-    const grade = graded(best.delta, h.levelDb, h);
-    if (!grade) return;
+    if (best) risen.push({ band, ...best });
+  });
+  // With a floor rise, the run of risen bands reaching down from the floor's range, band after
+  // adjacent band, is the same broadband noise seen lower (a worn bearing's noise is broad and
+  // the corner is a convention): the floor rise says it once.
+  let broadFromHz = highFromHz;
+  if (hasFloorRise)
+    for (const r of [...risen].sort((a, b) => b.band.hiHz - a.band.hiHz)) {
+      if (r.band.loHz >= highFromHz) continue;
+      if (r.band.hiHz < broadFromHz || !(r.delta >= h.levelDb.watch)) break;
+      broadFromHz = r.band.loHz;
+    }
+  const found: Finding[] = [];
+  for (const { band, axis, delta } of risen) {
+    if (hasFloorRise && band.loHz >= broadFromHz) continue;
+    const grade = graded(delta, h.levelDb, h);
+    if (!grade) continue;
     const advice = band.loHz >= highFromHz ? ADVICE.highBand : ADVICE.lowBand;
     found.push({
-      axis: best.axis,
+      axis,
       kind: "band-rise",
       freqHz: round(Math.sqrt(band.loHz * band.hiHz), 0),
-      deltaDb: round(best.delta, 1),
+      deltaDb: round(delta, 1),
       ...grade,
-      text: `${best.axis} vibration between ${band.loHz} and ${band.hiHz} Hz is up ${best.delta.toFixed(0)} dB at matched throttle: ${advice}`,
+      text: `${axis} vibration between ${band.loHz} and ${band.hiHz} Hz is up ${delta.toFixed(0)} dB at matched throttle: ${advice}`,
     });
-  });
+  }
   return found;
 }

@@ -14,13 +14,28 @@ function floorOver(psdDb: readonly number[], binHz: number, loHz: number, hiHz: 
 }
 
 /**
+ * The floor is judged over one octave above the corner (up to the top both logs show). The
+ * flight controller's low-passes (corners of some 100–300 Hz, two stages; common practice) leave
+ * the logged gyro above about a kilohertz to the sensor's own noise, where no vibration can rise:
+ * a median that reached up there would read a worn bearing smaller in an 8 kHz log than in a
+ * 1 kHz one.
+ */
+const FLOOR_SPAN = 2;
+
+/** Top of the range the floor rise is judged over, Hz. */
+export function floorTop(ctx: Pick<DetectorContext, "cornerHz" | "maxHz">): number {
+  return Math.min(ctx.maxHz, FLOOR_SPAN * ctx.cornerHz);
+}
+
+/**
  * Broadband noise above the floor corner, log against baseline over the same range (the
- * baseline's corner, lowered like the analysis does for a log that cannot reach it, up to the top
- * both can show), segment-weighted over the compared bands; the axis that rose most is reported,
+ * baseline's corner, lowered like the analysis does for a log that cannot reach it, over the
+ * octave above it), segment-weighted over the compared bands; the axis that rose most is reported,
  * the others that reached the watch step are named.
  */
 export function floorRises(ctx: DetectorContext): Finding[] {
-  const { log, baseline, thresholds: h, axes, matched, maxHz, cornerHz } = ctx;
+  const { log, baseline, thresholds: h, axes, matched, cornerHz } = ctx;
+  const maxHz = floorTop(ctx);
   if (cornerHz >= maxHz) return [];
   const perAxis = axes
     .map((axis) => {
