@@ -116,10 +116,21 @@ describe("floor rise", () => {
     const f = only(assess({ riseAbove: { freqHz: 600, db: 8 } }));
     expect(f.kind).toBe("floor-rise");
     expect(f.deltaDb).toBeCloseTo(8, 6);
-    // Centre of the floor's range, corner 600 Hz to the top 1800 Hz: √(600·1800).
-    expect(f.freqHz).toBe(Math.round(Math.sqrt(600 * 1800)));
+    // Centre of the floor's range, the octave from the corner (600 to 1200 Hz): √(600·1200).
+    expect(f.freqHz).toBe(Math.round(Math.sqrt(600 * 1200)));
     expect(f.text).toContain("above 600 Hz is up 8 dB on roll (also pitch and yaw)");
     expect(f.motor).toBeUndefined();
+  });
+
+  it("a floor up 12 dB in one compared band and not in the others is no floor rise", () => {
+    // Hard flying lifts the floor where the wash or the manoeuvres were, not at every throttle.
+    const log = syntheticAnalysis({ bumps: [MODE] });
+    const hot = syntheticAnalysis({ bumps: [MODE], riseAbove: { freqHz: 600, db: 12 } });
+    const band = hot.throttleBands[3];
+    if (!band) throw new Error("no band 3");
+    log.throttleBands[3] = band;
+    const a = compareWithBaseline(log, baseline);
+    expect(a.findings.filter((f) => f.kind === "floor-rise")).toEqual([]);
   });
 });
 

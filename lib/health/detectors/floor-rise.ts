@@ -6,6 +6,20 @@ import type { DetectorContext } from "./context";
 import { betweenName } from "./order-evidence";
 import { graded } from "./shared";
 
+/**
+ * The band-to-band scatter of the floor's rise over √bands, its standard deviation at least
+ * MIN_BAND_SCATTER_DB (with one band, or bands that agree to the hundredth, nothing says the
+ * rise is steadier than that).
+ */
+function standardError(deltas: readonly number[], mean: number): number {
+  const finite = deltas.filter(Number.isFinite);
+  const n = finite.length;
+  const variance = n > 1 ? finite.reduce((s, d) => s + (d - mean) ** 2, 0) / (n - 1) : 0;
+  return Math.max(MIN_BAND_SCATTER_DB, Math.sqrt(variance)) / Math.sqrt(Math.max(1, n));
+}
+
+const MIN_BAND_SCATTER_DB = 1;
+
 /** Median of a dB spectrum over [loHz, hiHz]: the noise floor there. */
 function floorOver(psdDb: readonly number[], binHz: number, loHz: number, hiHz: number): number {
   const first = Math.ceil(loHz / binHz);
@@ -44,15 +58,16 @@ export function floorRises(ctx: DetectorContext): Finding[] {
           floorOver(m.log.axes[axis].psdDb, log.settings.binHz, cornerHz, maxHz) -
           floorOver(m.base.axes[axis].psdDb, baseline.binHz, cornerHz, maxHz),
       );
-      return {
-        axis,
-        delta: weightedMean(
-          deltas,
-          matched.map((m) => m.log.segments),
-        ),
-      };
+      const delta = weightedMean(
+        deltas,
+        matched.map((m) => m.log.segments),
+      );
+      return { axis, delta, error: standardError(deltas, delta) };
     })
-    .filter((x) => Number.isFinite(x.delta));
+    // A worn bearing or a damaged prop is noisy at every throttle: the rise must stand minSigma
+    // standard errors clear of how it varies from band to band. Hard flying lifts the floor in
+    // some bands (prop wash, manoeuvres), not in all.
+    .filter((x) => Number.isFinite(x.delta) && x.delta >= h.minSigma * x.error);
   perAxis.sort((a, b) => b.delta - a.delta);
   const top = perAxis[0];
   if (!top) return [];
