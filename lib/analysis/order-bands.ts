@@ -1,7 +1,8 @@
-import { axisRecord } from "../logs/columns";
+import { axisRecord, type PerAxis } from "../logs/columns";
 import type { SampleBlock } from "../logs/read-log";
 import { toDb } from "../signal/bands";
-import { middleOfSorted, round } from "../signal/stats";
+import { RunningMedian } from "../signal/running-median";
+import { round } from "../signal/stats";
 import { MASK_REASONS, OrderTracker, type MaskReason, type OrderBlock } from "./order-tracker";
 import { throttleBandOf, type AnalysisPlan } from "./plan";
 import { RPM_MAP, rpmBinOf, TELEMETRY_LIMITS } from "./settings";
@@ -10,14 +11,31 @@ import type { MotorInBand, MotorSummary, MotorTrackPoint, OrderLevel } from "./t
 /** Points of a motor's track in the results; longer tracks are averaged down to this. */
 const MAX_TRACK_POINTS = 300;
 
-/** Sums of one motor's order in one throttle band, over the blocks that measured it. */
+/**
+ * One motor's order in one throttle band (or rpm bin), over the blocks that measured it. Its level
+ * is the median of the blocks' powers, not the mean: the flight controller's rpm notches lag a
+ * motor that changes speed fast (flips, punch-outs), and in those few blocks an order leaks
+ * through tens of dB stronger; a mean is ruled by them, so the same healthy motor read 20–30 dB
+ * higher in a freestyle flight than in a gentle one at the same rpm. The median follows the
+ * steady blocks, which are most of any flight.
+ */
 interface OrderSums {
   /** Blocks that measured it (telemetry believed, frequency below the trusted top). */
   count: number;
-  /** Each measured block's power and sideband power (whole orders) per axis, (deg/s)². */
-  power: [number[], number[], number[]];
-  side: [number[], number[], number[]];
+  /**
+   * The running median of the measured blocks' power, and of the power beside the order, per
+   * axis, in dB (a median is the same in dB as in power; the P² markers interpolate better on
+   * the log scale of a skewed power).
+   */
+  power: PerAxis<RunningMedian>;
+  side: PerAxis<RunningMedian>;
 }
+
+const medians = (): PerAxis<RunningMedian> => [
+  new RunningMedian(),
+  new RunningMedian(),
+  new RunningMedian(),
+];
 
 /** One motor's order-tracking sums in one throttle band. */
 interface MotorSums {
@@ -48,7 +66,7 @@ interface MotorRecord {
   rpmBins: Map<number, RpmBinSums>;
 }
 
-const emptyOrderSums = (): OrderSums => ({ count: 0, power: [[], [], []], side: [[], [], []] });
+const emptyOrderSums = (): OrderSums => ({ count: 0, power: medians(), side: medians() });
 
 /**
  * The motor orders of a log with rpm telemetry: the {@link OrderTracker}'s blocks summed per
@@ -207,9 +225,9 @@ export class OrderBands {
 function addBlock(order: OrderSums, power: Float64Array, side: Float64Array): void {
   order.count++;
   for (const a of [0, 1, 2] as const) {
-    order.power[a].push(power[a] ?? 0);
+    order.power[a].push(toDb(power[a] ?? 0));
     const s = side[a] ?? 0;
-    order.side[a].push(Number.isFinite(s) ? s : 0);
+    order.side[a].push(toDb(Number.isFinite(s) ? s : 0));
   }
 }
 
@@ -218,22 +236,9 @@ function orderLevels(
   order: number,
   sums: OrderSums,
 ): Pick<OrderLevel, "order" | "powerDb" | "sideDb"> {
-  const levelDb = (blocks: readonly (readonly number[])[]) =>
-    axisRecord((_axis, a) =>
-      sums.count > 0 ? round(toDb(medianPower(blocks[a] ?? [])), 3) : Number.NaN,
-    );
+  const levelDb = (blocks: PerAxis<RunningMedian>) =>
+    axisRecord((_axis, a) => (sums.count > 0 ? round(blocks[a].value(), 3) : Number.NaN));
   return { order, powerDb: levelDb(sums.power), sideDb: levelDb(sums.side) };
-}
-
-/**
- * The median of the blocks' powers. Not the mean: the flight controller's rpm notches lag a motor
- * that changes speed fast (flips, punch-outs), and in those few blocks an order leaks through
- * tens of dB stronger; a mean is ruled by them, so the same healthy motor read 20–30 dB higher
- * in a freestyle flight than in a gentle one at the same rpm. The median follows the steady
- * blocks, which are most of any flight.
- */
-function medianPower(values: readonly number[]): number {
-  return middleOfSorted([...values].sort((a, b) => a - b));
 }
 
 /** At most `maxPoints` points: consecutive groups averaged (order levels as powers), rounded. */

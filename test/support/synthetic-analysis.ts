@@ -127,7 +127,7 @@ function motorsIn(spec: SyntheticSpec, index: number, bladeCount: number): Motor
           label: order === bladeCount ? "blade-pass" : `${order}x`,
           freqHz: order * rot,
           powerDb: level,
-          ...(Number.isInteger(order) ? { sideDb: side } : {}),
+          sideDb: side,
         };
       }),
     };

@@ -189,10 +189,21 @@ function throttleMatchedStandings(ctx: OrderInputs, excluded: ReadonlySet<number
               (order === 1 && bm && !side
                 ? { db: bm.order1Db, logSpreadDb: bm.logSpreadDb, blocks: 0 }
                 : undefined);
+            // Analyses stored before half orders were measured exactly hold the strongest tone
+            // near a half order as its level, and nothing beside it: whichever side is of that
+            // kind, the strongest tone is held against the strongest tone.
+            const oldShape = (sideDb: Record<Axis, number> | undefined) =>
+              !Number.isInteger(order) && !Number.isFinite(sideDb?.[axis] ?? Number.NaN);
+            const logOld = oldShape(lo.sideDb);
             const expected = atThrottle(baseline, m.log.meanThrottle, (b) => {
               const x = b.motors.find((y) => y.motor === motor);
               const o = x?.orders?.find((y) => y.order === order);
-              if (side) return o?.sideDb?.[axis] ?? Number.NaN;
+              const baseOld = !!o && oldShape(o.sideDb);
+              if (side) return baseOld && o ? o.db[axis] : (o?.sideDb?.[axis] ?? Number.NaN);
+              if (baseOld && !logOld) return Number.NaN;
+              // An old log's half-order level is the strongest tone: the new baseline's like value.
+              if (logOld && !baseOld && !Number.isInteger(order))
+                return o?.sideDb?.[axis] ?? Number.NaN;
               return o ? o.db[axis] : order === 1 && x ? x.order1Db[axis] : Number.NaN;
             });
             if (!bo || !Number.isFinite(expected)) continue;
