@@ -95,6 +95,11 @@ export async function analyzeLogInTwoThreads(
   // The worker starts when the reader has a header and a sample rate, so a file refused early
   // (not a CSV, no header, a bad cell in the first rows) costs no thread.
   const thread: { worker: Worker | null } = { worker: null };
+  // The analysis thread allocates fast (a short-lived block result per order block), and V8 grows
+  // its young generation to match, which cost some 25 MB of peak memory on a 77 MB log; capped at
+  // 8 MB the peak fell from 158 to 135 MB with no loss of speed (measured with /usr/bin/time on
+  // the bench's 300 s log, and the 1 GB log stayed at 141 MB).
+  const ANALYSIS_HEAP = { maxYoungGenerationSizeMb: 8 };
   const startWorker = (): Worker => {
     const entry = new URL(options.entryUrl);
     // Under tsx the entry is TypeScript, and a worker does not inherit tsx's loader: register it
@@ -102,9 +107,9 @@ export async function analyzeLogInTwoThreads(
     const w = entry.pathname.endsWith(".ts")
       ? new Worker(
           `import("tsx/esm/api").then((tsx) => { tsx.register(); return import(${JSON.stringify(entry.href)}); });`,
-          { eval: true, workerData: { role: ROLE } },
+          { eval: true, workerData: { role: ROLE }, resourceLimits: ANALYSIS_HEAP },
         )
-      : new Worker(entry, { workerData: { role: ROLE } });
+      : new Worker(entry, { workerData: { role: ROLE }, resourceLimits: ANALYSIS_HEAP });
     listen(w);
     return w;
   };

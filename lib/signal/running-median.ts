@@ -14,13 +14,17 @@ import { middleOfSorted } from "./stats";
 const EXACT_LIMIT = 32;
 /** Increments of the markers' desired positions per value, for the median (p = 0.5). */
 const DESIRED_STEP = [0, 0.25, 0.5, 0.75, 1] as const;
+const NO_MARKERS = new Float64Array(0);
 
 export class RunningMedian {
-  private readonly held: number[] = [];
-  /** Marker heights and positions (0-based), and desired positions, once past EXACT_LIMIT. */
+  private held: number[] = [];
+  /**
+   * Once past EXACT_LIMIT: marker heights, positions (0-based) and desired positions. Allocated
+   * only then: a log makes tens of thousands of these, most of which never hold 32 values.
+   */
   private heights: Float64Array | null = null;
-  private readonly positions = new Float64Array(5);
-  private readonly desired = new Float64Array(5);
+  private positions: Float64Array = NO_MARKERS;
+  private desired: Float64Array = NO_MARKERS;
   private count = 0;
 
   /** Adds a value; NaN is skipped. */
@@ -51,6 +55,8 @@ export class RunningMedian {
     const sorted = [...this.held].sort((a, b) => a - b);
     const last = sorted.length - 1;
     const heights = new Float64Array(5);
+    this.positions = new Float64Array(5);
+    this.desired = new Float64Array(5);
     for (let i = 0; i < 5; i++) {
       const pos = Math.round((DESIRED_STEP[i] ?? 0) * last);
       this.positions[i] = pos;
@@ -58,7 +64,7 @@ export class RunningMedian {
       heights[i] = sorted[pos] ?? 0;
     }
     this.heights = heights;
-    this.held.length = 0;
+    this.held = [];
   }
 
   private update(q: Float64Array, x: number): void {
