@@ -279,7 +279,8 @@ function localWander(values: Float64Array, { first, last }: BinRange): (bin: num
 
 /**
  * The baseline mode of `axis` that a peak at `freqHz` may be after it dropped: the peak lies in
- * the mode's search window below it, no earlier finding followed the mode, and the log's
+ * the mode's search window below it with no other mode of the axis in between, no earlier
+ * finding followed the mode, and the log's
  * prominence gain at the mode's own frequency is down by the watch step or more (its old peak is
  * gone). The nearest such mode, or null.
  */
@@ -297,10 +298,14 @@ function modeThatLeft(
         f.axis === m.axis &&
         Math.abs((f.baselineFreqHz ?? 0) - m.freqHz) <= ON_MODE_FRACTION * m.freqHz,
     );
-  const candidates = ctx.baseline.modes.filter((m) => {
-    if (m.axis !== axis || followed(m)) return false;
+  const ofAxis = ctx.baseline.modes.filter((m) => m.axis === axis);
+  const candidates = ofAxis.filter((m) => {
+    if (followed(m)) return false;
     if (freqHz < MODE_SEARCH.below * m.freqHz || freqHz > (1 - ON_MODE_FRACTION) * m.freqHz)
       return false;
+    // A lowered mode does not pass the axis's next mode down: with another mode between the
+    // peak and this one, the peak is not this mode's.
+    if (ofAxis.some((o) => o !== m && o.freqHz > freqHz && o.freqHz < m.freqHz)) return false;
     const at = Math.round(m.freqHz / binHz);
     let g = Number.NaN;
     for (let k = at - 1; k <= at + 1; k++) {
