@@ -138,8 +138,9 @@ export class OrderBands {
       const rotationHz = b.rotationHz[m] ?? 0;
       sums.measured++;
       sums.rpmSum += rotationHz * 60;
-      // A block enters the motor's rpm map only when its rpm held within one bin's width: the
-      // steady flying that can be matched to the baseline's at the same speed. In fast changes
+      // A block enters the motor's rpm map only when its rpm held within RPM_MAP.steadySpread
+      // (10 %) over the block: the steady flying that can be matched to the baseline's at the
+      // same speed. In fast changes
       // (flips, punch-outs) the flight controller's notches lag and the telemetry trails, and
       // the levels of those few blocks scatter by tens of dB.
       const steady = (b.rotationSpread[m] ?? Infinity) <= RPM_MAP.steadySpread;
@@ -158,9 +159,7 @@ export class OrderBands {
         const power = b.power[m]?.[j];
         const side = b.side[m]?.[j];
         if (!power || !side || !Number.isFinite(power[0])) return;
-        addBlock(order, power, side);
-        const inBin = bin?.orders[j];
-        if (inBin) addBlock(inBin, power, side);
+        addBlock(power, side, order, bin?.orders[j]);
         if (j === this.one) order1Max = Math.max(power[0] ?? 0, power[1] ?? 0, power[2] ?? 0);
       });
       record.track.push({
@@ -222,16 +221,25 @@ export class OrderBands {
   }
 }
 
-function addBlock(order: OrderSums, power: Float64Array, side: Float64Array): void {
-  order.count++;
+/** One block's order levels into its throttle band's sums and, when steady, its rpm bin's. */
+function addBlock(
+  power: Float64Array,
+  side: Float64Array,
+  ...into: (OrderSums | undefined)[]
+): void {
   for (const a of [0, 1, 2] as const) {
-    order.power[a].push(toDb(power[a] ?? 0));
+    const p = toDb(power[a] ?? 0);
     const s = side[a] ?? 0;
-    order.side[a].push(toDb(Number.isFinite(s) ? s : 0));
+    const sDb = toDb(Number.isFinite(s) ? s : 0);
+    for (const sums of into) {
+      sums?.power[a].push(p);
+      sums?.side[a].push(sDb);
+    }
   }
+  for (const sums of into) if (sums) sums.count++;
 }
 
-/** An order's level (and, for a whole order, its sidebands') over the blocks that measured it, dB. */
+/** An order's level and the level beside it, the medians over the blocks that measured it, dB. */
 function orderLevels(
   order: number,
   sums: OrderSums,

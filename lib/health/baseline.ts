@@ -367,20 +367,32 @@ export function recurringPeaks(
   return known;
 }
 
-/** Power mean of dB levels (the mean of the powers, in dB), skipping NaN. */
 /** A motor's rpm bins pooled over the logs: blocks summed, levels power-averaged by blocks. */
 function pooledRpmMap(analyses: readonly LogAnalysis[], motor: number): BaselineRpmBin[] {
   const byBin = new Map<number, RpmBinLevels[]>();
   for (const a of analyses)
-    for (const b of a.motors.find((m) => m.motor === motor)?.rpmMap ?? [])
-      byBin.set(b.bin, [...(byBin.get(b.bin) ?? []), b]);
+    for (const b of a.motors.find((m) => m.motor === motor)?.rpmMap ?? []) {
+      const parts = byBin.get(b.bin);
+      if (parts) parts.push(b);
+      else byBin.set(b.bin, [b]);
+    }
   return [...byBin.entries()]
     .sort((x, y) => x[0] - y[0])
     .map(([bin, parts]) => {
       const blocks = parts.reduce((s, p) => s + p.blocks, 0);
       const weights = parts.map((p) => p.blocks);
-      const pooled = (level: (p: RpmBinLevels) => Record<Axis, number> | undefined) =>
-        axisPowerMean(parts.map(level), weights);
+      const pooled = (level: (p: RpmBinLevels) => Record<Axis, number> | undefined) => {
+        const out = {} as Record<Axis, number>;
+        for (const axis of AXES)
+          out[axis] = round(
+            powerMeanDb(
+              parts.map((p) => level(p)?.[axis] ?? Number.NaN),
+              weights,
+            ),
+            3,
+          );
+        return out;
+      };
       const orders = (parts[0]?.orders ?? []).map(({ order }) => {
         const of = (p: RpmBinLevels) => p.orders.find((o) => o.order === order);
         const db = pooled((p) => of(p)?.powerDb);
@@ -395,31 +407,17 @@ function pooledRpmMap(analyses: readonly LogAnalysis[], motor: number): Baseline
     });
 }
 
-/** Per axis, the power mean of dB levels with weights, skipping the missing and NaN ones. */
-function axisPowerMean(
-  levels: readonly (Record<Axis, number> | undefined)[],
-  weights: readonly number[],
-): Record<Axis, number> {
-  const out = {} as Record<Axis, number>;
-  for (const axis of AXES) {
-    let sum = 0;
-    let w = 0;
-    levels.forEach((l, i) => {
-      const v = l?.[axis];
-      if (v === undefined || !Number.isFinite(v)) return;
-      sum += (weights[i] ?? 0) * 10 ** (v / 10);
-      w += weights[i] ?? 0;
-    });
-    out[axis] = w > 0 ? round(10 * Math.log10(sum / w), 3) : Number.NaN;
-  }
-  return out;
-}
-
-function powerMeanDb(values: number[]): number {
-  const v = values.filter(Number.isFinite);
-  return v.length === 0
-    ? Number.NaN
-    : 10 * Math.log10(v.reduce((s, x) => s + 10 ** (x / 10), 0) / v.length);
+/** Power mean of dB levels (the mean of the powers, in dB), weighted if weights are given, skipping NaN. */
+function powerMeanDb(values: readonly number[], weights?: readonly number[]): number {
+  let sum = 0;
+  let total = 0;
+  values.forEach((x, i) => {
+    if (!Number.isFinite(x)) return;
+    const w = weights?.[i] ?? 1;
+    sum += w * 10 ** (x / 10);
+    total += w;
+  });
+  return total > 0 ? 10 * Math.log10(sum / total) : Number.NaN;
 }
 
 /** A log's per-band values re-indexed onto the baseline's bands (logs may have more bands). */

@@ -40,6 +40,13 @@ export interface SyntheticSpec {
   flown?: Record<number, number>;
   /** Order level of a motor, dB re 1 (deg/s)², every axis. Default −10 (sidebands 10 dB below). */
   orderDb?: (motor: number, order: number) => number;
+  /** Level beside each order, dB, every axis. Default 10 dB below the order. */
+  sideDb?: (motor: number, order: number) => number;
+  /**
+   * Half orders as analyses stored before they were measured exactly: the level is the strongest
+   * tone near the order (`sideDb`'s value), and nothing is beside it.
+   */
+  oldHalfOrders?: boolean;
   /** Share of the log's order blocks whose telemetry was masked, per motor. */
   maskedShare?: Record<number, number>;
   /** Axes without a usable signal, and the sentence for it. */
@@ -120,15 +127,16 @@ function motorsIn(spec: SyntheticSpec, index: number, bladeCount: number): Motor
       maskedBlocks: Math.round(BLOCKS_PER_BAND * (spec.maskedShare?.[motor] ?? 0)),
       orders: trackedOrders(bladeCount).map((order) => {
         const db = spec.orderDb?.(motor, order) ?? -10;
-        const level = { roll: db, pitch: db, yaw: db };
-        const side = { roll: db - 10, pitch: db - 10, yaw: db - 10 };
-        return {
+        const sDb = spec.sideDb?.(motor, order) ?? db - 10;
+        const all = (v: number) => ({ roll: v, pitch: v, yaw: v });
+        const common = {
           order,
           label: order === bladeCount ? "blade-pass" : `${order}x`,
           freqHz: order * rot,
-          powerDb: level,
-          sideDb: side,
         };
+        return spec.oldHalfOrders && !Number.isInteger(order)
+          ? { ...common, powerDb: all(sDb) }
+          : { ...common, powerDb: all(db), sideDb: all(sDb) };
       }),
     };
   });

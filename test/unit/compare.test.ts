@@ -272,6 +272,55 @@ describe("what is not compared, and why", () => {
   });
 });
 
+describe("half orders against a baseline of analyses stored before they were measured exactly", () => {
+  // Such analyses hold the strongest tone near a half order as its level (here −5 dB, above the
+  // exact −10 dB) and nothing beside it; a new log holds that tone beside the half order. Like is
+  // held against like: the tone beside, never the exact level, against the old level.
+  const old = buildBaseline(
+    [1, 2].map(() =>
+      syntheticAnalysis({
+        bumps: [MODE],
+        oldHalfOrders: true,
+        sideDb: (_m, o) => (Number.isInteger(o) ? -20 : -5),
+      }),
+    ),
+  );
+  const against = (spec: SyntheticSpec) =>
+    compareWithBaseline(syntheticAnalysis({ bumps: [MODE], ...spec }), old);
+  const healthyTone = (_m: number, o: number) => (Number.isInteger(o) ? -20 : -5);
+
+  it("a healthy new log raises no finding, though its exact half orders read 5 dB under the old level", () => {
+    expect(against({ sideDb: healthyTone }).findings).toEqual([]);
+  });
+
+  it("a motor's 1× up 10 dB is still named; the rattle itself waits for a new baseline", () => {
+    const f = only(
+      against({
+        orderDb: (m, o) => (m === 2 && o === 1 ? 0 : -10),
+        sideDb: (m, o) => (m === 2 && o === 1.5 ? 5 : healthyTone(m, o)),
+      }),
+    );
+    expect(f.motor).toBe(2);
+    expect(f.order).toBe(1);
+    // A rattle is told by an exact half order, which an old baseline does not have.
+    expect(f.cause).toBe("prop");
+  });
+
+  it("an exact half order is not held against the old level: no rattle is read from it", () => {
+    // Motor 2's 1× and its exact 1.5× are up, the tone beside 1.5× is not. Against the old level
+    // (the strongest tone, −5 dB) the exact 1.5× would read 15 dB up, a rattle that the like
+    // value, the tone beside it, does not show.
+    const f = only(
+      against({
+        orderDb: (m, o) => (m === 2 && (o === 1 || o === 1.5) ? 0 : -10),
+        sideDb: healthyTone,
+      }),
+    );
+    expect(f.motor).toBe(2);
+    expect(f.cause).toBe("prop");
+  });
+});
+
 describe("motor orders at matched rpm (analyses with rpm maps)", () => {
   // The frame answers a 1× near 300 Hz 15 dB louder (a resonance the order passes over). Every
   // baseline motor flew from 240 to 360 Hz; in the log one motor spends its time near 300 Hz.

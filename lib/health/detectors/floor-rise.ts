@@ -12,6 +12,7 @@ import { graded } from "./shared";
  * rise is steadier than that).
  */
 function standardError(deltas: readonly number[], mean: number): number {
+  // Deviations from the segment-weighted mean that is graded (stdDev's would be from the plain mean).
   const finite = deltas.filter(Number.isFinite);
   const n = finite.length;
   const variance = n > 1 ? finite.reduce((s, d) => s + (d - mean) ** 2, 0) / (n - 1) : 0;
@@ -37,7 +38,7 @@ function floorOver(psdDb: readonly number[], binHz: number, loHz: number, hiHz: 
 const FLOOR_SPAN = 2;
 
 /** Top of the range the floor rise is judged over, Hz. */
-export function floorTop(ctx: Pick<DetectorContext, "cornerHz" | "maxHz">): number {
+function floorTop(ctx: Pick<DetectorContext, "cornerHz" | "maxHz">): number {
   return Math.min(ctx.maxHz, FLOOR_SPAN * ctx.cornerHz);
 }
 

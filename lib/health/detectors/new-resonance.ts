@@ -16,8 +16,6 @@ const MOTOR_SPREAD_FRACTION = 0.02;
 const MIN_JUDGED_SHARE = 0.5;
 /** The wander a peak is judged by: the prominence gain's spread over ±30 % of its frequency, ±3 bins at least. */
 const WANDER_FRACTION = 0.3;
-/** …leaving out the peak's own ±5 %. */
-const WANDER_CORE = 0;
 const WANDER_MIN_BINS = 3;
 /** The share of the bands judging a bin in which a new peak must peak. */
 const RECUR_SHARE = 0.75;
@@ -28,9 +26,11 @@ const RECUR_SHARE = 0.75;
  */
 const GAIN_SIGMA = 2;
 /**
- * The background a peak's prominence gain is measured against: flanks from ±8 % to ±25 % of its
- * frequency. A loose part rocks with 5–7 % damping (half-power half-width of 5–7 %), so its
- * skirt must not lift its own background; prop wash and floor rises are wider still.
+ * The background a peak's prominence gain is measured against: flanks from ±4 % to ±12 % of its
+ * frequency (the peak search's own). Prop wash and floor rises are wider, so they lift a bin and
+ * its background alike. Wider flanks (±8 % to ±25 %, clear of a loose part's 5–7 % damped skirt)
+ * raised the gain of real resonances but also of wash bumps: 1 false alarm on the validation
+ * matrix's healthy logs became 11.
  */
 const GAIN_BACKGROUND_WIDTH = 0.12;
 
@@ -49,9 +49,9 @@ const MOVED_MODE_SKIRT = { below: 0.9, above: 1.05 };
  * band spectrum above its own local background less the baseline's above its own — tells a peak
  * from a broad rise (prop wash in hard flying, a floor rise), which lifts a bin and its background
  * alike. Where the log shows a peak above its local median, with an excess of minSigma expected
- * deviations, a gain of at least the watch step and minSigma robust deviations of the gain's
- * wander around it, and a gain of the watch step in at least half
- * of the bands judging it, is a new peak. Bins near a motor's whole orders in a band (orders move with
+ * deviations, a gain of at least the watch step and GAIN_SIGMA robust deviations of the gain's
+ * wander around it, and a gain of the watch step in RECUR_SHARE of the bands judging it, is a
+ * new peak. Bins near a motor's whole orders in a band (orders move with
  * throttle and have their own finding), near a moved or lost mode (`ctx.found`), or at a known
  * (recurring) baseline peak are not counted. With a floor rise among `ctx.found`, broadband noise
  * above the corner lifts every peak up there: the floor rise says it once.
@@ -61,9 +61,8 @@ export function newPeaks(ctx: DetectorContext): Finding[] {
   const binHz = log.settings.binHz;
   const bins = { first: Math.ceil(baseline.minFreqHz / binHz), last: Math.floor(maxHz / binHz) };
   if (bins.last - bins.first < MIN_SPAN_BINS) return [];
-  const found: Finding[] = [];
+  const found: Sighted[] = [];
   const moved: Finding[] = [];
-  const added = new Map<number, number>();
   for (const axis of axes) {
     const x = excessOver(ctx, axis, bins);
     // How this flight's peaks wander from the baseline's, bin to bin: the robust spread of the
@@ -130,26 +129,27 @@ export function newPeaks(ctx: DetectorContext): Finding[] {
       }
       const grade = graded(best, h.levelDb, h);
       if (!grade) continue;
-      // The power the new resonance added on this axis: the log's level less the baseline's, as powers.
-      const level = x.logDb[at] ?? Number.NaN;
-      added.set(
-        found.length,
-        level + 10 * Math.log10(Math.max(Number.EPSILON, 1 - 10 ** (-best / 10))),
-      );
       found.push({
-        axis,
-        kind: "new-peak",
-        freqHz: round(p.freqHz, 1),
-        deltaDb: round(best, 1),
-        ...grade,
-        text: `new ${axis} peak at ${Math.round(p.freqHz)} Hz, ${best.toFixed(0)} dB above the baseline there: something has come loose or is touching. ${ADVICE.newPeak}`,
+        // The power the new resonance added on this axis: the log's level less the baseline's,
+        // as powers.
+        addedDb:
+          (x.logDb[at] ?? Number.NaN) +
+          10 * Math.log10(Math.max(Number.EPSILON, 1 - 10 ** (-best / 10))),
+        finding: {
+          axis,
+          kind: "new-peak",
+          freqHz: round(p.freqHz, 1),
+          deltaDb: round(best, 1),
+          ...grade,
+          text: `new ${axis} peak at ${Math.round(p.freqHz)} Hz, ${best.toFixed(0)} dB above the baseline there: something has come loose or is touching. ${ADVICE.newPeak}`,
+        },
       });
     }
   }
   // One loose part shows on several axes: keep the sighting of each frequency on the axis it
   // shakes most (the most power added over the baseline), which is where the part rocks.
   const floorRise = ctx.found.some((f) => f.kind === "floor-rise");
-  const fresh = keepStrongestPerFrequency(found, added, h.samePeakFraction).filter(
+  const fresh = keepStrongestPerFrequency(found, h.samePeakFraction).filter(
     (f) => !(floorRise && f.freqHz >= baseline.floorCornerHz),
   );
   return [...strongestPerMode(moved), ...fresh];
@@ -218,18 +218,17 @@ function excessOver(ctx: DetectorContext, axis: Axis, { first, last }: BinRange)
       const f = k * binHz;
       const level = m.log.axes[axis].psdDb[k] ?? Number.NaN;
       logSum[k] = (logSum[k] ?? 0) + w * (Number.isFinite(level) ? level : 0);
-      const anyG = (logAbove[k - first] ?? Number.NaN) - (baseAbove[k - first] ?? Number.NaN);
-      if (Number.isFinite(anyG)) {
-        everySum[k] = (everySum[k] ?? 0) + w * anyG;
+      const g = (logAbove[k - first] ?? Number.NaN) - (baseAbove[k - first] ?? Number.NaN);
+      if (Number.isFinite(g)) {
+        everySum[k] = (everySum[k] ?? 0) + w * g;
         everyW[k] = (everyW[k] ?? 0) + w;
       }
       if (orderFreqs.some((o) => Math.abs(o - f) <= sweep * o)) continue;
-      const base = dbAt(m.base.axes[axis].psdDb, baseline.binHz, f);
-      if (!Number.isFinite(level) || !Number.isFinite(base)) continue;
+      const base = basePsd[k] ?? Number.NaN;
+      if (!Number.isFinite(level) || !Number.isFinite(base) || !Number.isFinite(g)) continue;
       const s = spread ? dbAt(spread, baseline.binHz, f) : 0;
       sum[k] = (sum[k] ?? 0) + w * (level - base);
       judged[k] = (judged[k] ?? 0) + 1;
-      const g = (logAbove[k - first] ?? 0) - (baseAbove[k - first] ?? 0);
       gainSum[k] = (gainSum[k] ?? 0) + w * g;
       if (g >= h.levelDb.watch) peaked[k] = (peaked[k] ?? 0) + 1;
       wsum[k] = (wsum[k] ?? 0) + w;
@@ -256,21 +255,22 @@ function excessOver(ctx: DetectorContext, axis: Axis, { first, last }: BinRange)
 }
 
 /**
- * The robust spread of a per-bin quantity over the ring from ±WANDER_CORE to ±WANDER_FRACTION of
- * a bin's frequency (at least WANDER_MIN_BINS each side), by bin: the peak's own skirt is left
- * out, so a strong resonance does not widen the yardstick it is judged by.
+ * The robust spread of a per-bin quantity within ±WANDER_FRACTION of a bin's frequency (at least
+ * WANDER_MIN_BINS each side), the bin itself left out, by bin. Leaving the peak's own ±5–10 % out
+ * too was tried: a strong resonance then widened its yardstick less, but wash bumps, which
+ * cluster, passed more often (5 and 7 false alarms on the validation matrix's healthy logs
+ * against 1).
  */
 function localWander(values: Float64Array, { first, last }: BinRange): (bin: number) => number {
   const cache = new Map<number, number>();
   return (k) => {
     let w = cache.get(k);
     if (w === undefined) {
-      const core = Math.round(WANDER_CORE * k);
-      const half = Math.max(core + WANDER_MIN_BINS, Math.round(WANDER_FRACTION * k));
-      const ring: number[] = [];
+      const half = Math.max(WANDER_MIN_BINS, Math.round(WANDER_FRACTION * k));
+      const around: number[] = [];
       for (let j = Math.max(first, k - half); j <= Math.min(last, k + half); j++)
-        if (Math.abs(j - k) > core) ring.push(values[j] ?? Number.NaN);
-      w = robustSigma(ring);
+        if (j !== k) around.push(values[j] ?? Number.NaN);
+      w = robustSigma(around);
       cache.set(k, w);
     }
     return w;
@@ -352,17 +352,21 @@ function isKnown(ctx: DetectorContext, freqHz: number): boolean {
   );
 }
 
-/** Of the findings within `fraction` of each other in frequency, the one with most added power (by index). */
-function keepStrongestPerFrequency(
-  findings: Finding[],
-  added: ReadonlyMap<number, number>,
-  fraction: number,
-): Finding[] {
-  const order = findings
-    .map((f, i) => ({ f, power: added.get(i) ?? Number.NEGATIVE_INFINITY }))
-    .sort((a, b) => b.power - a.power || b.f.points - a.f.points);
+/** A new peak seen on one axis, with the power it added there, dB. */
+interface Sighted {
+  finding: Finding;
+  addedDb: number;
+}
+
+/** Of the sightings within `fraction` of each other in frequency, the one with most added power. */
+function keepStrongestPerFrequency(sightings: readonly Sighted[], fraction: number): Finding[] {
+  const order = [...sightings].sort(
+    (a, b) =>
+      (Number.isFinite(b.addedDb) ? b.addedDb : -Infinity) -
+        (Number.isFinite(a.addedDb) ? a.addedDb : -Infinity) || b.finding.points - a.finding.points,
+  );
   const kept: Finding[] = [];
-  for (const { f } of order) {
+  for (const { finding: f } of order) {
     if (!kept.some((k) => Math.abs(k.freqHz - f.freqHz) <= fraction * f.freqHz)) kept.push(f);
   }
   return kept;

@@ -14,7 +14,10 @@ export interface OrderStanding {
    */
   side: boolean;
   axis: Axis;
-  /** Rise over the motor's own baseline at matched throttle, dB (segment-weighted over bands). */
+  /**
+   * Rise over the motor's own baseline, dB: at matched rpm (weighted by the log's blocks per rpm
+   * bin) when both carry rpm maps, else at matched throttle (weighted by segments per band).
+   */
   ownDb: number;
   /** ownDb less the median rise of the other motors at the same order and axis, dB. */
   excessDb: number;
@@ -23,7 +26,7 @@ export interface OrderStanding {
   axesCompared: number;
   /** Standard deviation expected of ownDb on a healthy airframe, dB. */
   sigmaDb: number;
-  /** The motor's rotation rate over the compared bands, Hz. */
+  /** The motor's rotation rate over the compared bins or bands, Hz. */
   rotationHz: number;
 }
 
@@ -94,10 +97,7 @@ function rpmMatchedStandings(
     for (const order of orders)
       for (const side of [false, true])
         for (const axis of axes) {
-          let wSum = 0;
-          let dSum = 0;
-          let varSum = 0;
-          let fSum = 0;
+          const sum = new RiseSum();
           for (const lb of logBins) {
             const bb = baseBins.get(lb.bin);
             if (!bb || lb.blocks < MIN_RPM_BIN_BLOCKS || bb.blocks < MIN_RPM_BIN_BLOCKS) continue;
@@ -109,23 +109,11 @@ function rpmMatchedStandings(
             const expected = side ? bo?.sideDb?.[axis] : bo?.db[axis];
             if (level === undefined || expected === undefined) continue;
             if (!Number.isFinite(level) || !Number.isFinite(expected)) continue;
-            const w = lb.blocks;
-            wSum += w;
-            dSum += w * (level - expected);
-            varSum +=
-              w * w * (DB_PER_UNIT_LOG * MEDIAN_SCATTER) ** 2 * (1 / lb.blocks + 1 / bb.blocks);
-            fSum += w * lb.rotationHz;
+            const variance = medianVariance(lb.blocks, bb.blocks);
+            sum.add(lb.blocks, level - expected, variance, lb.rotationHz);
           }
-          if (wSum > 0)
-            raw.push({
-              motor,
-              order,
-              side,
-              axis,
-              ownDb: dSum / wSum,
-              sigmaDb: Math.sqrt(varSum) / wSum,
-              rotationHz: fSum / wSum,
-            });
+          const standing = sum.standing({ motor, order, side, axis });
+          if (standing) raw.push(standing);
         }
   }
   return raw;
@@ -168,10 +156,7 @@ function throttleMatchedStandings(ctx: OrderInputs, excluded: ReadonlySet<number
     for (const order of orderSet)
       for (const side of [false, true]) {
         for (const axis of axes) {
-          let wSum = 0;
-          let dSum = 0;
-          let varSum = 0;
-          let fSum = 0;
+          const sum = new RiseSum();
           for (const m of matched) {
             const lm = m.log.motors.find((x) => x.motor === motor);
             const lo = lm?.orders.find((o) => o.order === order);
@@ -189,49 +174,89 @@ function throttleMatchedStandings(ctx: OrderInputs, excluded: ReadonlySet<number
               (order === 1 && bm && !side
                 ? { db: bm.order1Db, logSpreadDb: bm.logSpreadDb, blocks: 0 }
                 : undefined);
-            // Analyses stored before half orders were measured exactly hold the strongest tone
-            // near a half order as its level, and nothing beside it: whichever side is of that
-            // kind, the strongest tone is held against the strongest tone.
-            const oldShape = (sideDb: Record<Axis, number> | undefined) =>
-              !Number.isInteger(order) && !Number.isFinite(sideDb?.[axis] ?? Number.NaN);
-            const logOld = oldShape(lo.sideDb);
+            const logOld = isOldHalfOrder(order, lo.sideDb, axis);
             const expected = atThrottle(baseline, m.log.meanThrottle, (b) => {
               const x = b.motors.find((y) => y.motor === motor);
               const o = x?.orders?.find((y) => y.order === order);
-              const baseOld = !!o && oldShape(o.sideDb);
-              if (side) return baseOld && o ? o.db[axis] : (o?.sideDb?.[axis] ?? Number.NaN);
-              if (baseOld && !logOld) return Number.NaN;
-              // An old log's half-order level is the strongest tone: the new baseline's like value.
-              if (logOld && !baseOld && !Number.isInteger(order))
-                return o?.sideDb?.[axis] ?? Number.NaN;
+              if (o && !Number.isInteger(order))
+                return halfOrderExpected(o, axis, side, logOld) ?? Number.NaN;
+              if (side) return o?.sideDb?.[axis] ?? Number.NaN;
               return o ? o.db[axis] : order === 1 && x ? x.order1Db[axis] : Number.NaN;
             });
             if (!bo || !Number.isFinite(expected)) continue;
             const nLog = Math.max(1, (lm.blocks ?? m.log.segments) - (lm.maskedBlocks ?? 0));
             const nBase = Math.max(1, bo.blocks || m.base.segments);
-            const variance =
-              (DB_PER_UNIT_LOG * MEDIAN_SCATTER) ** 2 * (1 / nLog + 1 / nBase) +
-              bo.logSpreadDb ** 2;
-            const w = m.log.segments;
-            wSum += w;
-            dSum += w * (level - expected);
-            varSum += w * w * variance;
-            fSum += w * (lm.meanRpm / 60);
+            const variance = medianVariance(nLog, nBase) + bo.logSpreadDb ** 2;
+            sum.add(m.log.segments, level - expected, variance, lm.meanRpm / 60);
           }
-          if (wSum > 0)
-            raw.push({
-              motor,
-              order,
-              side,
-              axis,
-              ownDb: dSum / wSum,
-              sigmaDb: Math.sqrt(varSum) / wSum,
-              rotationHz: fSum / wSum,
-            });
+          const standing = sum.standing({ motor, order, side, axis });
+          if (standing) raw.push(standing);
         }
       }
   }
   return raw;
+}
+
+/**
+ * Weighted sums of one motor order's rises over its baseline (per band or rpm bin): the mean rise,
+ * the standard deviation of that mean from each part's variance, and the mean rotation rate.
+ */
+class RiseSum {
+  private weight = 0;
+  private rise = 0;
+  private variance = 0;
+  private rotation = 0;
+
+  add(weight: number, riseDb: number, varianceDb2: number, rotationHz: number): void {
+    this.weight += weight;
+    this.rise += weight * riseDb;
+    this.variance += weight * weight * varianceDb2;
+    this.rotation += weight * rotationHz;
+  }
+
+  /** The standing, or null when nothing was added. */
+  standing(key: Pick<RawStanding, "motor" | "order" | "side" | "axis">): RawStanding | null {
+    const w = this.weight;
+    if (!(w > 0)) return null;
+    return {
+      ...key,
+      ownDb: this.rise / w,
+      sigmaDb: Math.sqrt(this.variance) / w,
+      rotationHz: this.rotation / w,
+    };
+  }
+}
+
+/** Variance, dB², of the difference of two medians of nLog and nBase noise-like block powers. */
+function medianVariance(nLog: number, nBase: number): number {
+  return (DB_PER_UNIT_LOG * MEDIAN_SCATTER) ** 2 * (1 / nLog + 1 / nBase);
+}
+
+/**
+ * Analyses stored before half orders were measured exactly hold the strongest tone near a half
+ * order as its level, and nothing beside it.
+ */
+function isOldHalfOrder(order: number, sideDb: Record<Axis, number> | undefined, axis: Axis) {
+  return !Number.isInteger(order) && !Number.isFinite(sideDb?.[axis] ?? Number.NaN);
+}
+
+/**
+ * What of a baseline band's half order the log's value is held against: where either side is of
+ * the old kind (isOldHalfOrder), the strongest tone near the order against the strongest tone, and
+ * the exact level not at all; otherwise like against like. Undefined when not comparable.
+ */
+function halfOrderExpected(
+  o: { order: number; db: Record<Axis, number>; sideDb?: Record<Axis, number> },
+  axis: Axis,
+  side: boolean,
+  logOld: boolean,
+): number | undefined {
+  const baseOld = isOldHalfOrder(o.order, o.sideDb, axis);
+  if (side) return baseOld ? o.db[axis] : o.sideDb?.[axis];
+  if (baseOld === logOld) return o.db[axis];
+  // An old log's level is the strongest tone (the new baseline's sideDb); a new log's exact level
+  // has nothing like it in an old baseline.
+  return logOld ? o.sideDb?.[axis] : undefined;
 }
 
 /**
