@@ -6,6 +6,7 @@ import { StatusBadge } from "@/app/_components/status-badge";
 import { requireMember } from "@/lib/server/guard";
 import { inspectionQueue } from "@/lib/server/queue";
 import { TIME } from "@/app/_components/dates";
+import { scoreText } from "@/lib/view/score-text";
 
 export const dynamic = "force-dynamic";
 
@@ -55,7 +56,7 @@ export default async function InspectionQueuePage({
             <div>
               <StatusBadge status={e.status} />
               <div className="score" title="vibration score of the latest log against the baseline">
-                {e.score === null ? "–" : Math.round(e.score)} <small>/ 100</small>
+                {scoreText(e.score)} <small>/ 100</small>
               </div>
               <div className="muted small">vibration</div>
             </div>

@@ -13,6 +13,7 @@ import type { Assessment, Finding, NotCompared } from "./findings";
 import { MOTOR_POSITIONS } from "./motor-positions";
 import {
   DEFAULT_THRESHOLDS,
+  scoreForPoints,
   statusForScore,
   worstStatus,
   type HealthThresholds,
@@ -106,7 +107,7 @@ export function compareWithBaseline(
   findings.sort((a, b) => b.points - a.points);
 
   const taken = findings.reduce((s, f) => s + f.points, 0);
-  const score = Math.max(0, Math.round(100 - taken));
+  const score = scoreForPoints(taken);
   let status = statusForScore(score, h);
   for (const f of findings) status = worstStatus(status, f.severity);
   return { score, status, findings, notCompared, comparedBands: matched.map((m) => m.label) };

@@ -2,6 +2,7 @@ import type { Finding } from "./compare";
 import { MOTOR_POSITIONS } from "./motor-positions";
 import {
   DEFAULT_THRESHOLDS,
+  scoreForPoints,
   statusForScore,
   worstStatus,
   type HealthThresholds,
@@ -128,7 +129,7 @@ export function separateRepairEffects(
       findings,
       changedAfterRepair,
     };
-  const score = Math.max(0, Math.round(100 - findings.reduce((s, f) => s + f.points, 0)));
+  const score = scoreForPoints(findings.reduce((s, f) => s + f.points, 0));
   let status = worstStatus(statusForScore(score, h), "watch");
   for (const f of findings) status = worstStatus(status, f.severity);
   return { score, status, findings, changedAfterRepair };

@@ -26,7 +26,7 @@ export interface HealthThresholds {
   minSigma: number;
   /** Points taken off for a finding just at watch, inspect and ground magnitude. */
   penalty: StepThresholds;
-  /** The most points one finding can take. */
+  /** The points one finding approaches, never reaches, however large its magnitude. */
   maxPenalty: number;
   /** Score at or above which the status is ok / watch / inspect (below the last: ground). */
   scoreOk: number;
@@ -65,8 +65,9 @@ export function stepOf(magnitude: number, t: StepThresholds): Exclude<Status, "o
 
 /**
  * Points taken off for a magnitude: piecewise linear through (watch, 10), (inspect, 25),
- * (ground, 50), then rising by 25 points per further ground-threshold's worth, capped. Strictly
- * increasing above watch, so a worse finding always costs more.
+ * (ground, 50), then rising at the same 25 points per ground-threshold's worth and bending towards
+ * maxPenalty without reaching it. Strictly increasing above watch, so a worse finding always costs
+ * more (a hard cap would score a crack at twice the ground magnitude like one at four times).
  */
 export function penaltyFor(
   magnitude: number,
@@ -81,8 +82,29 @@ export function penaltyFor(
   else if (magnitude < t.ground)
     points =
       p.inspect + ((magnitude - t.inspect) / (t.ground - t.inspect)) * (p.ground - p.inspect);
-  else points = p.ground + ((magnitude - t.ground) / t.ground) * 25;
-  return Math.min(h.maxPenalty, Math.round(points * 10) / 10);
+  else {
+    // Slope 25/ground at the ground step, as the old linear rise; the room above it decays.
+    const room = h.maxPenalty - p.ground;
+    points = p.ground + room * (1 - Math.exp(-((magnitude - t.ground) / t.ground) * (25 / room)));
+  }
+  return Math.round(points * 10) / 10;
+}
+
+/** Below this score the scale is no longer 100 minus the points but a tail that never reaches 0. */
+const SCORE_TAIL_START = 10;
+
+/**
+ * The score for the points all findings took: 100 minus them down to 10, then 100/(points − 80),
+ * which meets the straight line at 10 with the same slope and approaches 0 without reaching it.
+ * A hard floor at 0 would tie every badly damaged airframe at the top of the queue; with the tail a
+ * worse one still scores lower. Whole numbers above 10, one decimal below.
+ */
+export function scoreForPoints(points: number): number {
+  const straight = 100 - points;
+  if (straight >= SCORE_TAIL_START) return Math.round(straight);
+  const t = SCORE_TAIL_START;
+  const tail = (t * t) / (points - (100 - 2 * t));
+  return Math.max(0.1, Math.round(tail * 10) / 10);
 }
 
 export function statusForScore(score: number, h: HealthThresholds = DEFAULT_THRESHOLDS): Status {

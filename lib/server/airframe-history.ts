@@ -189,15 +189,7 @@ export function historyCsv(h: History): string {
   const lines = [
     header.join(","),
     ...rows.map((r) =>
-      [
-        r.at,
-        r.kind,
-        r.position,
-        r.part,
-        r.score === null ? "" : Math.round(r.score),
-        r.verdict,
-        r.detail,
-      ]
+      [r.at, r.kind, r.position, r.part, r.score === null ? "" : r.score, r.verdict, r.detail]
         .map(csvField)
         .join(","),
     ),

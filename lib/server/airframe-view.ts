@@ -7,6 +7,7 @@ import { db } from "./db";
 import { installedParts } from "./parts";
 import { decodeAnalysis, decodeAssessment, decodeCrashPositions } from "./stored";
 import { spectrumOverlay, type SpectrumPoint } from "./spectrum-view";
+import { scoreText } from "@/lib/view/score-text";
 
 export interface TimelineItem {
   at: Date;
@@ -75,7 +76,7 @@ export async function airframeView(actor: Actor, airframeId: string) {
       const a = assessed.find((x) => x.log.id === l.id)?.assessment;
       const inBaseline = baseline?.logIds.includes(l.id) ?? false;
       const verdict = a
-        ? `${a.status}, score ${a.score === null ? "–" : Math.round(a.score)}`
+        ? `${a.status}, score ${scoreText(a.score)}`
         : inBaseline
           ? "analysed; part of the active baseline"
           : "analysed; flown before the active baseline";

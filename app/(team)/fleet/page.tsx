@@ -10,6 +10,7 @@ import { requireMember } from "@/lib/server/guard";
 import { createAirframeAction } from "../actions";
 import { ModeStrips } from "./_components/mode-strips";
 import { WHEN_SHORT as WHEN } from "@/app/_components/dates";
+import { scoreText } from "@/lib/view/score-text";
 
 export const dynamic = "force-dynamic";
 
@@ -52,7 +53,7 @@ export default async function FleetPage() {
                     <span className="muted">{r.retired ? "–" : "no baseline"}</span>
                   )}
                 </td>
-                <td className="num">{r.score === null ? "–" : Math.round(r.score)}</td>
+                <td className="num">{scoreText(r.score)}</td>
                 <td>
                   <Sparkline scores={r.trend} />
                 </td>

@@ -2,6 +2,7 @@ import Link from "next/link";
 import { WHEN } from "@/app/_components/dates";
 import { StatusBadge } from "@/app/_components/status-badge";
 import type { AirframeView } from "@/lib/server/airframe-view";
+import { scoreText } from "@/lib/view/score-text";
 
 // The airframe screen's cards (server components). Each takes the part of the view it shows.
 
@@ -41,9 +42,7 @@ export function AirframeHeader({ view }: AirframeHeaderProps) {
           <span className="muted">no score yet</span>
         )}
         <div className="big-score" data-testid="airframe-score">
-          {latest?.assessment?.score === null || !latest?.assessment
-            ? "–"
-            : Math.round(latest.assessment.score)}
+          {scoreText(latest?.assessment?.score)}
           <span className="muted small"> / 100</span>
         </div>
         <div className="muted small">

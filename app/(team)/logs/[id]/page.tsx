@@ -8,6 +8,7 @@ import { requireMember } from "@/lib/server/guard";
 import { logView } from "@/lib/server/log-view";
 import { orNotFound } from "@/lib/server/pages";
 import { MotorOrdersChart } from "./_components/motor-orders-chart";
+import { scoreText } from "@/lib/view/score-text";
 
 export const dynamic = "force-dynamic";
 
@@ -50,7 +51,7 @@ export default async function LogPage({
             <span className="muted">not judged</span>
           )}
           <div className="big-score" data-testid="log-score">
-            {assessment?.score === null || !assessment ? "–" : Math.round(assessment.score)}
+            {scoreText(assessment?.score)}
             <span className="muted small"> / 100</span>
           </div>
           <div className="muted small">

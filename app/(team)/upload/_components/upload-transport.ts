@@ -1,4 +1,5 @@
 import type { UploadItem } from "./upload-item";
+import { scoreText } from "@/lib/view/score-text";
 
 /** What the upload API answered, or why there is no answer. */
 export type SendResult =
@@ -85,7 +86,7 @@ export async function awaitAnalysis(
     return {
       ok: true,
       message: s.verdict
-        ? `${s.verdict.status.toUpperCase()} · score ${s.verdict.score === null ? "–" : Math.round(s.verdict.score)}`
+        ? `${s.verdict.status.toUpperCase()} · score ${scoreText(s.verdict.score)}`
         : "analysed (no baseline yet to compare with)",
     };
   }

@@ -4,6 +4,7 @@ import { StatusBadge } from "@/app/_components/status-badge";
 import type { Status } from "@/lib/health/thresholds";
 import { reanalyseAction } from "../../../actions";
 import { WHEN } from "@/app/_components/dates";
+import { scoreText } from "@/lib/view/score-text";
 
 export interface LogsTableProps {
   airframeId: string;
@@ -61,9 +62,7 @@ export function LogsTable({ airframeId, canTech, logs }: LogsTableProps) {
                   log.status
                 )}
               </td>
-              <td className="num">
-                {assessment?.score === null || !assessment ? "–" : Math.round(assessment.score)}
-              </td>
+              <td className="num">{scoreText(assessment?.score)}</td>
               <td>
                 {canTech && log.status !== "pending" ? (
                   <ActionForm action={reanalyseAction} submitLabel="Re-run analysis" compact>
