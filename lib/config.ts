@@ -54,6 +54,7 @@ const environmentSchema = z.object({
     z.string().regex(/^\d+$/, { message: "a whole number of threads, 0 or more" }).optional(),
   ),
   HEATCHECK_UPLOADS_PER_CALLER: positiveInteger("a whole number above 0"),
+  HEATCHECK_UPLOADS_AT_ONCE: positiveInteger("a whole number above 0"),
   HEATCHECK_QUEUED_PER_TEAM: positiveInteger("a whole number above 0"),
   HEATCHECK_SHUTDOWN_S: positiveNumber("a number of seconds above 0"),
   HEATCHECK_DEMO: text(),
@@ -94,6 +95,8 @@ export interface Config {
   workers: number;
   /** Uploads one member or one API token may stream at once (default 4). */
   uploadsPerCaller: number;
+  /** Uploads the whole server streams at once (default the number of cores, at least 2). */
+  uploadsAtOnce: number;
   /** Analyses one team may have waiting or running (default 200). */
   queuedPerTeam: number;
   /** Seconds the server may take to stop after SIGTERM/SIGINT (default 10). */
@@ -155,6 +158,7 @@ export function config(env: Record<string, string | undefined> = process.env): C
         ? Math.max(1, availableParallelism() - 1)
         : Number(e.HEATCHECK_WORKERS),
     uploadsPerCaller: e.HEATCHECK_UPLOADS_PER_CALLER ?? DEFAULTS.uploadsPerCaller,
+    uploadsAtOnce: e.HEATCHECK_UPLOADS_AT_ONCE ?? Math.max(2, availableParallelism()),
     queuedPerTeam: e.HEATCHECK_QUEUED_PER_TEAM ?? DEFAULTS.queuedPerTeam,
     shutdownGraceS: e.HEATCHECK_SHUTDOWN_S ?? DEFAULTS.shutdownGraceS,
     demo: e.HEATCHECK_DEMO !== "0",

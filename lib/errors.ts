@@ -14,6 +14,7 @@ export type ErrorCode =
   | "limit-exceeded"
   | "conflict"
   | "too-many-requests"
+  | "server-busy"
   | "insufficient-storage"
   | "bad-config"
   | "bad-record";
@@ -131,6 +132,18 @@ export class TooManyRequestsError extends domainError(
   429,
   "TooManyRequestsError",
 ) {
+  readonly retryAfterSeconds: number;
+  constructor(message: string, retryAfterSeconds: number) {
+    super(message);
+    this.retryAfterSeconds = retryAfterSeconds;
+  }
+}
+
+/**
+ * The server is taking as many uploads as it can at once (503 with Retry-After, RFC 9110 §15.6.4):
+ * nothing was read or kept, and the same request a moment later will be taken.
+ */
+export class ServerBusyError extends domainError("server-busy", 503, "ServerBusyError") {
   readonly retryAfterSeconds: number;
   constructor(message: string, retryAfterSeconds: number) {
     super(message);

@@ -24,7 +24,7 @@ try {
   });
   console.log(`
 load: ${load.options.readers} readers + ${load.options.uploaders} uploaders of ${load.options.uploadMb} MB for ${load.options.seconds} s
-  requests ${load.requests}, errors ${load.errors}${load.errorSamples.length ? ` (${load.errorSamples.join("; ")})` : ""}, 429 refusals ${load.refused429}
+  requests ${load.requests}, errors ${load.errors}${load.errorSamples.length ? ` (${load.errorSamples.join("; ")})` : ""}, told to come back (429/503) ${load.refused}
   queue API  ${ms(load.queueMs)}
   home page  ${ms(load.homeMs)}
   uploads    ${ms(load.uploadMs)}; per upload ${load.uploadMBps.median.toFixed(1)} MB/s median, ${load.uploadMBps.p5.toFixed(1)} MB/s 5th percentile, ${load.uploadMBps.min.toFixed(1)} MB/s slowest

@@ -1,6 +1,6 @@
 import "server-only";
 import { NextResponse } from "next/server";
-import { TooManyRequestsError, isDomainError } from "@/lib/errors";
+import { ServerBusyError, TooManyRequestsError, isDomainError } from "@/lib/errors";
 
 /** API answers are the team's records: no browser or proxy may keep a copy. */
 const NO_STORE = { "Cache-Control": "no-store" };
@@ -13,7 +13,9 @@ export async function jsonRoute(name: string, run: () => Promise<unknown>): Prom
   } catch (e) {
     if (isDomainError(e)) {
       const retry: Record<string, string> =
-        e instanceof TooManyRequestsError ? { "Retry-After": String(e.retryAfterSeconds) } : {};
+        e instanceof TooManyRequestsError || e instanceof ServerBusyError
+          ? { "Retry-After": String(e.retryAfterSeconds) }
+          : {};
       return NextResponse.json(
         { error: e.message, code: e.code },
         { status: e.httpStatus, headers: { ...NO_STORE, ...retry } },

@@ -1,10 +1,10 @@
 import "server-only";
+import { config } from "@/lib/config";
 import { uploadsDir } from "./data-folder";
 
 /** Upload size limit: HEATCHECK_MAX_UPLOAD_MB, default 512 MB. */
 export function maxUploadBytes(): number {
-  const mb = Number(process.env.HEATCHECK_MAX_UPLOAD_MB ?? 512);
-  return (Number.isFinite(mb) && mb > 0 ? mb : 512) * 1024 * 1024;
+  return config().maxUploadBytes;
 }
 
 /** Where original log files are kept: HEATCHECK_DATA_DIR/uploads (default ./data/uploads). */
@@ -12,17 +12,23 @@ export function uploadDir(): string {
   return uploadsDir();
 }
 
-function positiveInt(name: string, fallback: number): number {
-  const v = Number(process.env[name]);
-  return Number.isInteger(v) && v > 0 ? v : fallback;
-}
-
 /** Uploads one member or one API token may stream at once: HEATCHECK_UPLOADS_PER_CALLER, default 4. */
 export function uploadsPerCaller(): number {
-  return positiveInt("HEATCHECK_UPLOADS_PER_CALLER", 4);
+  return config().uploadsPerCaller;
+}
+
+/**
+ * Uploads the whole server streams at once: HEATCHECK_UPLOADS_AT_ONCE, default the number of cores
+ * (at least 2). Every upload's bytes pass the server's one thread (multipart, SHA-256, the write)
+ * and the one check thread, so more at once only share the same cores more thinly: each crawls,
+ * and reads of the queue wait behind them. Past this an upload is told to come back (503 with
+ * Retry-After) before a byte of it is read; the upload page retries by itself.
+ */
+export function uploadsAtOnce(): number {
+  return config().uploadsAtOnce;
 }
 
 /** Analyses one team may have waiting or running: HEATCHECK_QUEUED_PER_TEAM, default 200. */
 export function queuedAnalysesPerTeam(): number {
-  return positiveInt("HEATCHECK_QUEUED_PER_TEAM", 200);
+  return config().queuedPerTeam;
 }

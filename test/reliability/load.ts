@@ -38,7 +38,8 @@ export interface LoadReport {
   /** Per-upload throughput (file bytes / request time), MB/s. */
   uploadMBps: { p5: number; median: number; min: number };
   uploads: number;
-  refused429: number;
+  /** Uploads told to come back later (429 or 503 with Retry-After); each waited and tried again. */
+  refused: number;
   lostUploads: number;
   maxRssMb: number;
 }
@@ -166,9 +167,11 @@ export async function runLoad(
         uploadMs.push(ms);
         mbps.push(bytes.length / 1e6 / (ms / 1000));
         answered.push(String(r.json().logId));
-      } else if (r.status === 429) {
+      } else if (r.status === 429 || r.status === 503) {
+        // Told to come back: wait as asked, jittered as the upload page does.
         refused++;
-        await new Promise((res) => setTimeout(res, 1000 * Number(r.headers["retry-after"] ?? 1)));
+        const waitS = Number(r.headers["retry-after"] ?? 1) * (1 + Math.random() * 0.5);
+        await new Promise((res) => setTimeout(res, 1000 * waitS));
       } else fail(`upload ${r.status} ${r.body.slice(0, 120)}`);
     }
   };
@@ -200,7 +203,7 @@ export async function runLoad(
       min: sortedMbps[0] ?? Number.NaN,
     },
     uploads: answered.length,
-    refused429: refused,
+    refused,
     lostUploads: answered.filter((id) => !have.has(id)).length,
     maxRssMb: Math.round(rss),
   };

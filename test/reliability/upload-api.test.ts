@@ -17,11 +17,13 @@ import {
 // Uploads against the running app, started the way npm start starts it. What is checked comes from
 // the README's promises ("rejected with the line, column and what was expected … nothing is
 // half-imported"), HTTP semantics (RFC 9110: 413 content too large, 422 unprocessable content,
-// 429 too many requests with Retry-After per RFC 6585) and common practice for a multi-user server
+// 429 too many requests with Retry-After per RFC 6585, 503 with Retry-After when the server is
+// busy per RFC 9110 §15.6.4) and common practice for a multi-user server
 // (private files 0600, folders 0700).
 
 let app: RunningApp;
 let token: string;
+const SERVER_WIDE = 6;
 
 const good = (seed: number, meta: Record<string, string> = {}) =>
   Buffer.from(
@@ -42,7 +44,11 @@ function counts(): { logs: number; files: string[] } {
 }
 
 beforeAll(async () => {
-  app = await startThroughScript(seededDataDir("upload-api"), { HEATCHECK_MAX_UPLOAD_MB: "16" });
+  // Six at once server-wide, so the per-caller limit (4) is what the tests below meet first.
+  app = await startThroughScript(seededDataDir("upload-api"), {
+    HEATCHECK_MAX_UPLOAD_MB: "16",
+    HEATCHECK_UPLOADS_AT_ONCE: String(SERVER_WIDE),
+  });
   token = addToken(app.dataDir);
 }, 300_000);
 
@@ -216,5 +222,36 @@ describe("aborted and excess uploads", () => {
     expect(
       (await upload(app.url, good(46), { token: other, fileName: "hv-05-other.csv" })).status,
     ).toBe(200);
+  });
+
+  it("past the server-wide limit an upload is told to come back (503, Retry-After) and nothing is kept", async () => {
+    const before = counts();
+    // Two tokens, three slow uploads each: six streaming, the server's limit, and under each
+    // caller's own limit of four.
+    const tokens = [addToken(app.dataDir), addToken(app.dataDir)];
+    const slow = [51, 52, 53, 54, 55, 56].map((seed, i) =>
+      upload(app.url, good(seed), {
+        token: tokens[i % 2] ?? "",
+        fileName: "hv-05-busy.csv",
+        chunkBytes: 16 * 1024,
+        pauseMs: 150,
+      }),
+    );
+    const streaming = () =>
+      filesUnder(join(app.dataDir, "uploads")).filter((f) => f.includes("incoming-")).length;
+    const deadline = Date.now() + 60_000;
+    while (streaming() < SERVER_WIDE && Date.now() < deadline)
+      await new Promise((r) => setTimeout(r, 50));
+    expect(streaming()).toBe(SERVER_WIDE);
+    const third = addToken(app.dataDir);
+    const busy = await upload(app.url, good(57), { token: third, fileName: "hv-05-busy-7.csv" });
+    expect(busy.status).toBe(503);
+    expect(Number(busy.headers["retry-after"])).toBeGreaterThan(0);
+    expect(String(busy.json().error)).toMatch(/try again in a moment/);
+    expect((await Promise.all(slow)).map((r) => r.status)).toEqual(Array(6).fill(200));
+    expect(counts().logs).toBe(before.logs + 6);
+    // once they are done, the same file goes through
+    const again = await upload(app.url, good(57), { token: third, fileName: "hv-05-busy-7.csv" });
+    expect(again.status).toBe(200);
   });
 });

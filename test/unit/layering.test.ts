@@ -36,11 +36,10 @@ describe("layering", () => {
   });
 
   it("has only lib/config.ts read the environment", () => {
-    // Not yet switched: the upload limits and the worker pool (their own branch switches them),
+    // Not yet switched: the worker pool,
     // the plain-JavaScript bin (it runs before any TypeScript loader), and NEXT_RUNTIME, which
     // Next.js replaces at build time to drop the Node-only start-up from other runtimes.
     const allowed = new Map<string, RegExp>([
-      ["lib/server/limits.ts", /process\.env(\.HEATCHECK_MAX_UPLOAD_MB|\[name\])/],
       ["lib/server/analysis-pool.ts", /process\.env\.HEATCHECK_WORKERS/],
       ["scripts/heatcheck.mjs", /process\.env\.HEATCHECK_REPORT_RSS/],
       ["instrumentation.ts", /process\.env\.NEXT_RUNTIME/],

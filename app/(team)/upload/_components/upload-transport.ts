@@ -4,7 +4,7 @@ import { scoreText } from "@/lib/view/score-text";
 /** What the upload API answered, or why there is no answer. */
 export type SendResult =
   | { ok: true; logId: string; duplicate: boolean; airframe?: string }
-  | { ok: false; message: string };
+  | { ok: false; message: string; retryAfterS?: number };
 
 interface UploadAnswer {
   logId?: string;
@@ -45,7 +45,17 @@ export function sendLog(
           duplicate: body.duplicate ?? false,
           airframe: body.airframe,
         });
-      else resolve({ ok: false, message: body.error ?? `upload failed (${xhr.status})` });
+      else {
+        // 503 (server busy) and 429 (too many at once) come with Retry-After: worth a retry.
+        const retryAfter = Number(xhr.getResponseHeader("Retry-After"));
+        resolve({
+          ok: false,
+          message: body.error ?? `upload failed (${xhr.status})`,
+          ...((xhr.status === 503 || xhr.status === 429) && retryAfter > 0
+            ? { retryAfterS: retryAfter }
+            : {}),
+        });
+      }
     };
     xhr.onerror = () =>
       resolve({

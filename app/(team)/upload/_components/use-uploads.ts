@@ -15,6 +15,8 @@ import {
 
 // Two at a time: the pit laptop's link and the analysis workers both stay busy.
 const PARALLEL_UPLOADS = 2;
+/** How long a file keeps retrying while the server says it is busy, ms. */
+const BUSY_RETRY_FOR_MS = 10 * 60_000;
 
 export interface Uploads {
   items: UploadItem[];
@@ -65,7 +67,19 @@ export function useUploads(airframes: AirframeChoice[]): Uploads {
 
   async function upload(item: UploadItem): Promise<void> {
     update(item.key, { phase: "uploading", message: "" });
-    const sent = await sendLog(item, (uploadFraction) => update(item.key, { uploadFraction }));
+    const giveUpAt = Date.now() + BUSY_RETRY_FOR_MS;
+    let sent = await sendLog(item, (uploadFraction) => update(item.key, { uploadFraction }));
+    // A busy server said when to come back; nothing of the file was kept, so send it again.
+    while (!sent.ok && sent.retryAfterS !== undefined && Date.now() < giveUpAt) {
+      const waitS = sent.retryAfterS * (1 + Math.random() * 0.5);
+      update(item.key, {
+        uploadFraction: 0,
+        message: `${sent.message} Retrying in ${Math.ceil(waitS)} s.`,
+      });
+      await new Promise((r) => setTimeout(r, waitS * 1000));
+      update(item.key, { message: "" });
+      sent = await sendLog(item, (uploadFraction) => update(item.key, { uploadFraction }));
+    }
     if (!sent.ok) {
       update(item.key, { phase: "failed", message: sent.message });
       return;
