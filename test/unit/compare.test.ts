@@ -186,6 +186,20 @@ describe("new resonance", () => {
     expect(Math.abs((f?.shiftPct ?? 0) + 15)).toBeLessThan(0.5);
   });
 
+  it("a mode lowered 15 % is paired with its new peak, not with a much weaker bump left near its old place", () => {
+    // A bump 6 dB below the mode's level at 295 Hz (−1.7 %) is close, but a mode that stayed would
+    // keep about its level; the peak at 255 Hz that stands as high as the mode did is the mode.
+    const a = assess({
+      bumps: [
+        { ...MODE, freqHz: 255, widthHz: 6 },
+        { axis: "roll", freqHz: 296, heightDb: 7 },
+      ],
+    });
+    const f = a.findings.find((x) => x.kind === "mode-shift");
+    expect(f?.baselineFreqHz).toBe(300);
+    expect(Math.abs((f?.shiftPct ?? 0) + 15)).toBeLessThan(0.5);
+  });
+
   it("a peak at a known baseline peak of another axis is not new", () => {
     const a = assess({ bumps: [MODE, { axis: "yaw", freqHz: 300, heightDb: 12 }] });
     expect(a.findings.filter((f) => f.kind === "new-peak")).toEqual([]);

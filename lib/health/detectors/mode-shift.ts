@@ -16,9 +16,11 @@ const ON_ORDER_FRACTION = 0.03;
 /**
  * Cost of pairing a peak with a mode: 5 % of frequency away costs one unit; every 6 dB (up to
  * 12) of the peak's prominence, and of its rise over the baseline's level at that frequency in
- * the same band, earns one back. A mode is the dominant peak near where it was, and where it
- * moved to the log stands above the baseline: a crack that lowers it by 8 % leaves it the
- * strongest peak around, while a faint bump closer to the old frequency is the skirt or noise.
+ * the same band, earns one back, and every 6 dB (up to 12) it stands below the mode's own level
+ * in the baseline's band costs one more. A mode is the dominant peak near where it was, where it
+ * moved to the log stands above the baseline, and at the same throttle it keeps about its level:
+ * a crack that lowers it by 8–15 % leaves it the strongest peak around, while a bump closer to
+ * the old frequency but far weaker than the mode ever was is its skirt, an order or noise.
  */
 const PAIRING_COST = { logFrequency: 0.05, perDb: 6, maxDb: 12 };
 
@@ -115,7 +117,8 @@ function sightingsOf(ctx: DetectorContext, axis: Axis, modes: readonly BaselineM
               Math.abs(Math.log(p.freqHz / w.f)) / PAIRING_COST.logFrequency -
               clamp(p.prominenceDb, PAIRING_COST.maxDb) / PAIRING_COST.perDb -
               clamp(p.levelDb - dbAt(basePsd, ctx.baseline.binHz, p.freqHz), PAIRING_COST.maxDb) /
-                PAIRING_COST.perDb,
+                PAIRING_COST.perDb +
+              clamp(w.level - p.levelDb, PAIRING_COST.maxDb) / PAIRING_COST.perDb,
           }))
       );
     });
