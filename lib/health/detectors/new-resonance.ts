@@ -218,7 +218,10 @@ function excessOver(ctx: DetectorContext, axis: Axis, { first, last }: BinRange)
       const f = k * binHz;
       const level = m.log.axes[axis].psdDb[k] ?? Number.NaN;
       logSum[k] = (logSum[k] ?? 0) + w * (Number.isFinite(level) ? level : 0);
-      const g = (logAbove[k - first] ?? Number.NaN) - (baseAbove[k - first] ?? Number.NaN);
+      // A dip of the baseline's (a notch of its filters, a gap between its modes) is no peak the
+      // log gained: the log must stand above its own background to have gained any prominence.
+      const g =
+        (logAbove[k - first] ?? Number.NaN) - Math.max(0, baseAbove[k - first] ?? Number.NaN);
       if (Number.isFinite(g)) {
         everySum[k] = (everySum[k] ?? 0) + w * g;
         everyW[k] = (everyW[k] ?? 0) + w;
