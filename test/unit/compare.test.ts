@@ -200,6 +200,22 @@ describe("new resonance", () => {
     expect(Math.abs((f?.shiftPct ?? 0) + 15)).toBeLessThan(0.5);
   });
 
+  it("a new tone is named on the axis it adds most power to, even where it is no local peak", () => {
+    // Pitch shows the tone as a narrow peak 6 dB high; roll, at the same frequency, rises 14 dB
+    // in a bump too broad to stand above its own local background (as a tone on a frame mode's
+    // skirt does). The part rocks most in roll, so roll is where it is named.
+    const a = assess({
+      bumps: [
+        MODE,
+        { axis: "pitch", freqHz: 250, heightDb: 6 },
+        { axis: "roll", freqHz: 250, heightDb: 14, widthHz: 30 },
+      ],
+    });
+    const peaks = a.findings.filter((f) => f.kind === "new-peak");
+    expect(peaks.map((f) => f.axis)).toEqual(["roll"]);
+    expect(Math.abs((peaks[0]?.freqHz ?? 0) - 250)).toBeLessThan(2);
+  });
+
   it("a peak at a known baseline peak of another axis is not new", () => {
     const a = assess({ bumps: [MODE, { axis: "yaw", freqHz: 300, heightDb: 12 }] });
     expect(a.findings.filter((f) => f.kind === "new-peak")).toEqual([]);

@@ -63,8 +63,8 @@ export function newPeaks(ctx: DetectorContext): Finding[] {
   if (bins.last - bins.first < MIN_SPAN_BINS) return [];
   const found: Sighted[] = [];
   const moved: Finding[] = [];
-  for (const axis of axes) {
-    const x = excessOver(ctx, axis, bins);
+  const byAxis = new Map(axes.map((axis) => [axis, excessOver(ctx, axis, bins)] as const));
+  for (const [axis, x] of byAxis) {
     // How this flight's peaks wander from the baseline's, bin to bin: the robust spread of the
     // prominence gain near the bin (within ±WANDER_FRACTION of its frequency). A new resonance is
     // an outlier of it; prop wash makes the low range wander far more than the high one, so one
@@ -127,23 +127,20 @@ export function newPeaks(ctx: DetectorContext): Finding[] {
         if (shift) moved.push(shift);
         continue;
       }
-      const grade = graded(best, h.levelDb, h);
-      if (!grade) continue;
-      found.push({
-        // The power the new resonance added on this axis: the log's level less the baseline's,
-        // as powers.
-        addedDb:
-          (x.logDb[at] ?? Number.NaN) +
-          10 * Math.log10(Math.max(Number.EPSILON, 1 - 10 ** (-best / 10))),
-        finding: {
-          axis,
-          kind: "new-peak",
-          freqHz: round(p.freqHz, 1),
-          deltaDb: round(best, 1),
-          ...grade,
-          text: `new ${axis} peak at ${Math.round(p.freqHz)} Hz, ${best.toFixed(0)} dB above the baseline there: something has come loose or is touching. ${ADVICE.newPeak}`,
-        },
-      });
+      const seen = sighting(ctx, axis, x, at, p.freqHz);
+      if (!seen) continue;
+      found.push(seen);
+      // A loose part rocks most on one axis but need not peak there: on the skirt of a frame
+      // mode its tone is a shoulder, not a local maximum. The same frequency is weighed on the
+      // other axes too, where it stands clear of their scatter.
+      for (const [other, y] of byAxis) {
+        if (other === axis) continue;
+        const k = strongestExcessNear(y, at);
+        const e = y.excess[k] ?? Number.NaN;
+        if (!(e >= h.minSigma * (y.sigma[k] ?? Number.NaN))) continue;
+        const also = sighting(ctx, other, y, k, p.freqHz);
+        if (also) found.push(also);
+      }
     }
   }
   // One loose part shows on several axes: keep the sighting of each frequency on the axis it
@@ -353,6 +350,45 @@ function isKnown(ctx: DetectorContext, freqHz: number): boolean {
       );
     })
   );
+}
+
+/** The bin within ±1 of `at` where the axis's excess over the baseline is largest. */
+function strongestExcessNear(x: Excess, at: number): number {
+  let best = at;
+  for (let k = at - 1; k <= at + 1; k++) {
+    const e = x.excess[k] ?? Number.NaN;
+    if (Number.isFinite(e) && !((x.excess[best] ?? Number.NaN) >= e)) best = k;
+  }
+  return best;
+}
+
+/** The new-peak finding on `axis` at bin `at`, with the power it added there; null below watch. */
+function sighting(
+  ctx: DetectorContext,
+  axis: Axis,
+  x: Excess,
+  at: number,
+  freqHz: number,
+): Sighted | null {
+  const h = ctx.thresholds;
+  const best = x.excess[at] ?? Number.NaN;
+  const grade = graded(best, h.levelDb, h);
+  if (!grade) return null;
+  return {
+    // The power the new resonance added on this axis: the log's level less the baseline's, as
+    // powers.
+    addedDb:
+      (x.logDb[at] ?? Number.NaN) +
+      10 * Math.log10(Math.max(Number.EPSILON, 1 - 10 ** (-best / 10))),
+    finding: {
+      axis,
+      kind: "new-peak",
+      freqHz: round(freqHz, 1),
+      deltaDb: round(best, 1),
+      ...grade,
+      text: `new ${axis} peak at ${Math.round(freqHz)} Hz, ${best.toFixed(0)} dB above the baseline there: something has come loose or is touching. ${ADVICE.newPeak}`,
+    },
+  };
 }
 
 /** A new peak seen on one axis, with the power it added there, dB. */
