@@ -95,11 +95,12 @@ export function compareWithBaseline(
     found: [],
   };
   // The detectors run in this order, each told what the ones before it found: a motor named by
-  // the floor rise for its bearing tones is not named twice, a moved mode is not also a new peak,
-  // and a band that a more specific finding explains is not a band rise.
-  const floor = floorRises(ctx);
-  const orders = motorOrders({ ...ctx, found: floor });
+  // the floor rise for its bearing tones is not named twice, a floor rise that comes with several
+  // dropped modes points at the frame, a moved mode is not also a new peak, and a band that a
+  // more specific finding explains is not a band rise.
   const shifts = modeShifts(ctx);
+  const floor = floorRises({ ...ctx, found: shifts });
+  const orders = motorOrders({ ...ctx, found: floor });
   const findings: Finding[] = [...shifts, ...orders, ...floor];
   findings.push(...newPeaks({ ...ctx, found: [...findings] }));
   findings.push(...bandRises({ ...ctx, found: [...findings] }));

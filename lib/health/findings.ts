@@ -17,8 +17,11 @@ export interface Finding {
   /** motor-order: the order that rose most (1 = the rotation rate) and every order that rose. */
   order?: number;
   orders?: number[];
-  /** motor-order: a prop (whole orders only) or a loose motor (half orders too). */
-  cause?: "prop" | "motor-mount";
+  /**
+   * motor-order: a prop (whole orders only) or a loose motor (half orders too); floor-rise:
+   * "frame" when modes dropped on several frequencies at once explain it.
+   */
+  cause?: "prop" | "motor-mount" | "frame";
   severity: Exclude<Status, "ok">;
   /** Points this finding took off the score. */
   points: number;

@@ -32,7 +32,7 @@ const findingSchema = z.object({
   motor: z.number().optional(),
   order: z.number().optional(),
   orders: z.array(z.number()).optional(),
-  cause: z.enum(["prop", "motor-mount"]).optional(),
+  cause: z.enum(["prop", "motor-mount", "frame"]).optional(),
   severity: z.enum(["watch", "inspect", "ground"]),
   points: z.number(),
   text: z.string(),

@@ -112,7 +112,7 @@ describe("the crew at work (owner)", () => {
     const text = await page.locator("[data-testid=queue]").innerText();
     expect(text).toMatch(/pitch mode at \d+ Hz dropped \d+ % since baseline/);
     expect(text).toMatch(/motor 3 \(rear-right\) vibrates \d+ dB more/);
-    expect(text).toMatch(/broadband noise above \d+ Hz is up \d+ dB/);
+    expect(text).toMatch(/broadband noise from \d+ to \d+ Hz is up \d+ dB/);
     expect(text).toMatch(/crash on .* with no inspection since/);
     expect(await page.locator(".caution").innerText()).toMatch(
       /decision aid, not an airworthiness certificate/,

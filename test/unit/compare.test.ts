@@ -118,8 +118,32 @@ describe("floor rise", () => {
     expect(f.deltaDb).toBeCloseTo(8, 6);
     // Centre of the floor's range, the octave from the corner (600 to 1200 Hz): √(600·1200).
     expect(f.freqHz).toBe(Math.round(Math.sqrt(600 * 1200)));
-    expect(f.text).toContain("above 600 Hz is up 8 dB on roll (also pitch and yaw)");
+    expect(f.text).toContain("from 600 to 1200 Hz is up 8 dB on roll (also pitch and yaw)");
+    expect(f.text).toContain("worn motor bearings or damaged props");
     expect(f.motor).toBeUndefined();
+  });
+
+  it("with two modes dropped at the same time it points at the frame screws, not the bearings", () => {
+    // Loose frame screws lower and damp every mode (common practice: a soft frame rings lower and
+    // longer), and damped modes spread their vibration over the octave above them.
+    const PITCH: Bump = { axis: "pitch", freqHz: 200, heightDb: 15 };
+    const two = buildBaseline([
+      syntheticAnalysis({ bumps: [MODE, PITCH] }),
+      syntheticAnalysis({ bumps: [MODE, PITCH] }),
+    ]);
+    const log = syntheticAnalysis({
+      bumps: [
+        { ...MODE, freqHz: 270 },
+        { ...PITCH, freqHz: 180 },
+      ],
+      riseAbove: { freqHz: 600, db: 8 },
+    });
+    const a = compareWithBaseline(log, two);
+    expect(a.findings.filter((f) => f.kind === "mode-shift")).toHaveLength(2);
+    const floor = a.findings.find((f) => f.kind === "floor-rise");
+    expect(floor?.cause).toBe("frame");
+    expect(floor?.text).toContain("with 2 frame modes lower at the same time");
+    expect(floor?.text).toContain("check every frame screw");
   });
 
   it("a floor up 12 dB in one compared band and not in the others is no floor rise", () => {

@@ -53,7 +53,8 @@ const RULES = {
   // Its sentence names loose screws, a cracked mount or rubbing below the floor corner, and
   // bearings or props above it: it does not point to a new resonance of a stack or a camera.
   "band-rise": (f) => (f.freqHz >= 600 ? ["bearing"] : ["loose-frame"]),
-  "floor-rise": () => ["bearing"],
+  // With several modes dropped at once its sentence points at the frame screws instead.
+  "floor-rise": (f) => (f.cause === "frame" ? ["loose-frame"] : ["bearing"]),
   // Whole orders only: a prop; with tones between the orders (half orders, rattle): a loose motor.
   "motor-order": (f) => (f.cause === "motor-mount" ? ["loose-motor"] : ["bent-prop"]),
 } satisfies Record<FindingKind, KindRule>;

@@ -25,6 +25,9 @@ export const ADVICE = {
     "typical of a worn bearing in that motor. With the battery disconnected, spin it by hand and feel for roughness.",
   /** floor-rise without a motor to name */
   bearingsOrProps: `typical of worn motor bearings or damaged props. ${SPIN_EACH}`,
+  /** floor-rise that comes with several modes dropped at once */
+  softFrame:
+    "typical of loose frame screws, whose damped modes spread their vibration wide: check every frame screw and the arms, then spin each motor by hand.",
   /** band-rise above the floor corner */
   highBand: `typical of a worn motor bearing or a damaged prop. ${SPIN_EACH}`,
   /** band-rise below it */

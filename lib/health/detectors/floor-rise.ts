@@ -83,18 +83,39 @@ export function floorRises(ctx: DetectorContext): Finding[] {
   // A worn bearing rings at its motor's non-integer orders: the motor whose half orders rose
   // against its own baseline and the other motors is the one to check first.
   const bearing = ctx.orders.bearing;
+  const dropped = droppedModes(ctx.found);
   const named = bearing
     ? `, with tones between the whole orders of ${motorNamed(bearing.motor, ctx.positions)} (${betweenName(bearing)} its rotation up ${bearing.ownDb.toFixed(0)} dB): ${ADVICE.bearingOfMotor}`
-    : `: ${ADVICE.bearingsOrProps}`;
+    : dropped >= 2
+      ? `, with ${dropped} frame modes lower at the same time: ${ADVICE.softFrame}`
+      : `: ${ADVICE.bearingsOrProps}`;
   return [
     {
       axis: top.axis,
       kind: "floor-rise",
       freqHz: round(centre, 0),
       deltaDb: round(top.delta, 1),
-      ...(bearing ? { motor: bearing.motor, order: bearing.order } : {}),
+      ...(bearing
+        ? { motor: bearing.motor, order: bearing.order }
+        : dropped >= 2
+          ? { cause: "frame" as const }
+          : {}),
       ...grade,
-      text: `broadband noise above ${Math.round(cornerHz)} Hz is up ${top.delta.toFixed(0)} dB on ${top.axis}${also}${named}`,
+      text: `broadband noise from ${Math.round(cornerHz)} to ${Math.round(maxHz)} Hz is up ${top.delta.toFixed(0)} dB on ${top.axis}${also}${named}`,
     },
   ];
+}
+
+/**
+ * Distinct baseline modes that dropped, among the findings before this one. Two or more at once
+ * are the frame gone soft rather than a bearing: loose frame screws lower every mode and damp it,
+ * and a damped mode's skirt spreads its vibration over the octave above it. A motor named by its
+ * own tones still comes first.
+ */
+function droppedModes(found: readonly Finding[]): number {
+  return new Set(
+    found
+      .filter((f) => f.kind === "mode-shift" && (f.shiftPct ?? 0) < 0)
+      .map((f) => Math.round(f.baselineFreqHz ?? f.freqHz)),
+  ).size;
 }
