@@ -38,13 +38,17 @@ export function bandRises(ctx: DetectorContext): Finding[] {
       specific.some(
         (f) =>
           f.kind === "motor-order" &&
-          matched.some((m) => {
-            const order =
-              m.log.motors
-                .find((x) => x.motor === f.motor)
-                ?.orders.find((o) => o.order === (f.order ?? 1))?.freqHz ?? 0;
-            return order >= band.loHz && order < band.hiHz;
-          }),
+          matched.some((m) =>
+            (m.log.motors.find((x) => x.motor === f.motor)?.orders ?? [])
+              // Every order that rose explains its band; a rattling motor's tones between its
+              // orders too (f.orders lists whole orders only).
+              .filter(
+                (o) =>
+                  (f.orders ?? [f.order ?? 1]).includes(o.order) ||
+                  (f.cause === "motor-mount" && !Number.isInteger(o.order)),
+              )
+              .some((o) => o.freqHz >= band.loHz && o.freqHz < band.hiHz),
+          ),
       );
     if (explained) return;
     const i = log.bands.findIndex((x) => x.loHz === band.loHz && x.hiHz === band.hiHz);

@@ -194,8 +194,21 @@ function excessOver(ctx: DetectorContext, axis: Axis, { first, last }: BinRange)
   const judged = new Float64Array(last + 1);
   const peaked = new Float64Array(last + 1);
   const gainSum = new Float64Array(last + 1);
+  // A motor named for rattling (tones between its orders) explains those tones: they are not new
+  // resonances of the frame, wherever they fall.
+  const rattling = new Set(
+    ctx.found
+      .filter((f) => f.kind === "motor-order" && f.cause === "motor-mount")
+      .map((f) => f.motor),
+  );
   for (const m of matched) {
-    const orderFreqs = wholeOrderFreqs(m.log);
+    const orderFreqs = [
+      ...wholeOrderFreqs(m.log),
+      ...m.log.motors
+        .filter((x) => rattling.has(x.motor))
+        .flatMap((x) => x.orders.map((o) => o.freqHz))
+        .filter((f) => f > 0),
+    ];
     // Within a throttle band each order sweeps as rpm does, rpm ∝ √throttle (thrust ∝ rpm²):
     // a half-width of (√hi − √lo)/(√hi + √lo) around its mean, and 2 % for the motors' spread.
     const sweep =
@@ -227,12 +240,15 @@ function excessOver(ctx: DetectorContext, axis: Axis, { first, last }: BinRange)
       const base = basePsd[k] ?? Number.NaN;
       if (!Number.isFinite(level) || !Number.isFinite(base) || !Number.isFinite(g)) continue;
       const s = spread ? dbAt(spread, baseline.binHz, f) : 0;
-      sum[k] = (sum[k] ?? 0) + w * (level - base);
+      // Inverse-variance weights: a band where the baseline's own logs disagree (prop wash at
+      // low throttle) says less about a bin than one where they agree.
+      const v = chi + (Number.isFinite(s) ? s * s : 0);
+      sum[k] = (sum[k] ?? 0) + (level - base) / v;
+      var2[k] = (var2[k] ?? 0) + 1 / v;
       judged[k] = (judged[k] ?? 0) + 1;
       gainSum[k] = (gainSum[k] ?? 0) + w * g;
       if (g >= h.levelDb.watch) peaked[k] = (peaked[k] ?? 0) + 1;
       wsum[k] = (wsum[k] ?? 0) + w;
-      var2[k] = (var2[k] ?? 0) + w * w * (chi + (Number.isFinite(s) ? s * s : 0));
     }
   }
   const total = matched.reduce((s, m) => s + m.log.segments, 0);
@@ -247,8 +263,8 @@ function excessOver(ctx: DetectorContext, axis: Axis, { first, last }: BinRange)
     const w = wsum[k] ?? 0;
     // A bin that most bands could not judge (motor orders sweep over it) is left out.
     if (w < MIN_JUDGED_SHARE * total) continue;
-    excess[k] = (sum[k] ?? 0) / w;
-    sigma[k] = Math.sqrt(var2[k] ?? 0) / w;
+    excess[k] = (sum[k] ?? 0) / (var2[k] ?? 1);
+    sigma[k] = 1 / Math.sqrt(var2[k] ?? 1);
     gain[k] = (gainSum[k] ?? 0) / w;
   }
   return { excess, sigma, logDb, gain, gainEverywhere, judged, peaked };
