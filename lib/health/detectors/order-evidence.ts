@@ -297,6 +297,36 @@ export function standsOut(
 }
 
 /**
+ * The exact half orders (tones locked at k + ½ of the rotation, a loose part's sub-harmonics) of
+ * a motor that rose over its own baseline on the whole airframe: the mean rise over the compared
+ * axes reaches the watch step and minSigma of its expected scatter (the axes' scatters combined
+ * as independent, as in standsOut), and exceeds the other motors' on the average. Asked only of a
+ * motor that a whole order has already named: the question is then which fault it has, not
+ * whether it has one, so the rise need not also clear the other motors' spread (which a half
+ * order's leak into near-identical motors widens most: all motors' half orders lie within a few Hz).
+ */
+export function risenHalfOrders(
+  standings: readonly OrderStanding[],
+  motor: number,
+  h: HealthThresholds,
+): OrderStanding[] {
+  const out: OrderStanding[] = [];
+  const halves = standings.filter(
+    (s) => s.motor === motor && !s.side && !Number.isInteger(s.order),
+  );
+  for (const order of new Set(halves.map((s) => s.order))) {
+    const axes = halves.filter((s) => s.order === order);
+    const first = axes[0];
+    if (!first) continue;
+    const rise = mean(axes.map((s) => s.ownDb));
+    const sigma = Math.sqrt(axes.reduce((sum, s) => sum + s.sigmaDb ** 2, 0)) / axes.length;
+    if (rise >= Math.max(h.levelDb.watch, h.minSigma * sigma) && first.axesExcessDb > 0)
+      out.push(first);
+  }
+  return out;
+}
+
+/**
  * The scatter of the rises over the other motors, per order (and sidebands apart): the larger
  * of that order's robust spread over the other motors' axes and the spread over every order. An
  * order that the flight controller notches away is noise-like and wanders more than one that
