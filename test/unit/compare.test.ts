@@ -270,6 +270,25 @@ describe("motor orders", () => {
     expect(f.text).toContain("1.5×) as a loose part rattles");
   });
 
+  it("a named motor whose exact 1.5× rose 6 dB, leaking 4 dB into the others' 1.5×, is a loose motor", () => {
+    // The 1.5× beats the other motors by 2 dB only, under the 3 dB watch step (it is no finding
+    // of its own), but with the motor named by its 1× it tells a rattle from a prop.
+    const f = only(
+      assess({
+        orderDb: (m, o) => (m === 2 && o === 1 ? 0 : o === 1.5 ? (m === 2 ? -4 : -6) : -10),
+      }),
+    );
+    expect(f.motor).toBe(2);
+    expect(f.cause).toBe("motor-mount");
+    expect(f.text).toContain("1.5×) as a loose part rattles");
+  });
+
+  it("a half order up by the same amount on every motor does not make the named motor's prop a rattle", () => {
+    const f = only(assess({ orderDb: (m, o) => (m === 2 && o === 1 ? 0 : o === 1.5 ? -4 : -10) }));
+    expect(f.motor).toBe(2);
+    expect(f.cause).toBe("prop");
+  });
+
   it("names the motor's position when positions are given", () => {
     const f = only(assess({ orderDb: bent }, MOTOR_POSITIONS));
     expect(f.text.startsWith("motor 3 (rear-right) vibrates")).toBe(true);

@@ -3,7 +3,7 @@ import type { Finding } from "../findings";
 import { motorNamed } from "../motor-positions";
 import { ADVICE } from "./advice";
 import type { DetectorContext } from "./context";
-import { betweenName, isWhole, standsOut } from "./order-evidence";
+import { betweenName, isWhole, risenHalfOrders, standsOut } from "./order-evidence";
 import { graded } from "./shared";
 
 /** The sentence names at most this many of the tones between a motor's orders. */
@@ -48,11 +48,14 @@ export function motorOrders(ctx: DetectorContext): Finding[] {
     if (!grade) continue;
     const { s } = top;
     const wholeOrders = [...new Set(whole.map((x) => x.s.order))].sort((a, b) => a - b);
-    // Sidebands alone do not make a rattle: a strong or smeared 1× spills beside itself too.
-    const rattle = halves.some((x) => !x.s.side);
+    // Sidebands alone do not make a rattle: a strong or smeared 1× spills beside itself too. With
+    // the motor named, an exact half order that rose over its own baseline is enough to tell a
+    // rattle from a prop.
+    const locked = risenHalfOrders(standings, motor, h);
+    const rattle = halves.some((x) => !x.s.side) || locked.length > 0;
     if (rattle && s.order !== 1 && floor.some((x) => x.motor === motor)) continue;
     const at = `${orderName(s.order, bladeCount)} (about ${Math.round(s.rotationHz * s.order)} Hz${s.order === 1 ? "" : `; it turns at ${Math.round(s.rotationHz)} Hz`})`;
-    const tones = [...new Set(halves.map((x) => betweenName(x.s)))]
+    const tones = [...new Set([...halves.map((x) => x.s), ...locked].map(betweenName))]
       .slice(0, MAX_TONES_NAMED)
       .join(", ");
     const advice = rattle

@@ -64,7 +64,7 @@ export function orderEvidence(ctx: OrderInputs, excluded: ReadonlySet<number>): 
 }
 
 /** A standing before it is held against the other motors. */
-type RawStanding = Omit<OrderStanding, "excessDb" | "axesExcessDb" | "axesCompared">;
+export type RawStanding = Omit<OrderStanding, "excessDb" | "axesExcessDb" | "axesCompared">;
 
 /** A rotation bin is compared when both the log and the baseline measured it in this many blocks. */
 const MIN_RPM_BIN_BLOCKS = 2;
@@ -120,7 +120,13 @@ function rpmMatchedStandings(
 }
 
 function orderStandings(ctx: OrderInputs, excluded: ReadonlySet<number>): OrderStanding[] {
-  const raw = rpmMatchedStandings(ctx, excluded) ?? throttleMatchedStandings(ctx, excluded);
+  return heldAgainstOthers(
+    rpmMatchedStandings(ctx, excluded) ?? throttleMatchedStandings(ctx, excluded),
+  );
+}
+
+/** Each rise held against the median of the other motors' at the same order and axis, and that averaged over the axes. */
+export function heldAgainstOthers(raw: readonly RawStanding[]): OrderStanding[] {
   const withExcess = raw.map((r) => {
     const others = raw
       .filter(
@@ -291,29 +297,92 @@ export function standsOut(
 }
 
 /**
+ * The exact half orders (tones locked at k + ½ of the rotation, a loose part's sub-harmonics) of
+ * a motor that rose over its own baseline on the whole airframe: the mean rise over the compared
+ * axes reaches the watch step and minSigma of its expected scatter (the axes' scatters combined
+ * as independent, as in standsOut), and exceeds the other motors' on the average. Asked only of a
+ * motor that a whole order has already named: the question is then which fault it has, not
+ * whether it has one, so the rise need not also clear the other motors' spread (which a half
+ * order's leak into near-identical motors widens most: all motors' half orders lie within a few Hz).
+ */
+export function risenHalfOrders(
+  standings: readonly OrderStanding[],
+  motor: number,
+  h: HealthThresholds,
+): OrderStanding[] {
+  const out: OrderStanding[] = [];
+  const halves = standings.filter(
+    (s) => s.motor === motor && !s.side && !Number.isInteger(s.order),
+  );
+  for (const order of new Set(halves.map((s) => s.order))) {
+    const axes = halves.filter((s) => s.order === order);
+    const first = axes[0];
+    if (!first) continue;
+    const rise = mean(axes.map((s) => s.ownDb));
+    const sigma = Math.sqrt(axes.reduce((sum, s) => sum + s.sigmaDb ** 2, 0)) / axes.length;
+    if (rise >= Math.max(h.levelDb.watch, h.minSigma * sigma) && first.axesExcessDb > 0)
+      out.push(first);
+  }
+  return out;
+}
+
+/**
  * The scatter of the rises over the other motors, per order (and sidebands apart): the larger
  * of that order's robust spread over the other motors' axes and the spread over every order. An
  * order that the flight controller notches away is noise-like and wanders more than one that
  * stands clear, so each is judged by its own kind.
+ *
+ * The yardstick of a motor is made without it (leave-one-out, as in jackknife outlier tests):
+ * the other motors' rises are taken over each other only, so the judged motor's standings enter
+ * neither the spread nor the medians the spread is measured from. With it inside, a damaged
+ * motor's rise moved the others' medians and its tone leaking into near-identical motors' orders
+ * widened the very yardstick that damage was judged by. Where fewer than three motors remain to
+ * be held against each other, the rise over the others is taken as it stands (every motor in).
  */
-function excessSigma(standings: readonly OrderStanding[]): (s: OrderStanding) => number {
+export function excessSigma(standings: readonly OrderStanding[]): (s: OrderStanding) => number {
   const all = robustSigma(standings.map((s) => s.excessDb));
+  const pools = new Map<
+    number,
+    { pool: { x: OrderStanding; excessDb: number }[]; spread: number }
+  >();
+  const poolOf = (motor: number) => {
+    let p = pools.get(motor);
+    if (!p) {
+      const others = standings.filter((x) => x.motor !== motor);
+      const loo = others
+        .map((x) => ({ x, excessDb: riseOverOthers(x, others) }))
+        .filter((y) => Number.isFinite(y.excessDb));
+      p =
+        loo.length > 0
+          ? { pool: loo, spread: robustSigma(loo.map((y) => y.excessDb)) }
+          : { pool: others.map((x) => ({ x, excessDb: x.excessDb })), spread: all };
+      pools.set(motor, p);
+    }
+    return p;
+  };
   const perKey = new Map<string, number>();
-  // The spread of the order is taken over the other motors only: the motor judged is not
-  // allowed to widen the yardstick it is judged by.
   return (s) => {
     const key = `${s.motor}/${s.order}/${s.side}`;
     let sigma = perKey.get(key);
     if (sigma === undefined) {
-      sigma = robustSigma(
-        standings
-          .filter((x) => x.motor !== s.motor && x.order === s.order && x.side === s.side)
-          .map((x) => x.excessDb),
-      );
+      const { pool, spread } = poolOf(s.motor);
+      const order = pool.filter((y) => y.x.order === s.order && y.x.side === s.side);
+      sigma = Math.max(spread, robustSigma(order.map((y) => y.excessDb)));
       perKey.set(key, sigma);
     }
-    return Math.max(all, sigma);
+    return sigma;
   };
+}
+
+/** A standing's rise over the median of the motors in `among` but itself, same order and axis; NaN when none. */
+function riseOverOthers(s: OrderStanding, among: readonly OrderStanding[]): number {
+  const ref = among
+    .filter(
+      (x) => x.motor !== s.motor && x.order === s.order && x.side === s.side && x.axis === s.axis,
+    )
+    .map((x) => x.ownDb);
+  // One other motor is no median: its own wander is half of the difference.
+  return ref.length >= 2 ? s.ownDb - median(ref) : Number.NaN;
 }
 
 /** The motor whose half orders (tones between its whole orders) rose most, against both references. */
