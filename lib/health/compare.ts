@@ -4,7 +4,7 @@ import { AXES, type Axis } from "../logs/columns";
 import type { Baseline } from "./baseline";
 import { bandRises } from "./detectors/band-rise";
 import type { DetectorContext, MatchedBand } from "./detectors/context";
-import { floorRises } from "./detectors/floor-rise";
+import { floorRises, softFrameFloor } from "./detectors/floor-rise";
 import { modeShifts } from "./detectors/mode-shift";
 import { motorOrders } from "./detectors/motor-orders";
 import { newPeaks } from "./detectors/new-resonance";
@@ -95,15 +95,16 @@ export function compareWithBaseline(
     found: [],
   };
   // The detectors run in this order, each told what the ones before it found: a motor named by
-  // the floor rise for its bearing tones is not named twice, a floor rise that comes with several
-  // dropped modes points at the frame, a moved mode is not also a new peak, and a band that a
-  // more specific finding explains is not a band rise.
+  // the floor rise for its bearing tones is not named twice, a moved mode is not also a new peak,
+  // and a band that a more specific finding explains is not a band rise. Once all have run, a
+  // floor rise that came with two or more dropped modes points at the frame.
   const shifts = modeShifts(ctx);
-  const floor = floorRises({ ...ctx, found: shifts });
+  const floor = floorRises(ctx);
   const orders = motorOrders({ ...ctx, found: floor });
-  const findings: Finding[] = [...shifts, ...orders, ...floor];
-  findings.push(...newPeaks({ ...ctx, found: [...findings] }));
-  findings.push(...bandRises({ ...ctx, found: [...findings] }));
+  const found: Finding[] = [...shifts, ...orders, ...floor];
+  found.push(...newPeaks({ ...ctx, found: [...found] }));
+  found.push(...bandRises({ ...ctx, found: [...found] }));
+  const findings = softFrameFloor(found);
   // Worst first; the sort is stable, so equal points keep the order above.
   findings.sort((a, b) => b.points - a.points);
 

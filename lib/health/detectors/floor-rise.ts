@@ -83,39 +83,46 @@ export function floorRises(ctx: DetectorContext): Finding[] {
   // A worn bearing rings at its motor's non-integer orders: the motor whose half orders rose
   // against its own baseline and the other motors is the one to check first.
   const bearing = ctx.orders.bearing;
-  const dropped = droppedModes(ctx.found);
-  const named = bearing
-    ? `, with tones between the whole orders of ${motorNamed(bearing.motor, ctx.positions)} (${betweenName(bearing)} its rotation up ${bearing.ownDb.toFixed(0)} dB): ${ADVICE.bearingOfMotor}`
-    : dropped >= 2
-      ? `, with ${dropped} frame modes lower at the same time: ${ADVICE.softFrame}`
-      : `: ${ADVICE.bearingsOrProps}`;
+  const measured = `broadband noise from ${Math.round(cornerHz)} to ${Math.round(maxHz)} Hz is up ${top.delta.toFixed(0)} dB on ${top.axis}${also}`;
   return [
     {
       axis: top.axis,
       kind: "floor-rise",
       freqHz: round(centre, 0),
       deltaDb: round(top.delta, 1),
-      ...(bearing
-        ? { motor: bearing.motor, order: bearing.order }
-        : dropped >= 2
-          ? { cause: "frame" as const }
-          : {}),
+      ...(bearing ? { motor: bearing.motor, order: bearing.order } : {}),
       ...grade,
-      text: `broadband noise from ${Math.round(cornerHz)} to ${Math.round(maxHz)} Hz is up ${top.delta.toFixed(0)} dB on ${top.axis}${also}${named}`,
+      text: bearing
+        ? `${measured}, with tones between the whole orders of ${motorNamed(bearing.motor, ctx.positions)} (${betweenName(bearing)} its rotation up ${bearing.ownDb.toFixed(0)} dB): ${ADVICE.bearingOfMotor}`
+        : `${measured}${BEARINGS_OR_PROPS}`,
     },
   ];
 }
 
+/** The end of a floor rise's sentence when no motor is named. */
+const BEARINGS_OR_PROPS = `: ${ADVICE.bearingsOrProps}`;
+
 /**
- * Distinct baseline modes that dropped, among the findings before this one. Two or more at once
- * are the frame gone soft rather than a bearing: loose frame screws lower every mode and damp it,
- * and a damped mode's skirt spreads its vibration over the octave above it. A motor named by its
- * own tones still comes first.
+ * A floor rise that comes with two or more modes dropped (by the mode tracking or the new-peak
+ * search, which reports a mode that left its place) is the frame gone soft rather than a bearing:
+ * loose frame screws lower every mode and damp it, and a damped mode's skirt spreads its vibration
+ * over the octave above it. Its points stay, its sentence points at the frame. A motor named by
+ * its own tones still comes first.
  */
-function droppedModes(found: readonly Finding[]): number {
-  return new Set(
-    found
+export function softFrameFloor(findings: readonly Finding[]): Finding[] {
+  const dropped = new Set(
+    findings
       .filter((f) => f.kind === "mode-shift" && (f.shiftPct ?? 0) < 0)
       .map((f) => Math.round(f.baselineFreqHz ?? f.freqHz)),
   ).size;
+  if (dropped < 2) return [...findings];
+  return findings.map((f) =>
+    f.kind === "floor-rise" && f.motor === undefined && f.text.endsWith(BEARINGS_OR_PROPS)
+      ? {
+          ...f,
+          cause: "frame",
+          text: `${f.text.slice(0, -BEARINGS_OR_PROPS.length)}, with ${dropped} frame modes lower at the same time: ${ADVICE.softFrame}`,
+        }
+      : f,
+  );
 }
