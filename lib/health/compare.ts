@@ -104,7 +104,7 @@ export function compareWithBaseline(
   const found: Finding[] = [...shifts, ...orders, ...floor];
   found.push(...newPeaks({ ...ctx, found: [...found] }));
   found.push(...bandRises({ ...ctx, found: [...found] }));
-  const findings = softFrameFloor(found);
+  const findings = softFrameFloor(found, h.samePeakFraction);
   // Worst first; the sort is stable, so equal points keep the order above.
   findings.sort((a, b) => b.points - a.points);
 

@@ -33,8 +33,6 @@ export interface QueueEntry {
   status: Status;
   score: number | null;
   reasons: string[];
-  /** Higher is more urgent. */
-  urgency: number;
   inNextHeat: boolean;
   state: string;
 }
@@ -103,18 +101,24 @@ export function rankQueue(fleet: readonly AirframeFacts[]): QueueEntry[] {
       reasons.push("no log analysed since the baseline");
     }
     const score = a.latest?.score ?? null;
-    // Status first, then the lower score, then the longer list of reasons.
-    const urgency = STATUS_ORDER.indexOf(status) * 1000 + (100 - (score ?? 100)) + reasons.length;
     return {
       id: a.id,
       name: a.name,
       status,
       score,
       reasons,
-      urgency,
       inNextHeat: a.inNextHeat,
       state: a.state,
     };
   });
-  return entries.sort((x, y) => y.urgency - x.urgency || x.name.localeCompare(y.name));
+  // Status first, then the lower score (no score counts as 100: nothing judged against it), then
+  // the longer list of reasons, then the name. Compared in turn, not added up: below 10 the score
+  // moves in tenths, and a reason more must not outrank a worse score.
+  return entries.sort(
+    (x, y) =>
+      STATUS_ORDER.indexOf(y.status) - STATUS_ORDER.indexOf(x.status) ||
+      (x.score ?? 100) - (y.score ?? 100) ||
+      y.reasons.length - x.reasons.length ||
+      x.name.localeCompare(y.name),
+  );
 }

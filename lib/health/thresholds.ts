@@ -97,14 +97,15 @@ const SCORE_TAIL_START = 10;
  * The score for the points all findings took: 100 minus them down to 10, then 100/(points − 80),
  * which meets the straight line at 10 with the same slope and approaches 0 without reaching it.
  * A hard floor at 0 would tie every badly damaged airframe at the top of the queue; with the tail a
- * worse one still scores lower. Whole numbers above 10, one decimal below.
+ * worse one still scores lower. Whole numbers above 10, three significant digits below.
  */
 export function scoreForPoints(points: number): number {
   const straight = 100 - points;
   if (straight >= SCORE_TAIL_START) return Math.round(straight);
   const t = SCORE_TAIL_START;
   const tail = (t * t) / (points - (100 - 2 * t));
-  return Math.max(0.1, Math.round(tail * 10) / 10);
+  // Three significant digits, so that even far down the tail two airframes do not tie.
+  return Number(tail.toPrecision(3));
 }
 
 export function statusForScore(score: number, h: HealthThresholds = DEFAULT_THRESHOLDS): Status {

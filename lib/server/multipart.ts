@@ -18,9 +18,9 @@ export interface MultipartFile {
  * Every failure reaches `handle` through its body stream or ends this promise: a request cut off
  * mid-body destroys the file stream with an error (so the handler removes its temporary file), and
  * no stream is left without an error listener (a dropped client never becomes an uncaught
- * exception). When the handler refuses the file early, the rest of the body is read and dropped
- * before the answer goes out (for at most DRAIN_MS): a browser or a script still sending would
- * otherwise see a reset connection instead of the reason.
+ * exception). When the handler refuses the file early, the rest of the body is read as raw bytes
+ * and dropped before the answer goes out (for at most DRAIN_MS): a browser or a script still
+ * sending would otherwise see a reset connection instead of the reason.
  */
 const DRAIN_MS = 30_000;
 
@@ -97,10 +97,13 @@ export function readMultipartFile<T>(
       handled.then(
         (v) => finish(true, v),
         (e: unknown) => {
-          // A consumer that stopped early may still hold a 'readable' listener, which keeps
-          // resume() from flowing: drop it, then read and discard the rest.
+          // Read and discard the rest as raw bytes, no longer parsed as multipart: a refused
+          // upload (server busy, too many at once) should cost the server's thread next to
+          // nothing. The file stream is ended for a consumer that still holds it.
+          source.unpipe(bb);
           stream.removeAllListeners("readable");
           if (!stream.destroyed) stream.resume();
+          source.resume();
           void drained.then(() => finish(false, e));
         },
       );

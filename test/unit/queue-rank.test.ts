@@ -50,6 +50,26 @@ describe("rankQueue", () => {
     expect(q[3]?.status).toBe("watch");
     expect(q[3]?.reasons[0]).toMatch(/used 120 % of its life limit/);
   });
+  it("of two grounded airframes the lower score comes first, however many reasons the other has", () => {
+    // Below 10 the score moves in tenths (lib/health/thresholds.ts): 0.7 against 2.5 must still
+    // decide before a second part past its life does.
+    const grounded = { ...LATEST, status: "ground" as const };
+    const q = rankQueue([
+      {
+        ...base,
+        id: "b",
+        name: "B",
+        latest: { ...grounded, score: 2.5 },
+        partsPastLife: [
+          { position: "props", what: "prop-set Tri", fraction: 1.2 },
+          { position: "motor 1", what: "stator", fraction: 1.1 },
+        ],
+      },
+      { ...base, id: "a", name: "A", latest: { ...grounded, score: 0.7 } },
+    ]);
+    expect(q.map((e) => e.name)).toEqual(["A", "B"]);
+  });
+
   it("a minor crash asks for an inspection, and no baseline is said plainly", () => {
     const [entry] = rankQueue([
       {

@@ -32,7 +32,7 @@ describe("the score scale", () => {
     expect(scoreForPoints(90)).toBe(10);
     // Continuous at the joint, same slope: 1 point more costs about 1 point of score there.
     expect(scoreForPoints(91)).toBeCloseTo(9.1, 1);
-    const totals = [95, 100, 110, 125, 150, 200, 300];
+    const totals = [95, 100, 110, 125, 150, 200, 300, 400, 480, 800, 1500];
     const scores = totals.map(scoreForPoints);
     for (let i = 1; i < scores.length; i++) expect(scores[i] ?? 0).toBeLessThan(scores[i - 1] ?? 0);
     expect(Math.min(...scores)).toBeGreaterThan(0);
@@ -41,6 +41,7 @@ describe("the score scale", () => {
   it("is shown whole above 10 and with one decimal below", () => {
     expect(scoreText(73)).toBe("73");
     expect(scoreText(4.2)).toBe("4.2");
+    expect(scoreText(0.734)).toBe("0.73");
     expect(scoreText(null)).toBe("–");
     expect(scoreText(Number.NaN)).toBe("–");
   });

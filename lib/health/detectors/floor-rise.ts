@@ -109,12 +109,15 @@ const BEARINGS_OR_PROPS = `: ${ADVICE.bearingsOrProps}`;
  * over the octave above it. Its points stay, its sentence points at the frame. A motor named by
  * its own tones still comes first.
  */
-export function softFrameFloor(findings: readonly Finding[]): Finding[] {
-  const dropped = new Set(
-    findings
-      .filter((f) => f.kind === "mode-shift" && (f.shiftPct ?? 0) < 0)
-      .map((f) => Math.round(f.baselineFreqHz ?? f.freqHz)),
-  ).size;
+export function softFrameFloor(findings: readonly Finding[], sameFraction: number): Finding[] {
+  // One mode seen on two axes (a roll and a pitch peak a few hertz apart) is one mode.
+  const modes: number[] = [];
+  for (const f of findings) {
+    if (f.kind !== "mode-shift" || !((f.shiftPct ?? 0) < 0)) continue;
+    const at = f.baselineFreqHz ?? f.freqHz;
+    if (!modes.some((m) => Math.abs(m - at) <= sameFraction * at)) modes.push(at);
+  }
+  const dropped = modes.length;
   if (dropped < 2) return [...findings];
   return findings.map((f) =>
     f.kind === "floor-rise" && f.motor === undefined && f.text.endsWith(BEARINGS_OR_PROPS)

@@ -367,7 +367,10 @@ export function excessSigma(standings: readonly OrderStanding[]): (s: OrderStand
     if (sigma === undefined) {
       const { pool, spread } = poolOf(s.motor);
       const order = pool.filter((y) => y.x.order === s.order && y.x.side === s.side);
-      sigma = Math.max(spread, robustSigma(order.map((y) => y.excessDb)));
+      // Too few other motors with this order (a robust sigma of nothing is NaN): the pool's
+      // spread over every order is the yardstick.
+      const own = order.length > 0 ? robustSigma(order.map((y) => y.excessDb)) : Number.NaN;
+      sigma = Number.isFinite(own) ? Math.max(spread, own) : spread;
       perKey.set(key, sigma);
     }
     return sigma;
