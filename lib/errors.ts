@@ -141,7 +141,7 @@ export class TooManyRequestsError extends domainError(
 
 /**
  * The server is taking as many uploads as it can at once (503 with Retry-After, RFC 9110 §15.6.4):
- * nothing was read or kept, and the same request a moment later will be taken.
+ * the file was neither parsed nor kept, and the same request a moment later will be taken.
  */
 export class ServerBusyError extends domainError("server-busy", 503, "ServerBusyError") {
   readonly retryAfterSeconds: number;

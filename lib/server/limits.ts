@@ -22,7 +22,8 @@ export function uploadsPerCaller(): number {
  * (at least 2). Every upload's bytes pass the server's one thread (multipart, SHA-256, the write)
  * and the one check thread, so more at once only share the same cores more thinly: each crawls,
  * and reads of the queue wait behind them. Past this an upload is told to come back (503 with
- * Retry-After) before a byte of it is read; the upload page retries by itself.
+ * Retry-After) before its file is parsed or stored (the rest of the body is drained as raw bytes,
+ * so the client gets the answer); the upload page retries by itself.
  */
 export function uploadsAtOnce(): number {
   return config().uploadsAtOnce;
