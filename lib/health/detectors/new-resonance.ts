@@ -79,27 +79,13 @@ export function newPeaks(ctx: DetectorContext): Finding[] {
     );
     for (const p of tonal) {
       // The largest excess within ±1 bin of the log's peak.
-      let best = Number.NaN;
-      let at = p.bin;
-      for (let k = p.bin - 1; k <= p.bin + 1; k++) {
-        const e = x.excess[k] ?? Number.NaN;
-        if (Number.isFinite(e) && !(e <= best)) {
-          best = e;
-          at = k;
-        }
-      }
+      const at = largestNear(x.excess, p.bin);
+      const best = x.excess[at] ?? Number.NaN;
       const s = x.sigma[at] ?? Number.NaN;
       // The largest prominence gain within ±1 bin: how much more the log's spectrum peaks there
       // than the baseline's, each above its own local background.
-      let gain = Number.NaN;
-      let gainAt = at;
-      for (let k = p.bin - 1; k <= p.bin + 1; k++) {
-        const g = x.gain[k] ?? Number.NaN;
-        if (Number.isFinite(g) && !(g <= gain)) {
-          gain = g;
-          gainAt = k;
-        }
-      }
+      const gainAt = largestNear(x.gain, p.bin);
+      const gain = x.gain[gainAt] ?? Number.NaN;
       if (
         !Number.isFinite(best) ||
         !(best >= h.minSigma * s) ||
@@ -135,7 +121,7 @@ export function newPeaks(ctx: DetectorContext): Finding[] {
       // other axes too, where it stands clear of their scatter.
       for (const [other, y] of byAxis) {
         if (other === axis) continue;
-        const k = strongestExcessNear(y, at);
+        const k = largestNear(y.excess, at);
         const e = y.excess[k] ?? Number.NaN;
         if (!(e >= h.minSigma * (y.sigma[k] ?? Number.NaN))) continue;
         const also = sighting(ctx, other, y, k, p.freqHz);
@@ -368,12 +354,16 @@ function isKnown(ctx: DetectorContext, freqHz: number): boolean {
   );
 }
 
-/** The bin within ±1 of `at` where the axis's excess over the baseline is largest. */
-function strongestExcessNear(x: Excess, at: number): number {
+/** The bin within ±1 of `at` with the largest finite value (the first of equals), or `at`. */
+function largestNear(values: Float64Array, at: number): number {
   let best = at;
+  let top = Number.NaN;
   for (let k = at - 1; k <= at + 1; k++) {
-    const e = x.excess[k] ?? Number.NaN;
-    if (Number.isFinite(e) && !((x.excess[best] ?? Number.NaN) >= e)) best = k;
+    const v = values[k] ?? Number.NaN;
+    if (Number.isFinite(v) && !(v <= top)) {
+      top = v;
+      best = k;
+    }
   }
   return best;
 }
