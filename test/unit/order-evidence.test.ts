@@ -8,29 +8,12 @@ import {
 } from "@/lib/health/detectors/order-evidence";
 import { robustSigma } from "@/lib/health/detectors/shared";
 import { DEFAULT_THRESHOLDS } from "@/lib/health/thresholds";
+import { gaussian, mulberry32 } from "@/lib/demo/random";
 import { AXES } from "@/lib/logs/columns";
 
 // The yardstick a motor's rise over the other motors is judged by (excessSigma), on generated
 // standings: four motors, whole orders 1–4 and their sidebands, three axes, each rise over its own
 // baseline drawn from a seeded normal of 1 dB (the healthy wander), expected scatter 1 dB.
-
-/** Seeded uniform in [0, 1): mulberry32 (Tommy Ettinger's public-domain generator). */
-function uniform(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
-
-/** Standard normal deviates by Box–Muller (Box & Muller 1958). */
-function normal(seed: number): () => number {
-  const u = uniform(seed);
-  return () => Math.sqrt(-2 * Math.log(1 - u())) * Math.cos(2 * Math.PI * u());
-}
 
 const MOTORS = [1, 2, 3, 4];
 const ORDERS = [1, 2, 3, 4];
@@ -40,7 +23,8 @@ function standings(
   seed: number,
   extra: (motor: number, order: number, side: boolean) => number = () => 0,
 ): OrderStanding[] {
-  const g = normal(seed);
+  const rand = mulberry32(seed);
+  const g = () => gaussian(rand);
   const raw: RawStanding[] = [];
   for (const motor of MOTORS)
     for (const order of ORDERS)
