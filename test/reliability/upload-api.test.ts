@@ -166,6 +166,29 @@ describe("good uploads", () => {
   });
 });
 
+/** Uploads whose bodies trickle in (16 KiB every 150 ms), so that they hold their slots a while. */
+function slowUploads(seeds: number[], tokenFor: (i: number) => string, fileName: string) {
+  return seeds.map((seed, i) =>
+    upload(app.url, good(seed), {
+      token: tokenFor(i),
+      fileName,
+      chunkBytes: 16 * 1024,
+      pauseMs: 150,
+    }),
+  );
+}
+
+/**
+ * Uploads streaming now, once `n` are (each running upload has its temporary file) or after 60 s.
+ */
+async function streamingWhen(n: number): Promise<number> {
+  const streaming = () =>
+    filesUnder(join(app.dataDir, "uploads")).filter((f) => f.includes("incoming-")).length;
+  const deadline = Date.now() + 60_000;
+  while (streaming() < n && Date.now() < deadline) await new Promise((r) => setTimeout(r, 50));
+  return streaming();
+}
+
 describe("aborted and excess uploads", () => {
   it("an upload cut off mid-body leaves no temporary file, no record and no uncaught exception", async () => {
     const before = counts();
@@ -191,24 +214,11 @@ describe("aborted and excess uploads", () => {
   });
 
   it("a fifth upload at once from one token is refused with 429 and Retry-After; the others go through", async () => {
-    const bytes = [41, 42, 43, 44, 45].map((s) => good(s));
     // Four slow uploads hold their slots (the body trickles in), the fifth arrives meanwhile.
-    const slow = bytes.slice(0, 4).map((b) =>
-      upload(app.url, b, {
-        token,
-        fileName: "hv-05-slow.csv",
-        chunkBytes: 16 * 1024,
-        pauseMs: 150,
-      }),
-    );
-    // Each running upload has its temporary file: wait until all four are streaming.
-    const streaming = () =>
-      filesUnder(join(app.dataDir, "uploads")).filter((f) => f.includes("incoming-")).length;
-    const deadline = Date.now() + 60_000;
-    while (streaming() < 4 && Date.now() < deadline) await new Promise((r) => setTimeout(r, 50));
+    const slow = slowUploads([41, 42, 43, 44], () => token, "hv-05-slow.csv");
     // On a loaded machine the four may take long to start; the check means nothing until they have.
-    expect(streaming()).toBe(4);
-    const fifth = await upload(app.url, bytes[4] ?? Buffer.alloc(0), {
+    expect(await streamingWhen(4)).toBe(4);
+    const fifth = await upload(app.url, good(45), {
       token,
       fileName: "hv-05-fifth.csv",
     });
@@ -229,20 +239,12 @@ describe("aborted and excess uploads", () => {
     // Two tokens, three slow uploads each: six streaming, the server's limit, and under each
     // caller's own limit of four.
     const tokens = [addToken(app.dataDir), addToken(app.dataDir)];
-    const slow = [51, 52, 53, 54, 55, 56].map((seed, i) =>
-      upload(app.url, good(seed), {
-        token: tokens[i % 2] ?? "",
-        fileName: "hv-05-busy.csv",
-        chunkBytes: 16 * 1024,
-        pauseMs: 150,
-      }),
+    const slow = slowUploads(
+      [51, 52, 53, 54, 55, 56],
+      (i) => tokens[i % 2] ?? "",
+      "hv-05-busy.csv",
     );
-    const streaming = () =>
-      filesUnder(join(app.dataDir, "uploads")).filter((f) => f.includes("incoming-")).length;
-    const deadline = Date.now() + 60_000;
-    while (streaming() < SERVER_WIDE && Date.now() < deadline)
-      await new Promise((r) => setTimeout(r, 50));
-    expect(streaming()).toBe(SERVER_WIDE);
+    expect(await streamingWhen(SERVER_WIDE)).toBe(SERVER_WIDE);
     const third = addToken(app.dataDir);
     const busy = await upload(app.url, good(57), { token: third, fileName: "hv-05-busy-7.csv" });
     expect(busy.status).toBe(503);
