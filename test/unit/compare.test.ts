@@ -210,9 +210,13 @@ describe("new resonance", () => {
     expect(Math.abs((f?.shiftPct ?? 0) + 15)).toBeLessThan(0.5);
   });
 
-  it("a mode lowered 15 % is paired with its new peak, not with a much weaker bump left near its old place", () => {
-    // A bump 6 dB below the mode's level at 295 Hz (−1.7 %) is close, but a mode that stayed would
+  it("a mode lowered 15 % is reported as that drop, not as a much weaker bump left near its old place", () => {
+    // A bump 8 dB below the mode's level at 296 Hz (−1.3 %) is close, but a mode that stayed would
     // keep about its level; the peak at 255 Hz that stands as high as the mode did is the mode.
+    // A behaviour check: on these clean spectra the new-peak search's "mode that left its place"
+    // reports the same drop even without the tracking's level term (mode-shift.ts,
+    // PAIRING_COST), so this passes with or without it; that term's evidence is the validation
+    // matrix (cracks at severity 3 not fully right 8 → 4 of 12).
     const a = assess({
       bumps: [
         { ...MODE, freqHz: 255, widthHz: 6 },
