@@ -1,12 +1,22 @@
 import { axisRecord, type PerAxis } from "../logs/columns";
 import type { SampleBlock } from "../logs/read-log";
 import { toDb } from "../signal/bands";
+import { Biquad } from "../signal/biquad";
 import { RunningMedian } from "../signal/running-median";
 import { round } from "../signal/stats";
 import { MASK_REASONS, OrderTracker, type MaskReason, type OrderBlock } from "./order-tracker";
 import { throttleBandOf, type AnalysisPlan } from "./plan";
 import { RPM_MAP, rpmBinOf, TELEMETRY_LIMITS } from "./settings";
 import type { MotorInBand, MotorSummary, MotorTrackPoint, OrderLevel } from "./types";
+
+/** Corner of the order tracking's high-pass, as a fraction of the lowest analysed frequency. */
+const HIGH_PASS_FRACTION = 0.25;
+
+const axisArrays = (n: number): PerAxis<Float64Array> => [
+  new Float64Array(n),
+  new Float64Array(n),
+  new Float64Array(n),
+];
 
 /** Points of a motor's track in the results; longer tracks are averaged down to this. */
 const MAX_TRACK_POINTS = 300;
@@ -82,6 +92,20 @@ export class OrderBands {
   /** Index of the 1× order among the tracked ones (its level is the track's). */
   private readonly one: number;
   private blocksSeen = 0;
+  /**
+   * The gyro the tracker demodulates, high-passed. ESC telemetry is held and stepped, so the
+   * angle integrated from it bends at every step, and a manoeuvre (hundreds of deg/s at a few
+   * hertz, 50–60 dB above a notched order) demodulated by that bent angle no longer cancels: it
+   * read 13 dB above a real 1 deg/s tone beside the orders (test/unit/order-bands.test.ts), and
+   * on the simulator's flights it raised the notched 1× by some 25 dB and every tone beside an
+   * order by 30–40 dB, where bent props and worn bearings are to be seen. Two Butterworth
+   * sections at HIGH_PASS_FRACTION of the lowest analysed frequency (10 Hz) change an order at
+   * 40 Hz or above by under 0.04 dB and take 25 dB off at 5 Hz, 55 dB at 2 Hz.
+   */
+  private readonly highPass: PerAxis<[Biquad, Biquad]>;
+  private filtered: PerAxis<Float64Array> = axisArrays(0);
+  /** Whether the high-pass runs on from the previous block (false after a gap). */
+  private settled = false;
 
   constructor(plan: AnalysisPlan) {
     this.plan = plan;
@@ -101,6 +125,13 @@ export class OrderBands {
       rpmBins: new Map(),
     }));
     this.one = plan.orders.findIndex((o) => o.order === 1);
+    const corner = HIGH_PASS_FRACTION * plan.settings.minFreqHz;
+    const section = () => Biquad.highPass(corner, Math.SQRT1_2, plan.sampleRateHz);
+    this.highPass = [
+      [section(), section()],
+      [section(), section()],
+      [section(), section()],
+    ];
     this.tracker = new OrderTracker(
       plan.sampleRateHz,
       motors,
@@ -115,10 +146,24 @@ export class OrderBands {
   /** No order block may straddle a gap. */
   gap(): void {
     this.tracker.reset();
+    this.settled = false;
   }
 
   push(block: SampleBlock): void {
-    this.tracker.push(block.length, block.timeS, block.gyro, block.throttle, block.rpm);
+    const n = block.length;
+    if (this.filtered[0].length < n) this.filtered = axisArrays(n);
+    for (const a of [0, 1, 2] as const) {
+      const x = block.gyro[a];
+      const y = this.filtered[a];
+      const [first, second] = this.highPass[a];
+      if (this.settled === false && n > 0) {
+        first.settle(x[0] ?? 0);
+        second.settle(0);
+      }
+      for (let i = 0; i < n; i++) y[i] = second.step(first.step(x[i] ?? 0));
+    }
+    if (n > 0) this.settled = true;
+    this.tracker.push(n, block.timeS, this.filtered, block.throttle, block.rpm);
   }
 
   private add(b: OrderBlock): void {

@@ -134,11 +134,23 @@ export interface MotorSummary {
 /**
  * 2: signal checks per axis, rpm masking, more motor orders, per-bin scatter per throttle band.
  * Every field added in 2 is optional in the type, so analyses stored as 1 still decode.
+ * 3: motor orders measured on the high-passed gyro (lib/analysis/order-bands.ts). Same fields,
+ * but the levels of earlier analyses read higher, so the two are never compared with each other
+ * ({@link orderGeneration}).
  */
-export const ANALYSIS_VERSION = 2;
+export const ANALYSIS_VERSION = 3;
+
+/**
+ * Which way an analysis of `version` measured its motor orders: 1 before version 3 (on the gyro
+ * as logged, where a manoeuvre leaked into them), 2 from version 3 on. Order levels of different
+ * generations are not comparable.
+ */
+export function orderGeneration(version: number): 1 | 2 {
+  return version >= 3 ? 2 : 1;
+}
 
 export interface LogAnalysis {
-  version: 1 | 2;
+  version: 1 | 2 | 3;
   sampleRateHz: number;
   durationS: number;
   samples: number;

@@ -1,5 +1,5 @@
 import { DEFAULT_ANALYSIS } from "../analysis/settings";
-import type { LogAnalysis, RpmBinLevels } from "../analysis/types";
+import { orderGeneration, type LogAnalysis, type RpmBinLevels } from "../analysis/types";
 import { InputError } from "../errors";
 import { AXES, type Axis } from "../logs/columns";
 import type { FrequencyBand } from "../signal/bands";
@@ -88,12 +88,17 @@ export interface BaselineRpmBin {
  * 2: modes per band, every order with sidebands, per-bin log spread, recurring known peaks,
  * unusable axes and untrusted motors. Fields added in 2 are optional, so stored baselines of
  * version 1 still decode (their known-peak list is every peak they saw: set the baseline again
- * to get the recurring ones).
+ * to get the recurring ones). 3: the order generation of its logs.
  */
-export const BASELINE_VERSION = 2;
+export const BASELINE_VERSION = 3;
 
 export interface Baseline {
-  version: 1 | 2;
+  version: 1 | 2 | 3;
+  /**
+   * How its logs' motor orders were measured (version 3; see orderGeneration): 1 or 2, or 0 when
+   * its logs mix both, whose levels cannot be pooled. Absent: built before, from generation 1.
+   */
+  orderGeneration?: 0 | 1 | 2;
   logs: number;
   sampleRateHz: number;
   binHz: number;
@@ -133,6 +138,13 @@ const MODE_CLUSTER_FRACTION = 0.04;
  * Builds a baseline from analyses of known-good logs of one airframe. Throws InputError when
  * given none or when the logs were analysed with different band layouts.
  */
+/** The order generation its logs share, or 0 when they mix two. */
+function baselineOrderGeneration(analyses: readonly LogAnalysis[]): 0 | 1 | 2 {
+  const generations = new Set(analyses.map((a) => orderGeneration(a.version)));
+  const [only] = generations;
+  return generations.size === 1 && only !== undefined ? only : 0;
+}
+
 export function buildBaseline(analyses: readonly LogAnalysis[]): Baseline {
   const first = analyses[0];
   if (!first) throw new InputError("a baseline needs at least one known-good log");
@@ -281,6 +293,7 @@ export function buildBaseline(analyses: readonly LogAnalysis[]): Baseline {
 
   return {
     version: BASELINE_VERSION,
+    orderGeneration: baselineOrderGeneration(analyses),
     unusableAxes,
     untrustedMotors: motors.filter((motor) =>
       analyses.some(

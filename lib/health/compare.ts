@@ -1,5 +1,5 @@
 import { DEFAULT_ANALYSIS, floorCorner, throttleBandLabel } from "../analysis/settings";
-import type { LogAnalysis } from "../analysis/types";
+import { orderGeneration, type LogAnalysis } from "../analysis/types";
 import { AXES, type Axis } from "../logs/columns";
 import type { Baseline } from "./baseline";
 import { bandRises } from "./detectors/band-rise";
@@ -178,6 +178,22 @@ function untrustedMotors(
   notCompared: NotCompared[],
 ): Set<number> {
   const out = new Set<number>();
+  // Orders measured two ways (before and after analysis version 3) differ by tens of dB.
+  const logGeneration = orderGeneration(log.version);
+  const baseGeneration = baseline.orderGeneration ?? 1;
+  if (log.motors.length > 0 && baseline.motors.length > 0 && logGeneration !== baseGeneration) {
+    for (const m of baseline.motors) out.add(m);
+    notCompared.push({
+      what: "motor orders",
+      reason:
+        baseGeneration === 0
+          ? "the baseline's logs were analysed by different versions of heatcheck; analyse them again, then set the baseline again, to compare motor orders"
+          : logGeneration > baseGeneration
+            ? "the baseline's logs were analysed by an earlier version of heatcheck, which measured motor orders another way; analyse them again, then set the baseline again, to compare them"
+            : "this log was analysed by an earlier version of heatcheck, which measured motor orders another way; analyse it again to compare them",
+    });
+    return out;
+  }
   for (const m of log.motors) {
     const share = m.maskedShare ?? 0;
     if (share <= h.maxMaskedShare) continue;

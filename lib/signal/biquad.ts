@@ -1,6 +1,7 @@
 /**
  * Second-order IIR sections (R. Bristow-Johnson's audio EQ cookbook forms), direct form I.
- * Used by the demo generator to shape noise and to model frame resonances.
+ * Used by the demo generator to shape noise and to model frame resonances, and by the order
+ * tracking to keep manoeuvres out of the motor orders.
  */
 export class Biquad {
   private b0: number;
@@ -34,6 +35,24 @@ export class Biquad {
     const alpha = Math.sin(w) / (2 * q);
     const c = Math.cos(w);
     return new Biquad((1 - c) / 2, 1 - c, (1 - c) / 2, 1 + alpha, -2 * c, 1 - alpha);
+  }
+
+  /** High-pass; q = 1/√2 gives a Butterworth section. */
+  static highPass(cornerHz: number, q: number, sampleRateHz: number): Biquad {
+    const w = (2 * Math.PI * cornerHz) / sampleRateHz;
+    const alpha = Math.sin(w) / (2 * q);
+    const c = Math.cos(w);
+    return new Biquad((1 + c) / 2, -(1 + c), (1 + c) / 2, 1 + alpha, -2 * c, 1 - alpha);
+  }
+
+  /**
+   * Sets the state as if the input had been `x` for ever: a filter started on a signal that
+   * does not begin at 0 rings less. Exact for the high-pass (its output for a constant is 0).
+   */
+  settle(x: number): void {
+    const dcGain = (this.b0 + this.b1 + this.b2) / (1 + this.a1 + this.a2);
+    this.x1 = this.x2 = x;
+    this.y1 = this.y2 = x * dcGain;
   }
 
   step(x: number): number {

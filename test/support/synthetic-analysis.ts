@@ -1,10 +1,11 @@
 import { bandsBelow, DEFAULT_ANALYSIS, rpmBinOf, trackedOrders } from "@/lib/analysis/settings";
-import type {
-  LogAnalysis,
-  MotorInBand,
-  RpmBinLevels,
-  ThrottleBandAxis,
-  ThrottleBandResult,
+import {
+  ANALYSIS_VERSION,
+  type LogAnalysis,
+  type MotorInBand,
+  type RpmBinLevels,
+  type ThrottleBandAxis,
+  type ThrottleBandResult,
 } from "@/lib/analysis/types";
 import type { Axis } from "@/lib/logs/columns";
 import type { SpectralPeak } from "@/lib/signal/peaks";
@@ -192,7 +193,7 @@ export function syntheticAnalysis(spec: SyntheticSpec = {}): LogAnalysis {
     };
   });
   return {
-    version: 2,
+    version: ANALYSIS_VERSION,
     sampleRateHz,
     durationS: (segments * nperseg) / 2 / sampleRateHz,
     samples: (segments * nperseg) / 2,

@@ -293,6 +293,32 @@ describe("motor orders", () => {
     expect(f.cause).toBe("prop");
   });
 
+  it("orders measured another way (an analysis before version 3) are not compared, and the log says so", () => {
+    // Before version 3 the orders were measured on the unfiltered gyro and read tens of dB higher
+    // (lib/analysis/types.ts, orderGeneration): a bent prop against such a baseline is no finding,
+    // nor a false one, until the baseline's logs are analysed again.
+    const old = buildBaseline([
+      { ...syntheticAnalysis({ bumps: [MODE] }), version: 2 },
+      { ...syntheticAnalysis({ bumps: [MODE] }), version: 2 },
+    ]);
+    expect(old.orderGeneration).toBe(1);
+    const a = compareWithBaseline(syntheticAnalysis({ bumps: [MODE], orderDb: bent }), old);
+    expect(a.findings).toEqual([]);
+    expect(a.notCompared.map((n) => n.what)).toEqual(["motor orders"]);
+    expect(a.notCompared[0]?.reason).toContain("analyse them again");
+    // A baseline of mixed logs cannot pool its orders either.
+    const mixed = buildBaseline([
+      { ...syntheticAnalysis({ bumps: [MODE] }), version: 2 },
+      syntheticAnalysis({ bumps: [MODE] }),
+    ]);
+    expect(mixed.orderGeneration).toBe(0);
+    const b = compareWithBaseline(syntheticAnalysis({ bumps: [MODE], orderDb: bent }), mixed);
+    expect(b.findings).toEqual([]);
+    expect(b.notCompared.map((n) => n.what)).toEqual(["motor orders"]);
+    // The same log against a baseline of its own generation names the motor (the first test).
+    expect(baseline.orderGeneration).toBe(2);
+  });
+
   it("names the motor's position when positions are given", () => {
     const f = only(assess({ orderDb: bent }, MOTOR_POSITIONS));
     expect(f.text.startsWith("motor 3 (rear-right) vibrates")).toBe(true);
