@@ -5,7 +5,7 @@ import type { Baseline } from "./baseline";
 import { bandRises } from "./detectors/band-rise";
 import type { DetectorContext, MatchedBand } from "./detectors/context";
 import { floorRises, softFrameFloor } from "./detectors/floor-rise";
-import { modeShifts } from "./detectors/mode-shift";
+import { deepestDropPerMode, modeShifts } from "./detectors/mode-shift";
 import { motorOrders } from "./detectors/motor-orders";
 import { newPeaks } from "./detectors/new-resonance";
 import { orderEvidence } from "./detectors/order-evidence";
@@ -104,7 +104,7 @@ export function compareWithBaseline(
   const found: Finding[] = [...shifts, ...orders, ...floor];
   found.push(...newPeaks({ ...ctx, found: [...found] }));
   found.push(...bandRises({ ...ctx, found: [...found] }));
-  const findings = softFrameFloor(found, h.samePeakFraction);
+  const findings = softFrameFloor(deepestDropPerMode(found), h.samePeakFraction);
   // Worst first; the sort is stable, so equal points keep the order above.
   findings.sort((a, b) => b.points - a.points);
 

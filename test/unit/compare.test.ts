@@ -228,6 +228,24 @@ describe("new resonance", () => {
     expect(Math.abs((f?.shiftPct ?? 0) + 15)).toBeLessThan(0.5);
   });
 
+  it("a mode the tracking followed only part of the way down is reported at the peak below, where it went", () => {
+    // The mode (15 dB at 300 Hz) is now a broad peak at 255 Hz (−15 %); a 12 dB bump at 285 Hz
+    // wins the tracking's pairing (closer, and nearly as high), which alone would read −5 %. The
+    // peak below, where the mode left its place, is the same mode further down: one finding,
+    // the deeper drop, and no new peak.
+    const a = assess({
+      bumps: [
+        { ...MODE, freqHz: 255, widthHz: 6 },
+        { axis: "roll", freqHz: 285, heightDb: 12 },
+      ],
+    });
+    const shifts = a.findings.filter((x) => x.kind === "mode-shift");
+    expect(shifts).toHaveLength(1);
+    expect(shifts[0]?.baselineFreqHz).toBe(300);
+    expect(Math.abs((shifts[0]?.shiftPct ?? 0) + 15)).toBeLessThan(0.5);
+    expect(a.findings.filter((x) => x.kind === "new-peak")).toEqual([]);
+  });
+
   it("a new tone is named on the axis it adds most power to, even where it is no local peak", () => {
     // Pitch shows the tone as a narrow peak 6 dB high; roll, at the same frequency, rises 14 dB
     // in a bump too broad to stand above its own local background (as a tone on a frame mode's

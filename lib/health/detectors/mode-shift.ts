@@ -204,3 +204,19 @@ function modeLost(ctx: DetectorContext, m: BaselineMode, bandsExpected: number):
     text: `${m.axis} mode at ${Math.round(m.freqHz)} Hz, in every baseline log, is gone: no peak from ${Math.round(m.freqHz * MODE_SEARCH.below)} to ${Math.round(m.freqHz * MODE_SEARCH.above)} Hz in any compared throttle band. ${ADVICE.modeLost}`,
   };
 }
+
+/**
+ * One mode-shift finding per baseline mode and axis: where the tracking followed a mode part of
+ * the way down and the new-peak search found it further down (a peak below a mode that left its
+ * place), the deeper drop is the mode's; the other is dropped. Other findings pass unchanged.
+ */
+export function deepestDropPerMode(findings: readonly Finding[]): Finding[] {
+  const key = (f: Finding) => `${f.axis}/${f.baselineFreqHz ?? f.freqHz}`;
+  const deepest = new Map<string, Finding>();
+  for (const f of findings) {
+    if (f.kind !== "mode-shift") continue;
+    const old = deepest.get(key(f));
+    if (!old || (f.shiftPct ?? 0) < (old.shiftPct ?? 0)) deepest.set(key(f), f);
+  }
+  return findings.filter((f) => f.kind !== "mode-shift" || deepest.get(key(f)) === f);
+}
