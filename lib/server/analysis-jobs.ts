@@ -5,6 +5,7 @@ import { analysisPool } from "./analysis-pool";
 import { storeAssessment } from "./assessments";
 import { storedFileOf } from "./data-folder";
 import { db } from "./db";
+import { outdatedAnalyses, rebuildOutdatedBaselines } from "./engine-update";
 import { maxUploadBytes } from "./limits";
 import { isDiskFull } from "./storage-errors";
 import { decodeAnalysis, decodeBaseline } from "./stored";
@@ -159,18 +160,20 @@ async function storeResult(
       },
     });
     if (!airframeId) return;
+    // After an engine update, the baselines this log is part of may now be built again.
+    const rebuilt = await rebuildOutdatedBaselines(tx, logId);
     // The id alone: the stored JSON is large and needed only when the worker compared with another.
     const active = await tx.baseline.findFirst({
       ...activeBaselineFilter(airframeId),
       select: { id: true },
     });
     if (!active) return;
-    if (outcome.compared?.baselineId === active.id) {
+    if (outcome.compared?.baselineId === active.id && !rebuilt.includes(active.id)) {
       await storeAssessment(tx, logId, outcome.compared.assessment, active.id);
       return;
     }
     // The worker compared with the baseline that was active when the job started (or with none);
-    // another has been set meanwhile, so the comparison is made here with that one.
+    // another has been set meanwhile, or this one was built again, so the comparison is made here.
     const baseline = await tx.baseline.findFirst(activeBaselineFilter(airframeId));
     if (!baseline) return;
     const compared = compareWithPositions(
@@ -179,6 +182,19 @@ async function storeResult(
     );
     await storeAssessment(tx, logId, compared, baseline.id);
   });
+}
+
+/**
+ * Queues again, one after another, the analysed logs whose analysis an earlier engine made
+ * (called once when the server starts; see engine-update.ts). Their status stays "analysed",
+ * with the old verdict shown, until the new one is stored.
+ */
+export async function reanalyseOutdated(): Promise<{ queued: number; done: Promise<void> }> {
+  const ids = await outdatedAnalyses();
+  const done = (async () => {
+    for (const id of ids) await enqueueAnalysis(id);
+  })();
+  return { queued: ids.length, done };
 }
 
 /** Re-queues logs left pending by a stop (called once when the server starts). */

@@ -2,7 +2,7 @@ import "server-only";
 import { readdir, rm } from "node:fs/promises";
 import { join } from "node:path";
 import { config } from "@/lib/config";
-import { resumePendingAnalyses } from "./analysis-jobs";
+import { reanalyseOutdated, resumePendingAnalyses } from "./analysis-jobs";
 import { prepareDataFolder, storedPathOf, uploadsDir } from "./data-folder";
 import { db } from "./db";
 
@@ -14,7 +14,8 @@ export function shutdownGraceSeconds(): number {
 /**
  * What the server does once before it takes requests: the data folder made private, stale upload
  * temporaries swept, originals that no record names (a stop between storing and recording) removed,
- * pending analyses re-queued, and a bounded shutdown armed.
+ * pending analyses re-queued, analyses an earlier engine made queued again, and a bounded shutdown
+ * armed.
  */
 export async function startServer(): Promise<void> {
   const folder = await prepareDataFolder();
@@ -27,6 +28,9 @@ export async function startServer(): Promise<void> {
   if (orphans > 0) console.log(`heatcheck: removed ${orphans} stored files no log record names`);
   const n = await resumePendingAnalyses();
   if (n > 0) console.log(`heatcheck: resumed ${n} pending analyses`);
+  const { queued } = await reanalyseOutdated();
+  if (queued > 0)
+    console.log(`heatcheck: analysing ${queued} logs again with this version of the engine`);
   armBoundedShutdown();
 }
 
