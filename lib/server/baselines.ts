@@ -1,12 +1,13 @@
 import "server-only";
 import { InputError } from "@/lib/errors";
+import type { LogAnalysis } from "@/lib/analysis/types";
 import { buildBaseline, type Baseline } from "@/lib/health/baseline";
 import { compareWithPositions } from "@/lib/health/compare";
 import { actorRef, type Actor } from "@/lib/roles";
 import { airframeOfTeam } from "./airframes";
 import { storeAssessment } from "./assessments";
 import { audit } from "./audit";
-import { db } from "./db";
+import { db, type Tx } from "./db";
 import { assertRole } from "./authorize";
 import { decodeAnalysis, decodeBaseline } from "./stored";
 
@@ -57,24 +58,16 @@ export async function setBaseline(
         logs: { create: logs.map((l) => ({ logId: l.id })) },
       },
     });
-    const later = await tx.flightLog.findMany({
-      where: { airframeId: airframe.id, status: "analysed", flownAt: { gt: newest } },
-      include: { analysis: true },
-    });
-    for (const l of later) {
-      if (!l.analysis) continue;
-      const compared = compareWithPositions(decodeAnalysis(l.analysis.json), baseline);
-      await storeAssessment(tx, l.id, compared, created.id);
-    }
+    const later = await rescoreLaterLogs(tx, airframe.id, newest, baseline, created.id);
     await audit(
       tx,
       actor,
       "set baseline",
       "airframe",
       airframe.id,
-      `${logs.length} log(s): ${reason}; ${later.length} later log(s) re-scored`,
+      `${logs.length} log(s): ${reason}; ${later} later log(s) re-scored`,
     );
-    return { baseline: created, rescored: later.length };
+    return { baseline: created, rescored: later };
   });
 }
 
@@ -101,4 +94,31 @@ export async function activeBaseline(airframeId: string): Promise<{
         logIds: b.logs.map((l) => l.logId),
       }
     : null;
+}
+
+/**
+ * Scores every analysed log of the airframe flown after `newest` against `baseline` (stored as
+ * `baselineId`), skipping those `skip` says no to; returns how many were scored.
+ */
+export async function rescoreLaterLogs(
+  tx: Tx,
+  airframeId: string,
+  newest: Date,
+  baseline: Baseline,
+  baselineId: string,
+  skip: (logId: string, analysis: LogAnalysis) => boolean = () => false,
+): Promise<number> {
+  const later = await tx.flightLog.findMany({
+    where: { airframeId, status: "analysed", flownAt: { gt: newest } },
+    include: { analysis: true },
+  });
+  let scored = 0;
+  for (const l of later) {
+    if (!l.analysis) continue;
+    const analysis = decodeAnalysis(l.analysis.json);
+    if (skip(l.id, analysis)) continue;
+    await storeAssessment(tx, l.id, compareWithPositions(analysis, baseline), baselineId);
+    scored++;
+  }
+  return scored;
 }

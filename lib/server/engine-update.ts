@@ -2,8 +2,7 @@ import "server-only";
 import { existsSync } from "node:fs";
 import { ANALYSIS_VERSION, orderGeneration } from "@/lib/analysis/types";
 import { buildBaseline, BASELINE_VERSION } from "@/lib/health/baseline";
-import { compareWithPositions } from "@/lib/health/compare";
-import { storeAssessment } from "./assessments";
+import { rescoreLaterLogs } from "./baselines";
 import { storedFileOf } from "./data-folder";
 import { db, type Tx } from "./db";
 import { decodeAnalysis, decodeBaseline } from "./stored";
@@ -64,11 +63,17 @@ export async function rebuildOutdatedBaselines(tx: Tx, logId: string): Promise<s
   });
   const rebuilt: string[] = [];
   for (const { baselineId } of links) {
+    // Whether it is outdated first: the analyses are read only for a baseline to be rebuilt.
+    const head = await tx.baseline.findUnique({
+      where: { id: baselineId },
+      select: { json: true },
+    });
+    if (!head || !isOutdatedBaseline(head.json)) continue;
     const baseline = await tx.baseline.findUnique({
       where: { id: baselineId },
       include: { logs: { include: { log: { include: { analysis: true } } } } },
     });
-    if (!baseline || !isOutdatedBaseline(baseline.json)) continue;
+    if (!baseline) continue;
     const analyses = baseline.logs.map((b) =>
       b.log.analysis ? decodeAnalysis(b.log.analysis.json) : null,
     );
@@ -94,17 +99,15 @@ export async function rebuildOutdatedBaselines(tx: Tx, logId: string): Promise<s
       (t, b) => (b.log.flownAt > t ? b.log.flownAt : t),
       new Date(0),
     );
-    const later = await tx.flightLog.findMany({
-      where: { airframeId: baseline.airframeId, status: "analysed", flownAt: { gt: newest } },
-      include: { analysis: true },
-    });
-    for (const l of later) {
-      if (!l.analysis || l.id === logId) continue;
-      const analysis = decodeAnalysis(l.analysis.json);
-      // A log still waiting for its own new analysis is scored when that is stored.
-      if (analysis.version !== ANALYSIS_VERSION) continue;
-      await storeAssessment(tx, l.id, compareWithPositions(analysis, fresh), baseline.id);
-    }
+    // A log still waiting for its own new analysis is scored when that is stored.
+    await rescoreLaterLogs(
+      tx,
+      baseline.airframeId,
+      newest,
+      fresh,
+      baseline.id,
+      (id, analysis) => id === logId || analysis.version !== ANALYSIS_VERSION,
+    );
     rebuilt.push(baseline.id);
   }
   return rebuilt;
