@@ -1,5 +1,6 @@
 import type { PerAxis } from "../logs/columns";
 import { ComplexPowerSpectrum } from "../signal/fft";
+import { foldedHz } from "../signal/folding";
 import { makeWindow } from "../signal/windows";
 
 /**
@@ -68,6 +69,16 @@ export interface OrderBlock {
  * matrix, the exact sum named the right motor more often.
  */
 const LOBE_CORE_BINS = 0;
+
+/**
+ * A folded order is measured only this many Hann main-lobe half-widths (2/T each) away from every
+ * other order of its motor where that one shows: nearer, the two tones' lobes overlap and neither
+ * level is its own.
+ */
+const FOLD_CLEARANCE_MAIN_LOBES = 2;
+
+/** The highest order followed where it folds (see OrderTracker.measurable). */
+const MAX_FOLDED_ORDER = 2;
 
 /** Bits of a motor's telemetry flags in a block; stuck is judged at the block's end, across motors. */
 const FLAG = { zero: 1, range: 2, slew: 4 } as const;
@@ -419,8 +430,8 @@ export class OrderTracker {
         const p = powers[o];
         const side = sides[o];
         if (!p || !side) return;
-        const measured = f1 * q >= this.minHz && f1 * q <= this.maxHz;
         const whole = Number.isInteger(q);
+        const measured = this.measurable(f1, o);
         for (let a = 0; a < 3; a++) {
           p[a] = Number.NaN;
           side[a] = Number.NaN;
@@ -446,6 +457,33 @@ export class OrderTracker {
     this.onBlock(out);
     this.fill = 0;
     this.clear();
+  }
+
+  /**
+   * Whether order `o` of a motor turning at `rotationHz` is measured in this block: where its
+   * frequency lies in [minHz, maxHz]; or, for a whole order above the log's Nyquist frequency,
+   * where it folds (lib/signal/folding.ts) into that range clear of every other tracked order of
+   * the motor. Demodulating the samples at q times the motor's angle is coherent with the folded
+   * tone as with a direct one (the samples are the same numbers), so it reads its true level: in
+   * a 1 kHz log a bent prop's 2× (600–900 Hz) is still seen, where the flight controller's rpm
+   * notches took most of its 1×. Only 1× and 2× are followed there, the orders a mechanical
+   * fault raises (unbalance, a bent shaft or prop, looseness; common practice in machine
+   * vibration diagnosis). The blade pass and 4× have passed the low-passes tens of dB down and,
+   * folded, read mostly what lies where they land (a 1 kHz log's blade pass folds into the prop
+   * wash near 50 Hz); the order spectrum between the whole orders would read the frame's modes.
+   */
+  private measurable(rotationHz: number, o: number): boolean {
+    const q = this.orders[o] ?? 0;
+    const f = rotationHz * q;
+    if (f >= this.minHz && f <= this.maxHz) return true;
+    const fs = 1 / this.dt;
+    if (!Number.isInteger(q) || q > MAX_FOLDED_ORDER || f <= fs / 2) return false;
+    const at = foldedHz(f, fs);
+    if (at < this.minHz || at > this.maxHz) return false;
+    const clearance = FOLD_CLEARANCE_MAIN_LOBES * (2 / (this.blockLength * this.dt));
+    return this.orders.every(
+      (other, j) => j === o || Math.abs(foldedHz(rotationHz * other, fs) - at) >= clearance,
+    );
   }
 
   private clear(): void {

@@ -137,8 +137,10 @@ export interface MotorSummary {
  * 3: motor orders measured on the high-passed gyro (lib/analysis/order-bands.ts). Same fields,
  * but the levels of earlier analyses read higher, so the two are never compared with each other
  * ({@link orderGeneration}).
+ * 4: whole orders above the Nyquist frequency measured where they fold (lib/analysis/order-tracker.ts);
+ * orders measured before are measured the same way.
  */
-export const ANALYSIS_VERSION = 3;
+export const ANALYSIS_VERSION = 4;
 
 /**
  * Which way an analysis of `version` measured its motor orders: 1 before version 3 (on the gyro
@@ -150,7 +152,7 @@ export function orderGeneration(version: number): 1 | 2 {
 }
 
 export interface LogAnalysis {
-  version: 1 | 2 | 3;
+  version: 1 | 2 | 3 | 4;
   sampleRateHz: number;
   durationS: number;
   samples: number;

@@ -88,19 +88,24 @@ export interface BaselineRpmBin {
  * 2: modes per band, every order with sidebands, per-bin log spread, recurring known peaks,
  * unusable axes and untrusted motors. Fields added in 2 are optional, so stored baselines of
  * version 1 still decode (their known-peak list is every peak they saw: set the baseline again
- * to get the recurring ones). 3: the order generation of its logs.
+ * to get the recurring ones). 3: the order generation of its logs. 4: its logs' sample rates
+ * (orders above the Nyquist frequency are compared where they fold only against logs of the
+ * same rate).
  */
-export const BASELINE_VERSION = 3;
+export const BASELINE_VERSION = 4;
 
 export interface Baseline {
-  version: 1 | 2 | 3;
+  version: 1 | 2 | 3 | 4;
   /**
    * How its logs' motor orders were measured (version 3; see orderGeneration): 1 or 2, or 0 when
    * its logs mix both, whose levels cannot be pooled. Absent: built before, from generation 1.
    */
   orderGeneration?: 0 | 1 | 2;
   logs: number;
+  /** The lowest of its logs' sample rates. */
   sampleRateHz: number;
+  /** Each log's sample rate, Hz (version 4). */
+  logRatesHz?: number[];
   binHz: number;
   minFreqHz: number;
   /** Top of the range every baseline log covers. */
@@ -307,6 +312,7 @@ export function buildBaseline(analyses: readonly LogAnalysis[]): Baseline {
       : {}),
     logs: analyses.length,
     sampleRateHz,
+    logRatesHz: analyses.map((a) => a.sampleRateHz),
     binHz,
     minFreqHz: first.settings.minFreqHz,
     maxFreqHz,

@@ -2,6 +2,7 @@ import { rmSync } from "node:fs";
 import { Readable } from "node:stream";
 import { beforeAll, describe, expect, it } from "vitest";
 import { ANALYSIS_VERSION } from "@/lib/analysis/types";
+import { BASELINE_VERSION } from "@/lib/health/baseline";
 import { demoCsv } from "@/lib/demo/demo-csv";
 import type { DemoLogOptions } from "@/lib/demo/generator";
 import type { Actor, Role } from "@/lib/roles";
@@ -94,7 +95,7 @@ describe("start-up after an engine update", () => {
     expect(after.id).toBe(before.id);
     expect(after.reason).toBe("after build");
     const json = JSON.parse(after.json) as { version: number; orderGeneration: number };
-    expect(json.version).toBe(3);
+    expect(json.version).toBe(BASELINE_VERSION);
     expect(json.orderGeneration).toBe(2);
     const entry = await db.auditEntry.findFirst({ where: { action: "rebuild baseline" } });
     expect(entry?.entityId).toBe(airframeId);

@@ -1,8 +1,10 @@
 import { describe, expect, it } from "vitest";
 import {
+  comparableOrder,
   excessSigma,
   heldAgainstOthers,
   standsOut,
+  type OrderRange,
   type OrderStanding,
   type RawStanding,
 } from "@/lib/health/detectors/order-evidence";
@@ -92,5 +94,31 @@ describe("the yardstick of the rise over the other motors", () => {
       ),
     );
     expect(excessSigma(again)(s)).toBe(expected);
+  });
+});
+
+describe("which orders are compared (folding: sampling theorem, see folding.test.ts)", () => {
+  const range = (rates: number[] | undefined, fs = 1000): OrderRange => ({
+    sampleRateHz: fs,
+    baselineRatesHz: rates,
+    minFreqHz: 40,
+    maxHz: 0.45 * fs,
+  });
+
+  it("inside the common range always; above the log's Nyquist frequency only where it folds, against a baseline of the same rate", () => {
+    // 1 kHz log: 1× at 300 Hz is direct (300·1.03 ≤ 450).
+    expect(comparableOrder(range([2000, 2000]), 1, 300, 1.03)).toBe(true);
+    // 2× at 640 Hz folds to 360 Hz (618–659 Hz fold to 341–382 Hz, inside 40–450 Hz).
+    expect(comparableOrder(range([1000, 1000]), 2, 640, 1.03)).toBe(true);
+    // … but a baseline logged (partly) at another rate saw it directly, not folded onto another
+    // part of the frame's response; and a baseline built before version 4 does not say.
+    expect(comparableOrder(range([1000, 2000]), 2, 640, 1.03)).toBe(false);
+    expect(comparableOrder(range(undefined), 2, 640, 1.03)).toBe(false);
+    // Half orders are never compared folded; nor a range that straddles fs/2 or fs.
+    expect(comparableOrder(range([1000]), 2.5, 640, 1.03)).toBe(false);
+    expect(comparableOrder(range([1000]), 2, 505, 1.03)).toBe(false);
+    expect(comparableOrder(range([1000]), 2, 995, 1.03)).toBe(false);
+    // A fold that lands below the lowest analysed frequency (965–985 Hz fold to 15–35 Hz).
+    expect(comparableOrder(range([1000]), 2, 975, 1.01)).toBe(false);
   });
 });

@@ -199,3 +199,42 @@ describe("OrderTracker: levels of generated tones at known orders", () => {
     expect(mid.rotationHz[0]).toBeCloseTo(30, 9);
   });
 });
+
+describe("orders above the Nyquist frequency, where they fold (sampling theorem; see folding.test.ts)", () => {
+  it("a 2× tone above a 1 kHz log's Nyquist frequency reads its true level where it folds; the blade pass there is not measured", () => {
+    // 18 600 rpm: 310 Hz rotation; 2× at 620 Hz folds to 380 Hz in a 1 kHz log, 70 Hz clear of
+    // 1× (the tracker asks for two Hann main-lobe half-widths of a 0.256 s block, 2·2/0.256 =
+    // 15.6 Hz). Amplitude 2 deg/s: power 2 (deg/s)². A 1× of amplitude 1 and a blade pass (3×,
+    // 930 Hz, folding to 70 Hz) of amplitude 1 are in the same samples.
+    const { blocks, orders } = track(
+      1000,
+      2.048,
+      () => 18600,
+      (_t, [a = 0]) => Math.cos(a + 0.2) + 2 * Math.cos(2 * a + 0.3) + Math.cos(3 * a + 0.9),
+    );
+    const mid = blocks[3];
+    if (!mid) throw new Error("no block");
+    const at = (q: number) => mid.power[0]?.[orders.indexOf(q)]?.[0] ?? Number.NaN;
+    // 1 %, as for a direct tone: demodulating the samples at 2× the angle is coherent with them
+    // whatever frequency they show at.
+    expect(Math.abs(at(2) / 2 - 1)).toBeLessThan(0.01);
+    expect(Math.abs(at(1) / 0.5 - 1)).toBeLessThan(0.01);
+    // Folded, only 1× and 2× are followed: the blade pass is not measured (NaN), nor the half
+    // orders above fs/2.
+    expect(at(3)).toBeNaN();
+    expect(at(2.5)).toBeNaN();
+  });
+
+  it("a folded order too near another order of its motor is not measured", () => {
+    // 20 100 rpm: 335 Hz; 2× at 670 Hz folds to 330 Hz, 5 Hz from 1× (under 15.6 Hz).
+    const { blocks, orders } = track(
+      1000,
+      2.048,
+      () => 20100,
+      (_t, [a = 0]) => Math.cos(a) + Math.cos(2 * a),
+    );
+    const mid = blocks[3];
+    expect(mid?.power[0]?.[orders.indexOf(2)]?.[0]).toBeNaN();
+    expect(mid?.power[0]?.[orders.indexOf(1)]?.[0]).toBeGreaterThan(0);
+  });
+});

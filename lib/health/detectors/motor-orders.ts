@@ -1,3 +1,4 @@
+import { foldedHz } from "../../signal/folding";
 import { round } from "../../signal/stats";
 import type { Finding } from "../findings";
 import { motorNamed } from "../motor-positions";
@@ -13,6 +14,15 @@ function orderName(order: number, bladeCount: number): string {
   if (order === 1) return "its rotation rate";
   if (order === bladeCount) return `its blade-pass rate (${order}× its rotation)`;
   return `${order}× its rotation rate`;
+}
+
+/**
+ * For an order above the log's Nyquist frequency: where it shows in this log's spectrum, so that
+ * nobody looks for it at its own frequency (lib/signal/folding.ts).
+ */
+function foldedNote(freqHz: number, sampleRateHz: number): string {
+  if (freqHz <= sampleRateHz / 2) return "";
+  return `, above what a ${Math.round(sampleRateHz)} Hz log can show: it appears folded, near ${Math.round(foldedHz(freqHz, sampleRateHz))} Hz`;
 }
 
 /**
@@ -54,7 +64,7 @@ export function motorOrders(ctx: DetectorContext): Finding[] {
     const locked = risenHalfOrders(standings, motor, h);
     const rattle = halves.some((x) => !x.s.side) || locked.length > 0;
     if (rattle && s.order !== 1 && floor.some((x) => x.motor === motor)) continue;
-    const at = `${orderName(s.order, bladeCount)} (about ${Math.round(s.rotationHz * s.order)} Hz${s.order === 1 ? "" : `; it turns at ${Math.round(s.rotationHz)} Hz`})`;
+    const at = `${orderName(s.order, bladeCount)} (about ${Math.round(s.rotationHz * s.order)} Hz${s.order === 1 ? "" : `; it turns at ${Math.round(s.rotationHz)} Hz`}${foldedNote(s.rotationHz * s.order, ctx.log.sampleRateHz)})`;
     const tones = [...new Set([...halves.map((x) => x.s), ...locked].map(betweenName))]
       .slice(0, MAX_TONES_NAMED)
       .join(", ");

@@ -1,4 +1,5 @@
 import type { Axis } from "../../logs/columns";
+import { foldedHz, foldsWhole } from "../../signal/folding";
 import { mean, median } from "../../signal/stats";
 import type { HealthThresholds } from "../thresholds";
 import type { DetectorContext } from "./context";
@@ -63,6 +64,47 @@ export function orderEvidence(ctx: OrderInputs, excluded: ReadonlySet<number>): 
   };
 }
 
+/** What decides whether an order can be compared: the log's rate, the baseline's, the common range. */
+export interface OrderRange {
+  sampleRateHz: number;
+  /** Each baseline log's sample rate (absent in baselines built before version 4). */
+  baselineRatesHz: readonly number[] | undefined;
+  minFreqHz: number;
+  maxHz: number;
+}
+
+function orderRange(ctx: Pick<OrderInputs, "log" | "baseline" | "maxHz">): OrderRange {
+  return {
+    sampleRateHz: ctx.log.sampleRateHz,
+    baselineRatesHz: ctx.baseline.logRatesHz,
+    minFreqHz: ctx.baseline.minFreqHz,
+    maxHz: ctx.maxHz,
+  };
+}
+
+/**
+ * Whether an order at about `freqHz` (within the factor `margin` either way) is compared: inside
+ * the range both sides show; or, a whole order above the log's Nyquist frequency, where it folds
+ * (lib/signal/folding.ts), when the log and every baseline log were sampled at the same rate, so
+ * that the folded tone lands at the same frequency, among the same frame response, on both sides.
+ */
+export function comparableOrder(
+  range: OrderRange,
+  order: number,
+  freqHz: number,
+  margin: number,
+): boolean {
+  const { sampleRateHz: fs, baselineRatesHz: rates, minFreqHz, maxHz } = range;
+  const lo = freqHz / margin;
+  const hi = freqHz * margin;
+  if (hi <= maxHz) return freqHz >= minFreqHz;
+  const sameRate = rates !== undefined && rates.length > 0 && rates.every((r) => r === fs);
+  if (!sameRate || !Number.isInteger(order) || lo <= fs / 2 || !foldsWhole(lo, hi, fs))
+    return false;
+  const ends = [foldedHz(lo, fs), foldedHz(hi, fs)];
+  return Math.min(...ends) >= minFreqHz && Math.max(...ends) <= maxHz;
+}
+
 /** A standing before it is held against the other motors. */
 export type RawStanding = Omit<OrderStanding, "excessDb" | "axesExcessDb" | "axesCompared">;
 
@@ -83,7 +125,8 @@ function rpmMatchedStandings(
   ctx: OrderInputs,
   excluded: ReadonlySet<number>,
 ): RawStanding[] | null {
-  const { baseline, axes, maxHz, log } = ctx;
+  const { baseline, axes, log } = ctx;
+  const range = orderRange(ctx);
   const maps = baseline.rpmMaps;
   if (!maps || !log.motors.every((m) => m.rpmMap)) return null;
   const raw: RawStanding[] = [];
@@ -102,7 +145,7 @@ function rpmMatchedStandings(
             const bb = baseBins.get(lb.bin);
             if (!bb || lb.blocks < MIN_RPM_BIN_BLOCKS || bb.blocks < MIN_RPM_BIN_BLOCKS) continue;
             const f = order * lb.rotationHz;
-            if (f * RPM_BIN_MARGIN > maxHz || f < baseline.minFreqHz) continue;
+            if (!comparableOrder(range, order, f, RPM_BIN_MARGIN)) continue;
             const lo = lb.orders.find((o) => o.order === order);
             const bo = bb.orders.find((o) => o.order === order);
             const level = side ? lo?.sideDb?.[axis] : lo?.powerDb[axis];
@@ -150,7 +193,8 @@ export function heldAgainstOthers(raw: readonly RawStanding[]): OrderStanding[] 
 }
 
 function throttleMatchedStandings(ctx: OrderInputs, excluded: ReadonlySet<number>): RawStanding[] {
-  const { baseline, axes, matched, maxHz } = ctx;
+  const { baseline, axes, matched } = ctx;
+  const range = orderRange(ctx);
   const raw: RawStanding[] = [];
   for (const motor of baseline.motors) {
     if (excluded.has(motor)) continue;
@@ -169,10 +213,7 @@ function throttleMatchedStandings(ctx: OrderInputs, excluded: ReadonlySet<number
             const level = side ? lo?.sideDb?.[axis] : lo?.powerDb[axis];
             if (!lm || !lo || level === undefined || !Number.isFinite(level) || !(lm.meanRpm > 0))
               continue;
-            if (
-              (order * lm.meanRpm * RPM_SPREAD_MARGIN) / 60 > maxHz ||
-              (order * lm.meanRpm) / 60 < baseline.minFreqHz
-            )
+            if (!comparableOrder(range, order, (order * lm.meanRpm) / 60, RPM_SPREAD_MARGIN))
               continue;
             const bm = m.base.motors.find((x) => x.motor === motor);
             const bo =
