@@ -95,7 +95,10 @@ export function newPeaks(ctx: DetectorContext): Finding[] {
         continue;
       // A resonance stays put across throttle: it must peak in three quarters of the bands that
       // judged the bin (and in two of them, when two or more did), not only on average. Prop
-      // wash and manoeuvres raise bumps in one band or another, not in all.
+      // wash and manoeuvres raise bumps in one band or another, not in all. Counting the bands'
+      // segments instead (three quarters of the judging segments) was tried: a loose antenna
+      // missing only in a sparse low band was found, but wash bumps in the well-filled hover
+      // band passed too (4 false alarms on the validation matrix's healthy logs against 0).
       const bands = x.judged[gainAt] ?? 0;
       if (
         !((x.peaked[gainAt] ?? 0) >= Math.max(Math.min(2, bands), Math.ceil(RECUR_SHARE * bands)))
@@ -258,10 +261,7 @@ function excessOver(ctx: DetectorContext, axis: Axis, { first, last }: BinRange)
 
 /**
  * The robust spread of a per-bin quantity within ±WANDER_FRACTION of a bin's frequency (at least
- * WANDER_MIN_BINS each side), the bin itself left out, by bin. Leaving the peak's own ±5–10 % out
- * too was tried: a strong resonance then widened its yardstick less, but wash bumps, which
- * cluster, passed more often (5 and 7 false alarms on the validation matrix's healthy logs
- * against 1).
+ * WANDER_MIN_BINS each side), the bin's own skirt left out (below), by bin.
  */
 function localWander(values: Float64Array, { first, last }: BinRange): (bin: number) => number {
   const cache = new Map<number, number>();
