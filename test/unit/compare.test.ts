@@ -1,6 +1,7 @@
 import { describe, expect, it } from "vitest";
 import { buildBaseline, type Baseline } from "@/lib/health/baseline";
 import { compareWithBaseline, type Assessment, type Finding } from "@/lib/health/compare";
+import { floorOver } from "@/lib/health/detectors/floor-rise";
 import { MOTOR_POSITIONS } from "@/lib/health/motor-positions";
 import { DEFAULT_THRESHOLDS, penaltyFor } from "@/lib/health/thresholds";
 import {
@@ -495,5 +496,27 @@ describe("motor orders at matched rpm (analyses with rpm maps)", () => {
     expect(Math.abs((f.deltaDb ?? 0) - 10)).toBeLessThan(0.01);
     // Its rotation rate, weighted by the log's blocks per bin (equal here): the middle of 240–360 Hz.
     expect(f.freqHz).toBeCloseTo(300, 0);
+  });
+});
+
+describe("the floor is read between the motor orders", () => {
+  it("tones sweeping over more than half of the floor's range leave its median where the noise is", () => {
+    // 600–1200 Hz at 2 Hz bins, noise at −30 dB; four orders' spans (±35 Hz each around 660,
+    // 760, 860, 960 Hz, 280 of 600 Hz) and a fifth (±30 Hz at 1100) hold tones 20 dB up: 340 Hz,
+    // more than half the bins, so a plain median would read the tones. Between them the median is
+    // the noise's, exactly (the same numbers).
+    const binHz = 2;
+    const spans = [660, 760, 860, 960, 1100].map((atHz, i) => ({
+      atHz,
+      halfWidthHz: i < 4 ? 35 : 30,
+    }));
+    const psd = Array.from({ length: 700 }, (_, k) =>
+      spans.some((s) => Math.abs(k * binHz - s.atHz) <= s.halfWidthHz) ? -10 : -30,
+    );
+    expect(floorOver(psd, binHz, 600, 1200, [])).toBe(-10);
+    expect(floorOver(psd, binHz, 600, 1200, spans)).toBe(-30);
+    // Spans over more than two thirds of the range leave too little between them: every bin.
+    const wide = [{ atHz: 900, halfWidthHz: 220 }];
+    expect(floorOver(psd, binHz, 600, 1200, wide)).toBe(-10);
   });
 });

@@ -4,7 +4,7 @@ import { motorNamed } from "../motor-positions";
 import { ADVICE } from "./advice";
 import type { DetectorContext } from "./context";
 import { betweenName } from "./order-evidence";
-import { graded } from "./shared";
+import { graded, inAnOrderSpan, orderSpans, wholeOrderTrueFreqs, type OrderSpan } from "./shared";
 
 /**
  * The band-to-band scatter of the floor's rise over √bands, its standard deviation at least
@@ -21,12 +21,27 @@ function standardError(deltas: readonly number[], mean: number): number {
 
 const MIN_BAND_SCATTER_DB = 1;
 
-/** Median of a dB spectrum over [loHz, hiHz]: the noise floor there. */
-function floorOver(psdDb: readonly number[], binHz: number, loHz: number, hiHz: number): number {
+/**
+ * Median of a dB spectrum over [loHz, hiHz] between the motor orders' spans: the noise floor
+ * there. Where the orders cover more than MAX_ORDER_SHARE of the range (a 1 kHz log's octave
+ * above its corner holds the 1× and the folded 2× of four motors), the median over every bin.
+ */
+export function floorOver(
+  psdDb: readonly number[],
+  binHz: number,
+  loHz: number,
+  hiHz: number,
+  orders: readonly OrderSpan[],
+): number {
   const first = Math.ceil(loHz / binHz);
   const last = Math.min(psdDb.length - 1, Math.floor(hiHz / binHz));
-  return median(psdDb.slice(first, last + 1));
+  const all = psdDb.slice(first, last + 1);
+  const between = all.filter((_, i) => !inAnOrderSpan(orders, (first + i) * binHz));
+  return median(between.length >= (1 - MAX_ORDER_SHARE) * all.length ? between : all);
 }
+
+/** Orders may cover at most this share of the floor's range for the floor to be read between them. */
+const MAX_ORDER_SHARE = 2 / 3;
 
 /**
  * The floor is judged over one octave above the corner (up to the top both logs show). The
@@ -54,11 +69,20 @@ export function floorRises(ctx: DetectorContext): Finding[] {
   if (cornerHz >= maxHz) return [];
   const perAxis = axes
     .map((axis) => {
-      const deltas = matched.map(
-        (m) =>
-          floorOver(m.log.axes[axis].psdDb, log.settings.binHz, cornerHz, maxHz) -
-          floorOver(m.base.axes[axis].psdDb, baseline.binHz, cornerHz, maxHz),
-      );
+      // The same spans on both sides: the baseline's band is flown at the same throttle, so its
+      // orders sit where the log's do. A bent prop's tones sweeping over the range are not
+      // broadband noise.
+      const deltas = matched.map((m) => {
+        const orders = orderSpans(
+          m.log,
+          wholeOrderTrueFreqs(m.log, log.sampleRateHz),
+          log.sampleRateHz,
+        );
+        return (
+          floorOver(m.log.axes[axis].psdDb, log.settings.binHz, cornerHz, maxHz, orders) -
+          floorOver(m.base.axes[axis].psdDb, baseline.binHz, cornerHz, maxHz, orders)
+        );
+      });
       const delta = weightedMean(
         deltas,
         matched.map((m) => m.log.segments),

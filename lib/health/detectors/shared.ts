@@ -1,4 +1,5 @@
 import type { ThrottleBandResult } from "../../analysis/types";
+import { foldedHz } from "../../signal/folding";
 import { median } from "../../signal/stats";
 import type { Baseline, BaselineThrottleBand } from "../baseline";
 import type { Finding } from "../findings";
@@ -47,6 +48,62 @@ export function wholeOrderFreqs(band: ThrottleBandResult): number[] {
     .flatMap((x) => x.orders.filter((o) => Number.isInteger(o.order)).map((o) => o.freqHz))
     .filter((f) => f > 0);
 }
+
+/** The motors of one airframe spin this far apart (fraction of an order's frequency). */
+const MOTOR_SPREAD_FRACTION = 0.02;
+
+/** Where a motor order shows in a throttle band's spectrum and how far it sweeps there, Hz. */
+export interface OrderSpan {
+  atHz: number;
+  halfWidthHz: number;
+}
+
+/**
+ * The spans the given orders (frequencies at the band's mean rpm) sweep in a throttle band of a
+ * log sampled at `sampleRateHz`. Within a band each order sweeps as rpm does, rpm ∝ √throttle
+ * (thrust ∝ rpm²): a half-width of (√hi − √lo)/(√hi + √lo) of its frequency around its mean, and
+ * MOTOR_SPREAD_FRACTION for the motors' spread; folded where above the Nyquist frequency (the
+ * width in hertz stays).
+ */
+export function orderSpans(
+  band: Pick<ThrottleBandResult, "lo" | "hi">,
+  freqsHz: readonly number[],
+  sampleRateHz: number,
+): OrderSpan[] {
+  const sweep =
+    (Math.sqrt(band.hi) - Math.sqrt(band.lo)) / (Math.sqrt(band.hi) + Math.sqrt(band.lo)) +
+    MOTOR_SPREAD_FRACTION;
+  return freqsHz
+    .filter((f) => f > 0)
+    .map((f) => ({ atHz: foldedHz(f, sampleRateHz), halfWidthHz: sweep * f }));
+}
+
+/** Whether `freqHz` lies within one of the spans. */
+export function inAnOrderSpan(spans: readonly OrderSpan[], freqHz: number): boolean {
+  return spans.some((s) => Math.abs(s.atHz - freqHz) <= s.halfWidthHz);
+}
+
+/**
+ * The frequencies of the motors' whole orders in a throttle band that show in a log sampled at
+ * `sampleRateHz`, Hz: those below its Nyquist frequency, and 1× and 2× above it, which show
+ * folded (the blade pass and 4× up there have passed the flight controller's low-passes tens of
+ * dB down; as in lib/analysis/order-tracker.ts, they are not followed).
+ */
+export function wholeOrderTrueFreqs(band: ThrottleBandResult, sampleRateHz: number): number[] {
+  return band.motors.flatMap((x) =>
+    x.orders
+      .filter(
+        (o) =>
+          Number.isInteger(o.order) &&
+          o.freqHz > 0 &&
+          (o.freqHz <= sampleRateHz / 2 || o.order <= MAX_FOLDED_ORDER),
+      )
+      .map((o) => o.freqHz),
+  );
+}
+
+/** The highest order taken to show folded (lib/analysis/order-tracker.ts follows 1× and 2×). */
+const MAX_FOLDED_ORDER = 2;
 
 /**
  * Baseline value at the log band's own mean throttle: linear in throttle between the baseline's
