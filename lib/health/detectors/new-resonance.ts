@@ -99,6 +99,8 @@ export function newPeaks(ctx: DetectorContext): Finding[] {
       // segments instead (three quarters of the judging segments) was tried: a loose antenna
       // missing only in a sparse low band was found, but wash bumps in the well-filled hover
       // band passed too (4 false alarms on the validation matrix's healthy logs against 0).
+      // Counting a band whose gain reaches the watch step one bin either side of the peak did the
+      // same: the antenna found, and a hard-flying bump at 132 Hz on one airframe (4 false alarms).
       const bands = x.judged[gainAt] ?? 0;
       if (
         !((x.peaked[gainAt] ?? 0) >= Math.max(Math.min(2, bands), Math.ceil(RECUR_SHARE * bands)))
