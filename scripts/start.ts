@@ -34,6 +34,19 @@ function seconds(since: number): string {
   return `${((Date.now() - since) / 1000).toFixed(1)} s`;
 }
 
+/**
+ * Lines of Prisma's that would mislead here: the schema's datasource url is a literal that the CLI
+ * needs to stay on its JavaScript engine (prisma/schema.prisma), so Prisma names a "dev.db" that
+ * is never used and warns that the url is ignored. The database really used is printed at start.
+ */
+const PRISMA_NOISE = [
+  /^Datasource "db": SQLite database "dev\.db"/,
+  /^WARNING: Your schema specifies the following datasource properties/,
+  /^- url$/,
+  /^The values from your schema will NOT be used!$/,
+  /^We recommend you to remove those properties from your schema/,
+];
+
 /** Runs one step as a child process, its output prefixed so that parallel steps stay readable. */
 function step(
   what: string,
@@ -41,6 +54,7 @@ function step(
   args: string[],
   env: NodeJS.ProcessEnv,
   hint: string,
+  noise: readonly RegExp[] = [],
 ): Promise<void> {
   const t = Date.now();
   say(`${what}…`);
@@ -49,7 +63,8 @@ function step(
     children.add(child);
     const prefix = (from: NodeJS.ReadableStream, out: NodeJS.WriteStream) =>
       createInterface({ input: from }).on("line", (line) => {
-        if (line.trim() !== "") out.write(`  [${what}] ${line}\n`);
+        if (line.trim() !== "" && !noise.some((n) => n.test(line.trim())))
+          out.write(`  [${what}] ${line}\n`);
       });
     prefix(child.stdout, process.stdout);
     prefix(child.stderr, process.stderr);
@@ -131,6 +146,7 @@ async function main(): Promise<void> {
     ["prisma", "migrate", "deploy"],
     env,
     `the database (${env.DATABASE_URL}) could not be created or migrated; check that the data folder is writable and not full, and that no other program holds the file.`,
+    PRISMA_NOISE,
   );
 
   // The seed analyses its demo logs on the worker threads, so the worker comes before the seed.
@@ -183,7 +199,10 @@ async function main(): Promise<void> {
     env,
   });
   children.add(server);
-  server.on("exit", (code) => process.exit(code ?? 0));
+  server.on("exit", (code) => {
+    if (stopping) say("stopped");
+    process.exit(code ?? 0);
+  });
   console.log(`
 heatcheck is starting on ${env.NEXTAUTH_URL} (listening on ${host}:${port}; prepared in ${seconds(startedAt)})
   database: ${env.DATABASE_URL}
@@ -199,6 +218,7 @@ ${DEMO_ACCOUNTS.map((a) => `    ${a.role.padEnd(6)} ${a.email} / ${a.password}`)
 
 for (const signal of ["SIGINT", "SIGTERM"] as const) {
   process.on(signal, () => {
+    if (!stopping) say(`stopping (${signal}); analyses not finished resume at the next start`);
     stopping = true;
     for (const c of children) c.kill(signal);
     if (children.size === 0) process.exit(0);
