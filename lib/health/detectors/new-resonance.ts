@@ -305,6 +305,9 @@ function modeThatLeft(
   // A mode the tracking followed is settled, unless it followed a drop to above this peak: a
   // crack's damped mode is paired with a bump on its own skirt in some bands and seen lower in
   // others, and the peak below is where it went (compare.ts keeps the deeper of the two drops).
+  // Holding as settled also a mode the tracking saw in half its bands without a finding was
+  // tried: loose frames' lowered modes then read as new peaks (strongest severity not fully
+  // right 19 → 23 on the validation matrix).
   const followed = (m: BaselineMode) =>
     ctx.found.some(
       (f) =>
