@@ -189,8 +189,12 @@ export interface FleetNote {
 }
 
 export interface JudgeOptions {
-  /** "baseline": questions a baseline; "log": judges a log of an airframe without one. */
+  /**
+   * "baseline": questions a baseline; "log": judges a log against the fleet, which stands in for
+   * the baseline when `ownBaseline` is not true (the airframe has none yet).
+   */
   what: "baseline" | "log";
+  ownBaseline?: boolean;
   /** Words for an analysis band and a throttle band, from the caller's settings. */
   bandLabel: (band: number) => string;
   throttleLabel: (throttleBand: number) => string;
@@ -216,7 +220,9 @@ export function judgeAgainstFleet(
   const whose =
     options.what === "baseline"
       ? `${subject.name}'s baseline`
-      : `${subject.name}'s log (judged against the fleet, no baseline of its own)`;
+      : options.ownBaseline
+        ? `${subject.name}'s log`
+        : `${subject.name}'s log (judged against the fleet, no baseline of its own)`;
   const fleetWords = `the median of ${reference.airframes} sister airframes of ${reference.design}`;
   for (const mode of reference.modes) {
     const window = SEARCH_WINDOW_FRACTION * mode.medianHz;

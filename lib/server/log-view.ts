@@ -53,7 +53,9 @@ export async function logView(actor: Actor, logId: string) {
       fleetNotes = judgeAgainstFleet(
         placement.reference,
         memberFromLog(log.airframe.id, log.airframe.name, analysis),
-        { what: "log", ...BAND_WORDS },
+        // The airframe's own baseline, if it has one, is what the log was scored against; the
+        // fleet is a second opinion then, not a stand-in.
+        { what: "log", ownBaseline: placement.judged === "baseline", ...BAND_WORDS },
       );
     }
   }

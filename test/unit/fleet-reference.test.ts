@@ -126,6 +126,12 @@ describe("the fleet reference", () => {
       ["level-above-fleet", "inspect"],
     ]);
     expect(notes[0]?.text).toContain("judged against the fleet, no baseline of its own");
+    // A log of an airframe with a baseline of its own was scored against that baseline; the
+    // fleet's notes then name the log without saying it has none.
+    const seconded = judgeAgainstFleet(ref, subject, { what: "log", ownBaseline: true, ...labels });
+    expect(seconded.map((n) => n.kind)).toEqual(notes.map((n) => n.kind));
+    expect(seconded[0]?.text.startsWith("NEW's log ")).toBe(true);
+    expect(seconded[0]?.text).not.toContain("no baseline of its own");
   });
 
   it("says when a mode every sister has is missing", () => {
