@@ -63,8 +63,8 @@ function step(
     children.add(child);
     const prefix = (from: NodeJS.ReadableStream, out: NodeJS.WriteStream) =>
       createInterface({ input: from }).on("line", (line) => {
-        if (line.trim() !== "" && !noise.some((n) => n.test(line.trim())))
-          out.write(`  [${what}] ${line}\n`);
+        const text = line.trim();
+        if (text !== "" && !noise.some((n) => n.test(text))) out.write(`  [${what}] ${line}\n`);
       });
     prefix(child.stdout, process.stdout);
     prefix(child.stderr, process.stderr);

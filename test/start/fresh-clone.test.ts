@@ -72,5 +72,20 @@ describe("a fresh clone", () => {
     console.log(
       `fresh clone → inspection queue visible: ${(startMs / 1000).toFixed(0)} s\n${steps.join("\n")}`,
     );
+    // What the user reads at start names the database really used, not the schema's placeholder
+    // that Prisma would print (scripts/start.ts, PRISMA_NOISE).
+    const said = app.output();
+    expect(said).toContain(`database: file:${join(clone, "data", "heatcheck.db")}`);
+    expect(said).not.toContain("dev.db");
+    expect(said).not.toContain("will NOT be used");
+    // Stopped the way a service manager stops it (SIGTERM to the process group), it says so.
+    const running = app;
+    app = undefined;
+    await running.stop();
+    const atStop = running.output().slice(said.length);
+    expect(atStop).toContain(
+      "heatcheck: stopping (SIGTERM); analyses not finished resume at the next start",
+    );
+    expect(atStop).toContain("heatcheck: stopped");
   }, 960_000);
 });
