@@ -190,11 +190,11 @@ export interface FleetNote {
 
 export interface JudgeOptions {
   /**
-   * "baseline": questions a baseline; "log": judges a log against the fleet, which stands in for
-   * the baseline when `ownBaseline` is not true (the airframe has none yet).
+   * "baseline": questions a baseline; "log": judges a log of an airframe without one (the fleet
+   * stands in for it); "log-beside-baseline": a log that its own baseline scored (the fleet is a
+   * second opinion).
    */
-  what: "baseline" | "log";
-  ownBaseline?: boolean;
+  what: "baseline" | "log" | "log-beside-baseline";
   /** Words for an analysis band and a throttle band, from the caller's settings. */
   bandLabel: (band: number) => string;
   throttleLabel: (throttleBand: number) => string;
@@ -217,12 +217,11 @@ export function judgeAgainstFleet(
   if (!reference.enough) return [];
   const t = options.thresholds ?? DEFAULT_THRESHOLDS;
   const notes: FleetNote[] = [];
-  const whose =
-    options.what === "baseline"
-      ? `${subject.name}'s baseline`
-      : options.ownBaseline
-        ? `${subject.name}'s log`
-        : `${subject.name}'s log (judged against the fleet, no baseline of its own)`;
+  const whose = {
+    baseline: `${subject.name}'s baseline`,
+    log: `${subject.name}'s log (judged against the fleet, no baseline of its own)`,
+    "log-beside-baseline": `${subject.name}'s log`,
+  }[options.what];
   const fleetWords = `the median of ${reference.airframes} sister airframes of ${reference.design}`;
   for (const mode of reference.modes) {
     const window = SEARCH_WINDOW_FRACTION * mode.medianHz;
@@ -274,7 +273,7 @@ export function judgeAgainstFleet(
       text: `${whose} ${AXIS_WORD[mode.axis]} mode at ${Math.round(nearest.freqHz)} Hz sits ${Math.abs(round1(deviationPct))} % ${side} ${fleetWords} (${Math.round(mode.medianHz)} Hz) — ${question}`,
     });
   }
-  if (options.what === "log") {
+  if (options.what !== "baseline") {
     const worstPerAxis = new Map<Axis, FleetNote>();
     for (const level of subject.levels) {
       const ref = reference.levels.find(

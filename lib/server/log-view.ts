@@ -53,9 +53,7 @@ export async function logView(actor: Actor, logId: string) {
       fleetNotes = judgeAgainstFleet(
         placement.reference,
         memberFromLog(log.airframe.id, log.airframe.name, analysis),
-        // The airframe's own baseline, if it has one, is what the log was scored against; the
-        // fleet is a second opinion then, not a stand-in.
-        { what: "log", ownBaseline: placement.judged === "baseline", ...BAND_WORDS },
+        { what: placement.judged === "baseline" ? "log-beside-baseline" : "log", ...BAND_WORDS },
       );
     }
   }

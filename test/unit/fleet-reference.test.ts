@@ -128,7 +128,7 @@ describe("the fleet reference", () => {
     expect(notes[0]?.text).toContain("judged against the fleet, no baseline of its own");
     // A log of an airframe with a baseline of its own was scored against that baseline; the
     // fleet's notes then name the log without saying it has none.
-    const seconded = judgeAgainstFleet(ref, subject, { what: "log", ownBaseline: true, ...labels });
+    const seconded = judgeAgainstFleet(ref, subject, { what: "log-beside-baseline", ...labels });
     expect(seconded.map((n) => n.kind)).toEqual(notes.map((n) => n.kind));
     expect(seconded[0]?.text.startsWith("NEW's log ")).toBe(true);
     expect(seconded[0]?.text).not.toContain("no baseline of its own");
