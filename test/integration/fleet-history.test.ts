@@ -20,9 +20,11 @@ const { logCrash } = await import("@/lib/server/crashes");
 const { airframeHistory, historyCsv } = await import("@/lib/server/airframe-history");
 const { fleetOverview } = await import("@/lib/server/fleet-overview");
 const { inspectionQueue } = await import("@/lib/server/queue");
+const { logView } = await import("@/lib/server/log-view");
 
 const actors = {} as Record<Role, Actor>;
 const ids: Record<string, string> = {};
+const logIds: Record<string, string> = {};
 let seed = 100;
 
 async function upload(
@@ -57,7 +59,8 @@ beforeAll(async () => {
       i,
     );
   }
-  await upload("F-6", {}, 5);
+  Object.assign(logIds, baselineLogs);
+  logIds["F-6"] = await upload("F-6", {}, 5);
   await analysesSettled();
   for (const name of names.slice(0, 5))
     await setBaseline(actors.tech, ids[name] ?? "", [baselineLogs[name] ?? ""], "known-good");
@@ -94,6 +97,22 @@ describe("the fleet as its own reference", () => {
     expect(f6?.judged).toBe("log");
     expect(f6?.reference.airframes).toBe(5);
     for (const n of f6?.notes ?? [])
+      expect(n.text).toContain("judged against the fleet, no baseline of its own");
+  });
+
+  it("names a log on its page as judged by the fleet only where its airframe has no baseline", async () => {
+    // F-5's log is its own (cracked) baseline: its page scores it against that baseline, and the
+    // fleet's notes there are a second opinion. F-6 has no baseline: the fleet (five airframes)
+    // stands in for one; it flies healthy and may draw no note, but any it draws say so.
+    const f5 = await logView(actors.viewer, logIds["F-5"] ?? "");
+    expect(f5.fleet.notes.length).toBeGreaterThan(0);
+    for (const n of f5.fleet.notes) {
+      expect(n.text.startsWith("F-5's log")).toBe(true);
+      expect(n.text).not.toContain("no baseline of its own");
+    }
+    const f6 = await logView(actors.viewer, logIds["F-6"] ?? "");
+    expect(f6.fleet.airframes).toBe(5);
+    for (const n of f6.fleet.notes)
       expect(n.text).toContain("judged against the fleet, no baseline of its own");
   });
 
