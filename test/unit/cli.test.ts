@@ -150,6 +150,33 @@ describe("heatcheck compare", () => {
 });
 
 describe("the CLI as a process, as the README types it (npx heatcheck: the bundled bin, two threads)", () => {
+  it("the README's compare example prints what the README says it prints", () => {
+    // The commands and the quoted result are read from the README itself, so that it stays true:
+    // when the engine's words or numbers change, this fails until the README shows the new ones.
+    const readme = readFileSync("README.md", "utf8");
+    const example =
+      /```sh\n(npx heatcheck demo-log good\.csv[^`]*?)```\s+prints a score with "what took points off", here `([^`]+)` and `([^`]+)`/.exec(
+        readme,
+      );
+    expect(example).not.toBeNull();
+    const [, commands = "", scoreLine = "", findingLine = ""] = example ?? [];
+    const oneSpaced = (t: string) => t.replace(/\s+/g, " ").trim();
+    const where = mkdtempSync(join(tmpdir(), "heatcheck-readme-"));
+    let out = "";
+    for (const command of commands.trim().split("\n")) {
+      // As typed in the heatcheck folder; the files go to a temporary folder instead of it.
+      const [npx, ...args] = command.trim().split(/\s+/);
+      expect(npx).toBe("npx");
+      out = execFileSync(
+        "npx",
+        args.map((a) => (a.endsWith(".csv") ? join(where, a) : a)),
+        { encoding: "utf8" },
+      );
+    }
+    expect(oneSpaced(out)).toContain(oneSpaced(scoreLine));
+    expect(oneSpaced(out)).toContain(oneSpaced(findingLine));
+  }, 120_000);
+
   it("analyze --json through npx heatcheck gives the same numbers as in-process", async () => {
     const out = execFileSync("npx", ["heatcheck", "analyze", good, "--json"], { encoding: "utf8" });
     const inProcess = JSON.parse((await cli("analyze", good, "--json")).stdout) as {
